@@ -1,0 +1,256 @@
+//! Renderers: a terminal table and JSON, both read from the library's report structure.
+
+use std::fmt::Write;
+
+use retidose::alpha_opic::action_spectra;
+use retidose::data::TABLE_FILES;
+use retidose::photometry::{Photometric, PhotometricResult};
+use retidose::quantity::SiValue;
+use retidose::reader::read_table;
+use retidose::source::BUILTIN_LAMPS;
+use retidose::spectrum::{Basis, Coverage};
+use retidose::spectrum_report::SpectrumReport;
+use serde_json::{Value, json};
+
+/// The caution printed under every report.
+pub const CAUTION: &str = "retidose informs; it does not replace the standards, a qualified optical-radiation \
+assessment, veterinary advice or local regulations. Check results with your optical safety officer, \
+veterinarian or review board before relying on them.";
+
+/// Formats a number with 4 significant digits, in scientific notation when very large or small.
+pub fn num(v: f64) -> String {
+    if v == 0.0 {
+        return "0".to_string();
+    }
+    let a = v.abs();
+    if (1e-3..1e6).contains(&a) {
+        let digits = (3 - a.log10().floor() as i32).max(0) as usize;
+        format!("{v:.digits$}")
+    } else {
+        format!("{v:.3e}")
+    }
+}
+
+fn basis_name(b: Basis) -> &'static str {
+    match b {
+        Basis::Energy => "energy",
+        Basis::Photon => "photon",
+    }
+}
+
+fn coverage_text(c: &Coverage) -> String {
+    match c.covered_nm {
+        _ if c.is_complete() => String::new(),
+        None => format!("  [not covered: needs {}–{} nm]", c.needed_nm.0, c.needed_nm.1),
+        Some((a, b)) => format!(
+            "  [partial: covers {a}–{b} of {}–{} nm, {:.3} % of weight missing]",
+            c.needed_nm.0,
+            c.needed_nm.1,
+            100.0 * c.uncovered_weight_share
+        ),
+    }
+}
+
+fn photometric_text(p: &PhotometricResult, scotopic: bool) -> String {
+    let prime = if scotopic { " (scotopic)" } else { "" };
+    match p.value {
+        Some(v) => {
+            let (x, u) = v.si_with_unit();
+            format!("{} {u}{prime}{}", num(x), coverage_text(&p.coverage))
+        }
+        None => format!("— (relative spectrum){}", coverage_text(&p.coverage)),
+    }
+}
+
+/// The terminal table for one spectrum.
+pub fn spectrum_table(r: &SpectrumReport) -> String {
+    let mut o = String::new();
+    let _ = writeln!(o, "retidose spectrum: {}", r.label);
+    if let Some(p) = &r.provenance {
+        let _ = writeln!(o, "  from          {p}");
+    }
+    let _ = writeln!(
+        o,
+        "  values        spectral {} ({} basis), {}–{} nm, {} samples",
+        r.measure.name(),
+        basis_name(r.basis),
+        r.range_nm.0,
+        r.range_nm.1,
+        r.samples
+    );
+    if let Some(t) = &r.scaled_to {
+        let _ = writeln!(o, "  scaled to     {}", t.describe());
+    }
+    let _ = writeln!(o, "\nTotals over the sampled range");
+    match (r.radiometric, r.photon) {
+        (Some(e), Some(p)) => {
+            let (ev, eu) = e.si_with_unit();
+            let (pv, pu) = p.si_with_unit();
+            let _ = writeln!(o, "  radiant                     {} {eu}", num(ev));
+            let _ = writeln!(o, "  photon                      {} {pu}", num(pv));
+        }
+        _ => {
+            let _ = writeln!(o, "  radiant, photon             — (relative spectrum)");
+        }
+    }
+    let _ = writeln!(o, "  photopic  (V, 683.002 lm/W) {}", photometric_text(&r.photopic, false));
+    let _ = writeln!(o, "  scotopic (V′, 1700.06 lm/W) {}", photometric_text(&r.scotopic, true));
+    let _ = writeln!(o, "  S/P ratio                   {}", r.sp_ratio.map_or("—".into(), num));
+    let _ = writeln!(
+        o,
+        "  luminous efficacy           {}",
+        r.luminous_efficacy.map_or("—".into(), |k| format!("{} lm/W", num(k.si())))
+    );
+    let _ = writeln!(o, "  peak wavelength             {} nm", num(r.peak_nm));
+    let _ = writeln!(o, "\nα-opic quantities (CIE S 026:2018)");
+    let _ =
+        writeln!(o, "  {:<13} {:>24} {:>11} {:>7} {:>18}", "", "α-opic quantity", "ELR mW/lm", "DER", "EDI");
+    for a in &r.alpha_opic {
+        let q = a.quantity.map_or("—".into(), |q| {
+            let (v, u) = q.si_with_unit();
+            format!("{} {u}", num(v))
+        });
+        let edi = a.edi.map_or("—".into(), |e: Photometric| {
+            let (v, u) = e.si_with_unit();
+            format!("{} {u}", num(v))
+        });
+        let mark = if a.reconstructed { " *" } else { "" };
+        let _ = writeln!(
+            o,
+            "  {:<13} {:>24} {:>11} {:>7} {:>18}{mark}{}",
+            a.name,
+            q,
+            a.elr.map_or("—".into(), |e| num(e.si() * 1e3)),
+            a.der.map_or("—".into(), num),
+            edi,
+            coverage_text(&a.coverage)
+        );
+    }
+    if r.alpha_opic.iter().any(|a| a.reconstructed) {
+        let _ = writeln!(o, "  * reconstructed action spectrum: see the notes");
+    }
+    let _ = writeln!(o, "\nShare of radiant power");
+    for b in &r.bands {
+        let share = b.share.map_or("—".into(), |s| format!("{:.2} %", 100.0 * s));
+        let hi = if b.band_nm.1 >= 1e6 { "1 mm".to_string() } else { format!("{} nm", b.band_nm.1) };
+        let _ = writeln!(
+            o,
+            "  {:<13} {:>5} nm – {:<8} {:>9}{}",
+            b.name,
+            b.band_nm.0,
+            hi,
+            share,
+            coverage_text(&b.coverage)
+        );
+    }
+    let _ = writeln!(o, "\nNotes");
+    for n in &r.notes {
+        let _ = writeln!(o, "  - {n}");
+    }
+    let _ = writeln!(o, "\n{CAUTION}");
+    o
+}
+
+fn coverage_json(c: &Coverage) -> Value {
+    json!({
+        "needed_nm": [c.needed_nm.0, c.needed_nm.1],
+        "covered_nm": c.covered_nm.map(|(a, b)| vec![a, b]),
+        "uncovered_weight_share": c.uncovered_weight_share,
+        "complete": c.is_complete(),
+    })
+}
+
+fn value_json(v: Option<(f64, &str)>) -> Value {
+    v.map_or(Value::Null, |(x, u)| json!({ "value": x, "unit": u }))
+}
+
+fn photometric_json(p: &PhotometricResult) -> Value {
+    json!({
+        "value": p.value.map(|v| v.si_value()),
+        "unit": p.value.map(|v| v.si_with_unit().1),
+        "coverage": coverage_json(&p.coverage),
+    })
+}
+
+/// The JSON document for one spectrum (schema `retidose.spectrum/1`, see the README).
+pub fn spectrum_json(r: &SpectrumReport) -> String {
+    let doc = json!({
+        "schema": "retidose.spectrum/1",
+        "source": {
+            "label": r.label,
+            "provenance": r.provenance,
+            "measure": r.measure.name(),
+            "basis": basis_name(r.basis),
+            "range_nm": [r.range_nm.0, r.range_nm.1],
+            "samples": r.samples,
+            "scaled_to": r.scaled_to.map(|t| t.describe()),
+        },
+        "radiant_total": value_json(r.radiometric.as_ref().map(|q| q.si_with_unit())),
+        "photon_total": value_json(r.photon.as_ref().map(|q| q.si_with_unit())),
+        "photopic": photometric_json(&r.photopic),
+        "scotopic": photometric_json(&r.scotopic),
+        "sp_ratio": r.sp_ratio,
+        "luminous_efficacy_lm_per_w": r.luminous_efficacy.map(|k| k.si()),
+        "peak_nm": r.peak_nm,
+        "alpha_opic": r.alpha_opic.iter().map(|a| json!({
+            "name": a.name,
+            "quantity": value_json(a.quantity.as_ref().map(|q| q.si_with_unit())),
+            "elr_mw_per_lm": a.elr.map(|e| e.si() * 1e3),
+            "der": a.der,
+            "edi": value_json(a.edi.as_ref().map(|e| e.si_with_unit())),
+            "reconstructed": a.reconstructed,
+            "coverage": coverage_json(&a.coverage),
+        })).collect::<Vec<_>>(),
+        "bands": r.bands.iter().map(|b| json!({
+            "name": b.name,
+            "band_nm": [b.band_nm.0, b.band_nm.1],
+            "share": b.share,
+            "coverage": coverage_json(&b.coverage),
+        })).collect::<Vec<_>>(),
+        "notes": r.notes,
+        "caution": CAUTION,
+    });
+    let mut s = serde_json::to_string_pretty(&doc).unwrap_or_else(|e| format!("{{\"error\": \"{e}\"}}"));
+    s.push('\n');
+    s
+}
+
+/// The list of built-in sources, generators and reference tables.
+pub fn sources() -> String {
+    let mut o = String::new();
+    let _ = writeln!(o, "Generators");
+    let _ = writeln!(
+        o,
+        "  blackbody:TEMPERATURE   Planck's law (spectral radiance), default 200–3000 nm at 1 nm"
+    );
+    let _ = writeln!(
+        o,
+        "  cie:A                   CIE illuminant A from its formula (CIE 15:2004), 300–830 nm at 1 nm"
+    );
+    let _ = writeln!(o, "  cie:D65                 CIE illuminant D65, CIE table 300–830 nm at 5 nm");
+    let _ = writeln!(o, "  led:PEAK:WIDTH          one LED band, Ohno (2005) model, 300–830 nm at 1 nm");
+    let _ = writeln!(o, "\nBuilt-in lamps (sources/, invented demo data)");
+    for l in BUILTIN_LAMPS {
+        let _ = writeln!(o, "  {:<22}  sources/{}", l.name, l.file);
+    }
+    let _ = writeln!(o, "\nReference tables (src/data/)");
+    for (name, text) in TABLE_FILES {
+        if let Ok(t) = read_table(text, name) {
+            let _ = writeln!(o, "  {name}");
+            let _ = writeln!(o, "      {}", t.meta("source").unwrap_or("(no source)"));
+            let _ = writeln!(o, "      status: {}", t.meta("status").unwrap_or("(none)"));
+        }
+    }
+    let _ = writeln!(o, "\nCIE S 026 α-opic action spectra (src/data/cie_s026_alpha_opic.toml)");
+    for f in action_spectra() {
+        let _ = writeln!(o, "  {:<12} {}", f.name, f.construction);
+        let _ = writeln!(
+            o,
+            "      D65 ELR {:.4} mW/lm here, published {:.4} mW/lm ({})",
+            f.d65_elr.si() * 1e3,
+            f.published_d65_elr.si() * 1e3,
+            f.published_status
+        );
+    }
+    o
+}
