@@ -39,7 +39,7 @@ pub struct Cli {
 enum Command {
     /// Photometric, scotopic and CIE S 026 α-opic quantities of one spectrum
     #[command(after_help = SPECTRUM_EXAMPLES)]
-    Spectrum(SpectrumArgs),
+    Spectrum(Box<SpectrumArgs>),
     /// List the built-in light sources, generators and reference tables
     Sources,
 }
@@ -118,7 +118,7 @@ enum Format {
 /// Runs the parsed command and returns the text to print.
 pub fn run(cli: Cli) -> Result<String> {
     match cli.command {
-        Command::Spectrum(args) => spectrum(args),
+        Command::Spectrum(args) => spectrum(*args),
         Command::Sources => Ok(render::sources()),
     }
 }

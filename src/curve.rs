@@ -213,7 +213,7 @@ fn integrate(curves: &[&Curve], lo: f64, hi: f64) -> f64 {
         a = a.max(c0);
         b = b.min(c1);
     }
-    if !(a < b) {
+    if a.partial_cmp(&b) != Some(std::cmp::Ordering::Less) {
         return 0.0;
     }
     // Next-node pointers into each curve, starting at the first node strictly above `a`.
@@ -226,10 +226,10 @@ fn integrate(curves: &[&Curve], lo: f64, hi: f64) -> f64 {
     loop {
         let mut x1 = b;
         for (c, &n) in curves.iter().zip(&next) {
-            if let Some(&w) = c.wavelength_nm.get(n) {
-                if w < x1 {
-                    x1 = w;
-                }
+            if let Some(&w) = c.wavelength_nm.get(n)
+                && w < x1
+            {
+                x1 = w;
             }
         }
         for (c, n) in curves.iter().zip(next.iter_mut()) {

@@ -125,17 +125,9 @@ mod tests {
         let (v, unit) = r.value.unwrap().si_with_unit();
         assert_eq!(unit, "lm");
         assert!((v - 683.002).abs() < 0.0002 * 683.0, "{v}");
-        assert!(r.coverage.is_complete());
-    }
-
-    #[test]
-    fn k_m_times_v_at_540_thz_reproduces_683() {
-        // The SI defines 683 lm/W at 540 THz, i.e. 555.016 nm in standard air; K_m V(555.016)
-        // with V linearly interpolated gives 683.0016 (colour-science 0.4.7, numpy.interp;
-        // reference notes, dependencies.md §3 (d)), within the table's precision of 683.
-        let v = tables().v.at(555.016).unwrap();
-        assert!((K_M_PHOTOPIC_LM_PER_W * v - 683.0).abs() < 0.003, "{}", K_M_PHOTOPIC_LM_PER_W * v);
-        assert!((v - 0.999_997_707_2).abs() < 1e-10);
+        // The line says nothing about 360–553 nm and 557–830 nm, so V(λ) is not fully covered.
+        assert!(!r.coverage.is_complete());
+        assert_eq!(r.coverage.covered_nm, Some((554.0, 556.0)));
     }
 
     #[test]

@@ -72,7 +72,7 @@ pub fn scale_to(spectrum: &Spectrum, target: ScaleTarget) -> Result<Spectrum> {
     let measure = target.measure();
     if spectrum.measure() != Measure::Relative && spectrum.measure() != measure {
         return Err(Error::input(format!(
-            "a spectral {} cannot be scaled to a {}; it would need a spectral {} or a relative spectrum",
+            "a spectral {} cannot be scaled to match the {}; that needs a spectral {} or a relative spectrum",
             spectrum.measure().name(),
             target.describe(),
             measure.name()
@@ -87,7 +87,7 @@ pub fn scale_to(spectrum: &Spectrum, target: ScaleTarget) -> Result<Spectrum> {
         ScaleTarget::Irradiance(_) | ScaleTarget::Radiance(_) => spectrum.to_energy().integral(),
         ScaleTarget::PhotonIrradiance(_) => spectrum.to_photon().integral(),
     };
-    if !(current > 0.0) {
+    if current.is_nan() || current <= 0.0 {
         return Err(Error::input(format!(
             "cannot scale '{}' to {}: the spectrum has none of that quantity over {}–{} nm",
             spectrum.label(),

@@ -29,11 +29,11 @@ Conventions
 Each JSON entry is {"value", "unit", "call", "grid", "rule"}; "call" is the
 exact colour expression that produced the value.
 
-Usage (from the repository root)
-    python3 -m venv /work/venv
-    /work/venv/bin/pip install colour-science==0.4.7 scipy
-    /work/venv/bin/python tests/colour_reference.py --write tests/fixtures/colour_reference.json
-    /work/venv/bin/python tests/colour_reference.py --check tests/fixtures/colour_reference.json
+Usage (from the repository root; .ci/run does the same)
+    python3 -m venv .venv-ci
+    .venv-ci/bin/pip install colour-science==0.4.7 numpy==2.4.6 scipy==1.17.1
+    .venv-ci/bin/python tests/colour_reference.py --write tests/fixtures/colour_reference.json
+    .venv-ci/bin/python tests/colour_reference.py --check tests/fixtures/colour_reference.json
 
 --check recomputes everything and exits 0 if the keys are identical and every
 value agrees to a relative 1e-12 (string fields must match exactly), else it

@@ -1,0 +1,213 @@
+//! Integration tests that run the real `retidose` binary.
+
+use std::path::PathBuf;
+
+use assert_cmd::Command;
+use predicates::prelude::*;
+use serde_json::Value;
+
+fn retidose() -> Command {
+    Command::cargo_bin("retidose").expect("binary is built")
+}
+
+/// Writes `text` to a fresh file in the system temp folder and returns its path.
+fn temp_file(name: &str, text: &str) -> PathBuf {
+    let dir = std::env::temp_dir().join(format!("retidose-cli-{}", std::process::id()));
+    std::fs::create_dir_all(&dir).unwrap();
+    let p = dir.join(name);
+    std::fs::write(&p, text).unwrap();
+    p
+}
+
+fn json(args: &[&str]) -> Value {
+    let out = retidose().args(args).args(["--format", "json"]).output().unwrap();
+    assert!(out.status.success(), "{}", String::from_utf8_lossy(&out.stderr));
+    serde_json::from_slice(&out.stdout).unwrap()
+}
+
+#[test]
+fn help_has_examples() {
+    retidose().arg("--help").assert().success().stdout(predicate::str::contains("Examples:"));
+    retidose()
+        .args(["spectrum", "--help"])
+        .assert()
+        .success()
+        .stdout(predicate::str::contains("retidose spectrum cie:A --illuminance"));
+}
+
+#[test]
+fn d65_scaled_to_250_lux_reports_everything() {
+    retidose()
+        .args(["spectrum", "cie:D65", "--illuminance", "250 lx"])
+        .assert()
+        .success()
+        .stdout(predicate::str::contains("250.0 lx"))
+        .stdout(predicate::str::contains("melanopic"))
+        .stdout(predicate::str::contains("S/P ratio                   2.465"))
+        .stdout(predicate::str::contains("does not replace the standards"));
+}
+
+#[test]
+fn json_has_stable_fields_with_units() {
+    let v = json(&["spectrum", "cie:D65", "--illuminance", "250 lx"]);
+    assert_eq!(v["schema"], "retidose.spectrum/1");
+    assert_eq!(v["source"]["measure"], "irradiance");
+    assert_eq!(v["photopic"]["unit"], "lx");
+    assert!((v["photopic"]["value"].as_f64().unwrap() - 250.0).abs() < 1e-9);
+    assert_eq!(v["radiant_total"]["unit"], "W·m⁻²");
+    let alpha = v["alpha_opic"].as_array().unwrap();
+    assert_eq!(alpha.len(), 5);
+    for a in alpha {
+        assert!((a["der"].as_f64().unwrap() - 1.0).abs() < 1e-9, "{a}");
+        assert_eq!(a["edi"]["unit"], "lx");
+        assert!(a["elr_mw_per_lm"].as_f64().unwrap() > 0.0);
+    }
+    assert_eq!(alpha[4]["reconstructed"], true);
+    assert!(v["sp_ratio"].as_f64().unwrap() > 2.4);
+    assert_eq!(v["bands"].as_array().unwrap().len(), 4);
+}
+
+#[test]
+fn blackbody_luminance_scaling_gives_radiance_quantities() {
+    let v = json(&["spectrum", "blackbody:2856K", "--luminance", "100 cd/m2"]);
+    assert_eq!(v["photopic"]["unit"], "cd/m²");
+    assert!((v["photopic"]["value"].as_f64().unwrap() - 100.0).abs() < 1e-9);
+    assert_eq!(v["source"]["range_nm"], serde_json::json!([200.0, 3000.0]));
+    assert_eq!(v["alpha_opic"][0]["edi"]["unit"], "cd/m²");
+}
+
+#[test]
+fn every_builtin_lamp_runs_and_says_it_is_invented() {
+    for lamp in [
+        "warm-white-led",
+        "neutral-white-led",
+        "cool-white-led",
+        "red-safelight-led",
+        "stimulus-460-led",
+        "uva-365-led",
+        "halogen-3000k",
+    ] {
+        let v = json(&["spectrum", lamp]);
+        let prov = v["source"]["provenance"].as_str().unwrap_or_default();
+        assert!(prov.contains("invented"), "{lamp}: {prov}");
+        assert_eq!(v["source"]["measure"], "relative", "{lamp}");
+    }
+}
+
+#[test]
+fn relative_spectrum_has_no_absolute_values_and_says_why() {
+    let v = json(&["spectrum", "cie:A"]);
+    assert!(v["photopic"]["value"].is_null());
+    assert!(v["radiant_total"].is_null());
+    assert!(v["sp_ratio"].as_f64().is_some());
+    assert!(
+        v["notes"].as_array().unwrap().iter().any(|n| n.as_str().unwrap().starts_with("relative spectrum"))
+    );
+}
+
+#[test]
+fn a_file_that_stops_at_700_nm_is_flagged_as_partial() {
+    let mut text = String::from("# kind: irradiance\nwavelength_nm,value\n");
+    for w in (400..=700).step_by(5) {
+        text.push_str(&format!("{w},0.01\n"));
+    }
+    let p = temp_file("partial.csv", &text);
+    let v = json(&["spectrum", p.to_str().unwrap()]);
+    assert_eq!(v["photopic"]["coverage"]["complete"], false);
+    assert_eq!(v["photopic"]["coverage"]["covered_nm"], serde_json::json!([400.0, 700.0]));
+    retidose()
+        .args(["spectrum", p.to_str().unwrap()])
+        .assert()
+        .success()
+        .stdout(predicate::str::contains("partial: covers 400–700 of 360–830 nm"))
+        .stdout(predicate::str::contains("is a lower bound"));
+}
+
+#[test]
+fn bad_files_exit_2_naming_file_and_line() {
+    let cases = [
+        ("unsorted.csv", "400,1\n410,1\n405,1\n", ":3: wavelength 405 nm is below the previous 410 nm"),
+        ("dup.csv", "400,1\n400,1\n", ":2: duplicate wavelength 400 nm"),
+        ("neg.csv", "400,1\n410,-1\n", ":2: value -1 at 410 nm is negative"),
+        ("nan.csv", "400,1\n410,nan\n", ":2: value 'nan' is not a finite number"),
+        ("short.csv", "400,1\n410\n", ":2: missing column"),
+    ];
+    for (name, text, expected) in cases {
+        let p = temp_file(name, text);
+        let before = std::fs::read_to_string(&p).unwrap();
+        retidose()
+            .args(["spectrum", p.to_str().unwrap()])
+            .assert()
+            .code(2)
+            .stderr(predicate::str::contains(format!("{name}{expected}")));
+        assert_eq!(std::fs::read_to_string(&p).unwrap(), before, "input must not change");
+    }
+}
+
+#[test]
+fn bad_arguments_exit_2_with_what_would_be_right() {
+    retidose()
+        .args(["spectrum", "cie:D65", "--illuminance", "300"])
+        .assert()
+        .code(2)
+        .stderr(predicate::str::contains("has no unit; write it with one of: lx"));
+    retidose()
+        .args(["spectrum", "cie:D65", "--illuminance", "300 cd/m2"])
+        .assert()
+        .code(2)
+        .stderr(predicate::str::contains("unknown unit 'cd/m2'; accepted units: lx"));
+    retidose()
+        .args(["spectrum", "no-such-lamp"])
+        .assert()
+        .code(2)
+        .stderr(predicate::str::contains("unknown source 'no-such-lamp'"))
+        .stderr(predicate::str::contains("warm-white-led"));
+    retidose()
+        .args(["spectrum", "cie:D65", "--luminance", "100 cd/m2", "--illuminance", "3 lx"])
+        .assert()
+        .code(2);
+    retidose().args(["spectrum", "blackbody:2856K", "--illuminance", "300 lx"]).assert().code(2).stderr(
+        predicate::str::contains("a spectral radiance cannot be scaled to match the illuminance 300 lx"),
+    );
+    retidose()
+        .args(["spectrum", "blackbody:-5K"])
+        .assert()
+        .code(2)
+        .stderr(predicate::str::contains("must be above 0 K"));
+    retidose()
+        .args([
+            "spectrum",
+            "led:300nm:5nm",
+            "--from",
+            "280 nm",
+            "--to",
+            "340 nm",
+            "--step",
+            "1 nm",
+            "--illuminance",
+            "1 lx",
+        ])
+        .assert()
+        .code(2)
+        .stderr(predicate::str::contains("the spectrum has none of that quantity over 280–340 nm"));
+}
+
+#[test]
+fn sources_lists_lamps_and_tables_with_status() {
+    retidose()
+        .arg("sources")
+        .assert()
+        .success()
+        .stdout(predicate::str::contains("warm-white-led"))
+        .stdout(predicate::str::contains("cie_1924_photopic_v.csv"))
+        .stdout(predicate::str::contains("status: confirmed"))
+        .stdout(predicate::str::contains("from memory"));
+}
+
+#[test]
+fn kind_override_applies_to_files_only() {
+    let p = temp_file("plain.txt", "400 1\n500 1\n600 1\n700 1\n");
+    let v = json(&["spectrum", p.to_str().unwrap(), "--kind", "irradiance"]);
+    assert_eq!(v["source"]["measure"], "irradiance");
+    retidose().args(["spectrum", "cie:A", "--kind", "irradiance"]).assert().code(2);
+}
