@@ -160,7 +160,7 @@ pub fn alpha_opic(spectrum: &Spectrum) -> Vec<AlphaOpicValue> {
         .map(|f| {
             let (x, coverage) = energy.weighted(&f.curve);
             let elr = (lum > 0.0).then(|| x / lum);
-            let quantity = radiometric(spectrum, x);
+            let quantity = Radiometric::from_si(spectrum.measure(), x);
             AlphaOpicValue {
                 name: f.name.clone(),
                 quantity,
@@ -172,18 +172,6 @@ pub fn alpha_opic(spectrum: &Spectrum) -> Vec<AlphaOpicValue> {
             }
         })
         .collect()
-}
-
-fn radiometric(spectrum: &Spectrum, value: f64) -> Option<Radiometric> {
-    use crate::quantity::{Irradiance, Power, Radiance, RadiantIntensity};
-    use crate::spectrum::Measure;
-    Some(match spectrum.measure() {
-        Measure::Radiance => Radiometric::Radiance(Radiance::from_si(value)),
-        Measure::Irradiance => Radiometric::Irradiance(Irradiance::from_si(value)),
-        Measure::Intensity => Radiometric::Intensity(RadiantIntensity::from_si(value)),
-        Measure::Flux => Radiometric::Flux(Power::from_si(value)),
-        Measure::Relative => return None,
-    })
 }
 
 #[cfg(test)]

@@ -133,7 +133,9 @@ impl Radiometric {
         }
     }
 
-    fn from_si(measure: Measure, value: f64) -> Option<Self> {
+    /// Wraps `value` in coherent SI units as the radiant quantity `measure` calls for;
+    /// `None` for a relative spectrum.
+    pub fn from_si(measure: Measure, value: f64) -> Option<Self> {
         Some(match measure {
             Measure::Radiance => Radiometric::Radiance(Radiance::from_si(value)),
             Measure::Irradiance => Radiometric::Irradiance(Irradiance::from_si(value)),
