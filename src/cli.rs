@@ -7,6 +7,8 @@ use std::path::Path;
 use anyhow::{Context, Result, bail};
 use clap::{Args, Parser, Subcommand, ValueEnum};
 use retidose::generate::Grid;
+use retidose::retina_report::assess_retina;
+use retidose::retina_scenario::{FilterSpec, SourceSpec, SubjectSpec, build, parse_scenario};
 use retidose::scale::{ScaleTarget, scale_to};
 use retidose::source::resolve;
 use retidose::spectrum::{Basis, Measure};
@@ -21,6 +23,7 @@ Examples:
   retidose spectrum blackbody:2856K --luminance \"100 cd/m2\" --format json
   retidose spectrum warm-white-led --illuminance \"300 lx\"
   retidose spectrum my-lamp.csv --kind irradiance
+  retidose retina warm-white-led --illuminance \"350 lx\" --full-field --species mouse --pupil dark
   retidose sources
 
 Exit status: 0 on success, 2 on an error (bad input, unreadable file).
@@ -40,8 +43,91 @@ enum Command {
     /// Photometric, scotopic and CIE S 026 α-opic quantities of one spectrum
     #[command(after_help = SPECTRUM_EXAMPLES)]
     Spectrum(Box<SpectrumArgs>),
+    /// Corneal and retinal quantities and photoreceptor catch for a human, mouse or rat eye
+    #[command(after_help = RETINA_EXAMPLES)]
+    Retina(Box<RetinaArgs>),
     /// List the built-in light sources, generators and reference tables
     Sources,
+}
+
+const RETINA_EXAMPLES: &str = "\
+Geometry follows from what the (scaled) spectrum measures, or from --geometry:
+  irradiance at the eye (e.g. --illuminance)   at-eye; add --full-field, --subtense or --size/--distance
+                                               to derive the radiance the eye sees
+  radiance (e.g. --luminance)                  extended; needs --subtense or --size and --distance
+  intensity (e.g. --luminous-intensity)        intensity; needs --distance (optional --incidence, --size)
+  flux (e.g. --luminous-flux)                  flux; needs --distance and --emission isotropic|lambertian
+
+Examples:
+  retidose retina warm-white-led --illuminance \"350 lx\" --full-field --species mouse --pupil dark
+  retidose retina cie:D65 --luminance \"100 cd/m2\" --subtense \"20 deg\" --species human --pupil watson-yellott --age \"25 y\"
+  retidose retina stimulus-460-led --luminous-intensity \"2 cd\" --distance \"200 mm\" --size \"5 mm\" --species human --pupil \"3 mm\"
+  retidose retina --scenario cage.toml --format json";
+
+#[derive(Debug, Args)]
+struct RetinaArgs {
+    /// The source spectrum (as for `retidose spectrum`); or use --scenario
+    #[arg(value_name = "SOURCE", required_unless_present = "scenario", conflicts_with = "scenario")]
+    source: Option<String>,
+    /// A scenario file ([subject], [[source]], [[filter]] tables) instead of the flags
+    #[arg(long, value_name = "FILE")]
+    scenario: Option<String>,
+    #[command(flatten)]
+    scale: ScaleArgs,
+    /// human, mouse or rat
+    #[arg(long, value_name = "SPECIES", required_unless_present = "scenario")]
+    species: Option<String>,
+    /// A diameter ("3 mm") or a rule: dark, light, dilated, watson-yellott, de-groot-gebhard, moon-spencer
+    #[arg(long, value_name = "PUPIL", required_unless_present = "scenario")]
+    pupil: Option<String>,
+    /// at-eye, extended, intensity or flux (default: from the spectrum's measure)
+    #[arg(long, value_name = "GEOMETRY")]
+    geometry: Option<String>,
+    /// Distance from the source to the eye
+    #[arg(long, value_name = "LENGTH")]
+    distance: Option<String>,
+    /// Source diameter
+    #[arg(long, value_name = "LENGTH")]
+    size: Option<String>,
+    /// Full angle subtended by the source
+    #[arg(long, value_name = "ANGLE")]
+    subtense: Option<String>,
+    /// The light fills the field of view evenly (radiance = irradiance / π)
+    #[arg(long)]
+    full_field: bool,
+    /// isotropic or lambertian (flux geometry)
+    #[arg(long, value_name = "EMISSION")]
+    emission: Option<String>,
+    /// Angle from a Lambertian emitter's axis
+    #[arg(long, value_name = "ANGLE")]
+    emission_angle: Option<String>,
+    /// Angle of incidence at the eye
+    #[arg(long, value_name = "ANGLE")]
+    incidence: Option<String>,
+    /// A filter in the path: a transmittance ("0.65") or a transmittance file; repeatable
+    #[arg(long, value_name = "FILTER")]
+    filter: Vec<String>,
+    /// Age of the subject ("32 y"): human media and pupil formulas
+    #[arg(long, value_name = "AGE")]
+    age: Option<String>,
+    /// Eyes viewing (1 or 2), for the Watson & Yellott pupil
+    #[arg(long, value_name = "N")]
+    eyes: Option<u8>,
+    /// Adapting field (full angle) for the Watson & Yellott pupil
+    #[arg(long, value_name = "ANGLE")]
+    field: Option<String>,
+    /// Adapting luminance for pupil formulas, if not the source's
+    #[arg(long, value_name = "LUMINANCE")]
+    adapting_luminance: Option<String>,
+    /// Add light through an unpigmented iris (albino rodents; an approximation)
+    #[arg(long)]
+    albino_iris: bool,
+    /// A user eye-model file (same layout as the built-in ones)
+    #[arg(long, value_name = "FILE")]
+    eye_file: Option<String>,
+    /// Output format
+    #[arg(long, value_enum, default_value_t = Format::Table)]
+    format: Format,
 }
 
 const SPECTRUM_EXAMPLES: &str = "\
@@ -104,6 +190,33 @@ struct ScaleArgs {
     /// Scale to a radiance over the sampled range, e.g. "10 W/m2/sr"
     #[arg(long, value_name = "RADIANCE")]
     radiance: Option<String>,
+    /// Scale to a luminous intensity, e.g. "2 cd" (makes a spectral radiant intensity)
+    #[arg(long, value_name = "INTENSITY")]
+    luminous_intensity: Option<String>,
+    /// Scale to a luminous flux, e.g. "800 lm" (makes a spectral radiant flux)
+    #[arg(long, value_name = "FLUX")]
+    luminous_flux: Option<String>,
+    /// Scale to a radiant flux over the sampled range, e.g. "5 mW"
+    #[arg(long, value_name = "POWER")]
+    radiant_flux: Option<String>,
+}
+
+impl ScaleArgs {
+    /// The one measured value given, as (key, text).
+    fn given(&self) -> Option<(&'static str, &str)> {
+        [
+            ("illuminance", &self.illuminance),
+            ("luminance", &self.luminance),
+            ("irradiance", &self.irradiance),
+            ("photon_irradiance", &self.photon_irradiance),
+            ("radiance", &self.radiance),
+            ("luminous_intensity", &self.luminous_intensity),
+            ("luminous_flux", &self.luminous_flux),
+            ("radiant_flux", &self.radiant_flux),
+        ]
+        .into_iter()
+        .find_map(|(k, v)| v.as_deref().map(|v| (k, v)))
+    }
 }
 
 /// Output formats.
@@ -119,24 +232,80 @@ enum Format {
 pub fn run(cli: Cli) -> Result<String> {
     match cli.command {
         Command::Spectrum(args) => spectrum(*args),
+        Command::Retina(args) => retina(*args),
         Command::Sources => Ok(render::sources()),
     }
 }
 
 fn scale_target(a: &ScaleArgs) -> Result<Option<ScaleTarget>> {
-    Ok(Some(if let Some(t) = &a.illuminance {
-        ScaleTarget::Illuminance(units::parse_illuminance(t).context("--illuminance")?)
-    } else if let Some(t) = &a.luminance {
-        ScaleTarget::Luminance(units::parse_luminance(t).context("--luminance")?)
-    } else if let Some(t) = &a.irradiance {
-        ScaleTarget::Irradiance(units::parse_irradiance(t).context("--irradiance")?)
-    } else if let Some(t) = &a.photon_irradiance {
-        ScaleTarget::PhotonIrradiance(units::parse_photon_irradiance(t).context("--photon-irradiance")?)
-    } else if let Some(t) = &a.radiance {
-        ScaleTarget::Radiance(units::parse_radiance(t).context("--radiance")?)
-    } else {
-        return Ok(None);
-    }))
+    a.given()
+        .map(|(k, v)| ScaleTarget::parse(k, v).with_context(|| format!("--{}", k.replace('_', "-"))))
+        .transpose()
+}
+
+fn retina(a: RetinaArgs) -> Result<String> {
+    let scenario = match &a.scenario {
+        Some(file) => {
+            let text = std::fs::read_to_string(file).with_context(|| format!("cannot read {file}"))?;
+            parse_scenario(&text, file, Path::new(file).parent())?
+        }
+        None => {
+            let (key, value) = match a.scale.given() {
+                Some((k, v)) => (Some(k), Some(v.to_string())),
+                None => (None, None),
+            };
+            let mut src = SourceSpec {
+                spectrum: a.source.clone().unwrap_or_default(),
+                geometry: a.geometry.clone(),
+                distance: a.distance.clone(),
+                size: a.size.clone(),
+                subtense: a.subtense.clone(),
+                full_field: a.full_field,
+                emission: a.emission.clone(),
+                emission_angle: a.emission_angle.clone(),
+                incidence: a.incidence.clone(),
+                ..SourceSpec::default()
+            };
+            match key {
+                Some("illuminance") => src.illuminance = value,
+                Some("luminance") => src.luminance = value,
+                Some("irradiance") => src.irradiance = value,
+                Some("photon_irradiance") => src.photon_irradiance = value,
+                Some("radiance") => src.radiance = value,
+                Some("luminous_intensity") => src.luminous_intensity = value,
+                Some("luminous_flux") => src.luminous_flux = value,
+                Some("radiant_flux") => src.radiant_flux = value,
+                _ => {}
+            }
+            let subject = SubjectSpec {
+                species: a.species.clone().unwrap_or_default(),
+                pupil: a.pupil.clone(),
+                age: a.age.clone(),
+                eyes: a.eyes,
+                field: a.field.clone(),
+                adapting_luminance: a.adapting_luminance.clone(),
+                albino_iris: a.albino_iris,
+                eye_file: a.eye_file.clone(),
+            };
+            let filters: Vec<FilterSpec> = a
+                .filter
+                .iter()
+                .map(|f| {
+                    if units::parse_number(f).is_ok() {
+                        FilterSpec { transmittance: Some(f.clone()), ..FilterSpec::default() }
+                    } else {
+                        FilterSpec { file: Some(f.clone()), ..FilterSpec::default() }
+                    }
+                })
+                .collect();
+            build(&subject, &[src], &filters, None)?
+        }
+    };
+    let r = assess_retina(&scenario)?;
+    Ok(match a.format {
+        Format::Table => render::retina_table(&r),
+        Format::Json => render::retina_json(&r),
+    })
 }
 
 fn spectrum(args: SpectrumArgs) -> Result<String> {

@@ -146,6 +146,26 @@ impl Curve {
         (lo < hi).then_some((lo, hi))
     }
 
+    /// `op(self, other)` on the union of both curves' nodes inside their overlap (each linearly
+    /// interpolated): the product of a spectrum and a filter, or the sum of two spectra.
+    /// `None` if the curves do not overlap.
+    pub fn combined(&self, other: &Curve, op: impl Fn(f64, f64) -> f64) -> Option<Curve> {
+        let (lo, hi) = self.overlap_nm(other)?;
+        let mut w: Vec<f64> = self
+            .wavelength_nm
+            .iter()
+            .chain(&other.wavelength_nm)
+            .copied()
+            .filter(|&x| x > lo && x < hi)
+            .collect();
+        w.push(lo);
+        w.push(hi);
+        w.sort_by(f64::total_cmp);
+        w.dedup();
+        let v = w.iter().map(|&x| op(self.at(x).unwrap_or(0.0), other.at(x).unwrap_or(0.0))).collect();
+        Curve::new(w, v).ok()
+    }
+
     /// Values at the nodes of `grid_nm` (linear interpolation).
     ///
     /// # Errors
@@ -297,6 +317,16 @@ mod tests {
         let a = curve(&[380.0, 385.0, 390.0, 400.0, 450.0], &[1.0, 2.0, 0.5, 3.0, 1.0]);
         let b = curve(&[381.0, 382.5, 397.0, 420.0, 440.0, 460.0], &[0.2, 0.4, 0.9, 0.1, 0.7, 0.3]);
         assert_eq!(a.product_integral(&b), b.product_integral(&a));
+    }
+
+    #[test]
+    fn combining_uses_the_overlap_on_the_union_grid() {
+        let a = curve(&[400.0, 500.0, 600.0], &[1.0, 2.0, 3.0]);
+        let b = curve(&[450.0, 550.0, 700.0], &[10.0, 10.0, 10.0]);
+        let p = a.combined(&b, |x, y| x * y).unwrap();
+        assert_eq!(p.wavelength_nm(), &[450.0, 500.0, 550.0, 600.0]);
+        assert_eq!(p.values(), &[15.0, 20.0, 25.0, 30.0]);
+        assert!(a.combined(&curve(&[700.0, 800.0], &[1.0, 1.0]), |x, y| x + y).is_none());
     }
 
     #[test]

@@ -26,14 +26,22 @@
 #![forbid(unsafe_code)]
 
 pub mod alpha_opic;
+pub mod catch;
 pub mod constants;
 pub mod curve;
 pub mod data;
 pub mod error;
+pub mod eye;
+pub mod filter;
 pub mod generate;
+pub mod geometry;
 pub mod lens;
 pub mod photometry;
+pub mod pupil;
 pub mod quantity;
+pub mod retina;
+pub mod retina_report;
+pub mod retina_scenario;
 pub mod reader;
 pub mod scale;
 pub mod source;

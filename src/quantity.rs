@@ -23,7 +23,7 @@ use uom::si::{Dimension, ISQ, Quantity, SI};
 use uom::typenum::{N1, N2, N3, P1, P2, P3, Z0};
 
 pub use uom::si::f64::{
-    Area, HeatFluxDensity as Irradiance, Illuminance, Length, Luminance, LuminousIntensity, Power, Ratio,
+    Angle, Area, Frequency, HeatFluxDensity as Irradiance, Illuminance, Length, Luminance, LuminousIntensity, Power, Ratio,
     SolidAngle, ThermodynamicTemperature, Time,
 };
 
@@ -81,6 +81,10 @@ kind!(
     /// Kind marker for luminous efficacy of radiation.
     EfficacyKind
 );
+kind!(
+    /// Kind marker for retinal illuminance (separates trolands from candelas).
+    RetinalIlluminanceKind
+);
 
 /// Radiance, W·m⁻²·sr⁻¹.
 pub type Radiance = Quantity<ISQ<Z0, P1, N3, Z0, Z0, Z0, Z0, dyn RadianceKind>, SI<f64>, f64>;
@@ -102,6 +106,22 @@ pub type LuminousEfficacy = Quantity<ISQ<N2, N1, P3, Z0, Z0, Z0, P1, dyn Efficac
 /// Radiant power per luminous flux, W·lm⁻¹: the unit of CIE S 026 α-opic efficacy of luminous
 /// radiation (ELR, tabulated in mW·lm⁻¹).
 pub type RadiantPerLuminous = Quantity<ISQ<P2, P1, N3, Z0, Z0, Z0, N1, dyn EfficacyKind>, SI<f64>, f64>;
+
+/// Retinal illuminance. Its SI value is in cd (1 troland = 1 cd·m⁻² × 1 mm² = 10⁻⁶ cd); build
+/// and read it in trolands with [`trolands`] and [`as_td_f64`].
+pub type RetinalIlluminance =
+    Quantity<ISQ<Z0, Z0, Z0, Z0, Z0, Z0, P1, dyn RetinalIlluminanceKind>, SI<f64>, f64>;
+
+/// A retinal illuminance of `td` trolands (CIE e-ILV 17-22-038: luminance in cd/m² × pupil
+/// area in mm²).
+pub fn trolands(td: f64) -> RetinalIlluminance {
+    RetinalIlluminance::from_si(td * 1e-6)
+}
+
+/// A retinal illuminance in trolands.
+pub fn as_td_f64(r: RetinalIlluminance) -> f64 {
+    r.si() * 1e6
+}
 
 /// Builds a wavelength from nanometres.
 pub fn nm(value_nm: f64) -> Length {

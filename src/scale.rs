@@ -11,7 +11,9 @@ use uom::si::luminance::candela_per_square_meter;
 
 use crate::error::{Error, Result};
 use crate::photometry::photopic;
-use crate::quantity::{Illuminance, Irradiance, Luminance, PhotonIrradiance, Radiance, SiValue};
+use crate::quantity::{
+    Illuminance, Irradiance, Luminance, LuminousFlux, LuminousIntensity, PhotonIrradiance, Power, Radiance, SiValue,
+};
 use crate::spectrum::{Measure, Spectrum};
 
 /// A measured quantity to scale a spectrum to.
@@ -27,6 +29,12 @@ pub enum ScaleTarget {
     PhotonIrradiance(PhotonIrradiance),
     /// Radiance over the spectrum's sampled range (gives a spectral radiance).
     Radiance(Radiance),
+    /// Luminous intensity of a small source (gives a spectral radiant intensity).
+    LuminousIntensity(LuminousIntensity),
+    /// Luminous flux of a lamp (gives a spectral radiant flux).
+    LuminousFlux(LuminousFlux),
+    /// Radiant flux over the sampled range (gives a spectral radiant flux).
+    RadiantFlux(Power),
 }
 
 impl ScaleTarget {
@@ -37,6 +45,8 @@ impl ScaleTarget {
                 Measure::Irradiance
             }
             ScaleTarget::Luminance(_) | ScaleTarget::Radiance(_) => Measure::Radiance,
+            ScaleTarget::LuminousIntensity(_) => Measure::Intensity,
+            ScaleTarget::LuminousFlux(_) | ScaleTarget::RadiantFlux(_) => Measure::Flux,
         }
     }
 
@@ -48,6 +58,9 @@ impl ScaleTarget {
             ScaleTarget::Irradiance(q) => format!("irradiance {} W/m²", q.si()),
             ScaleTarget::PhotonIrradiance(q) => format!("photon irradiance {:e} photons·s⁻¹·m⁻²", q.si()),
             ScaleTarget::Radiance(q) => format!("radiance {} W·m⁻²·sr⁻¹", q.si()),
+            ScaleTarget::LuminousIntensity(q) => format!("luminous intensity {} cd", q.si()),
+            ScaleTarget::LuminousFlux(q) => format!("luminous flux {} lm", q.si()),
+            ScaleTarget::RadiantFlux(q) => format!("radiant flux {} W", q.si()),
         }
     }
 
@@ -58,7 +71,49 @@ impl ScaleTarget {
             ScaleTarget::Irradiance(q) => q.si(),
             ScaleTarget::PhotonIrradiance(q) => q.si(),
             ScaleTarget::Radiance(q) => q.si(),
+            ScaleTarget::LuminousIntensity(q) => q.si(),
+            ScaleTarget::LuminousFlux(q) => q.si(),
+            ScaleTarget::RadiantFlux(q) => q.si(),
         }
+    }
+}
+
+/// The names of the measured quantities a spectrum can be scaled to, as used for keys and flags.
+pub const SCALE_KEYS: [&str; 8] = [
+    "illuminance",
+    "luminance",
+    "irradiance",
+    "photon_irradiance",
+    "radiance",
+    "luminous_intensity",
+    "luminous_flux",
+    "radiant_flux",
+];
+
+impl ScaleTarget {
+    /// Parses `value` (with its unit) as the quantity named by `key` (one of [`SCALE_KEYS`];
+    /// dashes and underscores are the same).
+    ///
+    /// # Errors
+    /// [`crate::ErrorKind::InvalidInput`] for an unknown key, or the unit parser's error.
+    pub fn parse(key: &str, value: &str) -> Result<ScaleTarget> {
+        use crate::units as u;
+        Ok(match key.replace('-', "_").as_str() {
+            "illuminance" => ScaleTarget::Illuminance(u::parse_illuminance(value)?),
+            "luminance" => ScaleTarget::Luminance(u::parse_luminance(value)?),
+            "irradiance" => ScaleTarget::Irradiance(u::parse_irradiance(value)?),
+            "photon_irradiance" => ScaleTarget::PhotonIrradiance(u::parse_photon_irradiance(value)?),
+            "radiance" => ScaleTarget::Radiance(u::parse_radiance(value)?),
+            "luminous_intensity" => ScaleTarget::LuminousIntensity(u::parse_luminous_intensity(value)?),
+            "luminous_flux" => ScaleTarget::LuminousFlux(u::parse_luminous_flux(value)?),
+            "radiant_flux" => ScaleTarget::RadiantFlux(u::parse_power(value)?),
+            _ => {
+                return Err(Error::input(format!(
+                    "unknown measured quantity '{key}'; expected one of {}",
+                    SCALE_KEYS.join(", ")
+                )));
+            }
+        })
     }
 }
 
@@ -83,8 +138,13 @@ pub fn scale_to(spectrum: &Spectrum, target: ScaleTarget) -> Result<Spectrum> {
         return Err(Error::input(format!("scaling target {} must be a finite value ≥ 0", target.describe())));
     }
     let current = match target {
-        ScaleTarget::Illuminance(_) | ScaleTarget::Luminance(_) => photopic(spectrum).raw,
-        ScaleTarget::Irradiance(_) | ScaleTarget::Radiance(_) => spectrum.to_energy().integral(),
+        ScaleTarget::Illuminance(_)
+        | ScaleTarget::Luminance(_)
+        | ScaleTarget::LuminousIntensity(_)
+        | ScaleTarget::LuminousFlux(_) => photopic(spectrum).raw,
+        ScaleTarget::Irradiance(_) | ScaleTarget::Radiance(_) | ScaleTarget::RadiantFlux(_) => {
+            spectrum.to_energy().integral()
+        }
         ScaleTarget::PhotonIrradiance(_) => spectrum.to_photon().integral(),
     };
     if current.is_nan() || current <= 0.0 {

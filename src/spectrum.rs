@@ -347,6 +347,40 @@ impl Spectrum {
         Ok(Spectrum { curve: self.curve.scaled(factor), measure, ..self.clone() })
     }
 
+    /// The same measure, basis, label and provenance with other sampled values (already
+    /// checked to be ≥ 0 by the caller's construction).
+    #[must_use]
+    pub fn with_curve(&self, curve: Curve) -> Spectrum {
+        Spectrum { curve, ..self.clone() }
+    }
+
+    /// The sum of spectra of one measure and basis, over the range all of them cover (each
+    /// linearly interpolated on the union of their nodes).
+    ///
+    /// # Errors
+    /// [`crate::ErrorKind::InvalidInput`] for an empty list or mixed measures or bases;
+    /// [`crate::ErrorKind::NotCovered`] if the spectra have no common range.
+    pub fn sum(parts: &[Spectrum]) -> Result<Spectrum> {
+        let first = parts.first().ok_or_else(|| Error::input("nothing to add: no spectra"))?;
+        let mut curve = first.curve.clone();
+        for p in &parts[1..] {
+            if p.measure != first.measure || p.basis != first.basis {
+                return Err(Error::input(format!(
+                    "cannot add '{}' (spectral {}) to '{}' (spectral {})",
+                    p.label,
+                    p.measure.name(),
+                    first.label,
+                    first.measure.name()
+                )));
+            }
+            curve = curve.combined(&p.curve, |a, b| a + b).ok_or_else(|| {
+                Error::not_covered(format!("'{}' does not overlap the other sources in wavelength", p.label))
+            })?;
+        }
+        let label = parts.iter().map(|p| p.label.as_str()).collect::<Vec<_>>().join(" + ");
+        Ok(Spectrum { curve, label, provenance: None, ..first.clone() })
+    }
+
     /// The spectrum linearly interpolated at `grid_nm`.
     ///
     /// # Errors

@@ -6,7 +6,8 @@
 
 use crate::error::{Error, Result};
 use crate::quantity::{
-    Illuminance, Irradiance, Length, Luminance, PhotonIrradiance, Radiance, SiValue, ThermodynamicTemperature,
+    Angle, Area, Illuminance, Irradiance, Length, Luminance, LuminousFlux, LuminousIntensity, PhotonIrradiance,
+    Power, Radiance, SiValue, ThermodynamicTemperature, Time,
 };
 
 /// One unit: its accepted ASCII spellings (after normalisation) and its size in SI units.
@@ -67,6 +68,48 @@ const PHOTON_IRRADIANCE: &[Unit] = &[
         to_si: 1e4,
     },
     Unit { spellings: &["umol/m2/s", "µmol/m2/s", "umol*m-2*s-1", "µmol*m-2*s-1"], to_si: 1e-6 * AVOGADRO },
+];
+
+const LUMINOUS_INTENSITY: &[Unit] = &[
+    Unit { spellings: &["cd", "candela", "candelas"], to_si: 1.0 },
+    Unit { spellings: &["mcd", "millicandela", "millicandelas"], to_si: 1e-3 },
+    Unit { spellings: &["kcd", "kilocandela", "kilocandelas"], to_si: 1e3 },
+];
+
+const LUMINOUS_FLUX: &[Unit] = &[
+    Unit { spellings: &["lm", "lumen", "lumens"], to_si: 1.0 },
+    Unit { spellings: &["klm", "kilolumen", "kilolumens"], to_si: 1e3 },
+    Unit { spellings: &["mlm", "millilumen", "millilumens"], to_si: 1e-3 },
+];
+
+const POWER: &[Unit] = &[
+    Unit { spellings: &["W", "watt", "watts"], to_si: 1.0 },
+    Unit { spellings: &["mW", "milliwatt", "milliwatts"], to_si: 1e-3 },
+    Unit { spellings: &["uW", "µW", "microwatt", "microwatts"], to_si: 1e-6 },
+];
+
+const AREA: &[Unit] = &[
+    Unit { spellings: &["um2", "µm2", "square micrometre", "square micrometer"], to_si: 1e-12 },
+    Unit { spellings: &["mm2", "square millimetre", "square millimeter"], to_si: 1e-6 },
+    Unit { spellings: &["cm2"], to_si: 1e-4 },
+    Unit { spellings: &["m2", "square metre", "square meter"], to_si: 1.0 },
+];
+
+const ANGLE: &[Unit] = &[
+    Unit { spellings: &["rad", "radian", "radians"], to_si: 1.0 },
+    Unit { spellings: &["mrad", "milliradian", "milliradians"], to_si: 1e-3 },
+    Unit { spellings: &["deg", "°", "degree", "degrees"], to_si: std::f64::consts::PI / 180.0 },
+    Unit { spellings: &["arcmin", "'"], to_si: std::f64::consts::PI / 180.0 / 60.0 },
+];
+
+const TIME: &[Unit] = &[
+    Unit { spellings: &["s", "sec", "second", "seconds"], to_si: 1.0 },
+    Unit { spellings: &["ms", "millisecond", "milliseconds"], to_si: 1e-3 },
+    Unit { spellings: &["min", "minute", "minutes"], to_si: 60.0 },
+    Unit { spellings: &["h", "hr", "hour", "hours"], to_si: 3600.0 },
+    Unit { spellings: &["d", "day", "days"], to_si: 86_400.0 },
+    // A year of 365.25 days (the Julian year, IAU): ages are given in years.
+    Unit { spellings: &["y", "yr", "year", "years"], to_si: 31_557_600.0 },
 ];
 
 /// Turns the usual typographic forms into the ASCII spellings of the tables.
@@ -140,6 +183,66 @@ fn parse_in(text: &str, what: &str, units: &[Unit]) -> Result<f64> {
             accepted(units)
         ))),
     }
+}
+
+/// Parses a luminous intensity such as `"120 cd"`.
+///
+/// # Errors
+/// As [`parse_length`].
+pub fn parse_luminous_intensity(text: &str) -> Result<LuminousIntensity> {
+    parse_in(text, "luminous intensity", LUMINOUS_INTENSITY).map(LuminousIntensity::from_si)
+}
+
+/// Parses a luminous flux such as `"800 lm"`.
+///
+/// # Errors
+/// As [`parse_length`].
+pub fn parse_luminous_flux(text: &str) -> Result<LuminousFlux> {
+    parse_in(text, "luminous flux", LUMINOUS_FLUX).map(LuminousFlux::from_si)
+}
+
+/// Parses a radiant flux (power) such as `"5 mW"`.
+///
+/// # Errors
+/// As [`parse_length`].
+pub fn parse_power(text: &str) -> Result<Power> {
+    parse_in(text, "radiant flux", POWER).map(Power::from_si)
+}
+
+/// Parses an area such as `"2.4 µm²"`, `"2.4 um2"` or `"12.6 mm2"`.
+///
+/// # Errors
+/// As [`parse_length`].
+pub fn parse_area(text: &str) -> Result<Area> {
+    parse_in(text, "area", AREA).map(Area::from_si)
+}
+
+/// Parses a plain number such as `"0.35"` (a ratio, a density); a unit is an error.
+///
+/// # Errors
+/// [`crate::ErrorKind::InvalidInput`] if the text is not a number alone.
+pub fn parse_number(text: &str) -> Result<f64> {
+    let (value, unit) = split_number(text)?;
+    if !unit.is_empty() {
+        return Err(Error::input(format!("'{text}' should be a plain number without a unit")));
+    }
+    Ok(value)
+}
+
+/// Parses a plane angle such as `"10 deg"`, `"10°"`, `"0.011 rad"` or `"1.7 mrad"`.
+///
+/// # Errors
+/// As [`parse_length`].
+pub fn parse_angle(text: &str) -> Result<Angle> {
+    parse_in(text, "angle", ANGLE).map(Angle::from_si)
+}
+
+/// Parses a duration or an age such as `"30 s"`, `"12 h"` or `"32 y"`.
+///
+/// # Errors
+/// As [`parse_length`].
+pub fn parse_time(text: &str) -> Result<Time> {
+    parse_in(text, "time", TIME).map(Time::from_si)
 }
 
 /// Parses a length such as `"555 nm"`, `"1.2 m"`, `"2.5 mm"`.
@@ -219,6 +322,14 @@ mod tests {
         assert!((parse_photon_irradiance("1 µmol/m2/s").unwrap().si() - 6.022_140_76e17).abs() < 1e3);
         assert_eq!(parse_temperature("2856 K").unwrap().si(), 2856.0);
         assert_eq!(parse_irradiance("-2e-3 W/m2").unwrap().si(), -2e-3);
+        assert!((parse_angle("180 deg").unwrap().si() - std::f64::consts::PI).abs() < 1e-15);
+        assert!((parse_angle("90°").unwrap().si() - std::f64::consts::FRAC_PI_2).abs() < 1e-15);
+        assert_eq!(parse_angle("11 mrad").unwrap().si(), 0.011);
+        assert_eq!(parse_time("12 h").unwrap().si(), 43_200.0);
+        assert!((parse_area("2.4 µm²").unwrap().si() - 2.4e-12).abs() < 1e-24);
+        assert_eq!(parse_number("0.35").unwrap(), 0.35);
+        assert!(parse_number("0.35 mm").is_err());
+        assert_eq!(parse_time("2 y").unwrap().si(), 63_115_200.0);
     }
 
     #[test]

@@ -3,6 +3,11 @@
 use std::fmt::Write;
 
 use retidose::alpha_opic::action_spectra;
+use retidose::catch::ReceptorCatch;
+use retidose::quantity::as_td_f64;
+use retidose::retina_report::RetinaReport;
+use uom::si::illuminance::lux;
+use uom::si::length::millimeter;
 use retidose::data::TABLE_FILES;
 use retidose::photometry::{Photometric, PhotometricResult};
 use retidose::quantity::SiValue;
@@ -253,4 +258,243 @@ pub fn sources() -> String {
         );
     }
     o
+}
+
+fn photometric_short(p: &PhotometricResult) -> String {
+    match p.value {
+        Some(v) => {
+            let (x, u) = v.si_with_unit();
+            format!("{} {u}{}", num(x), coverage_text(&p.coverage))
+        }
+        None => "—".to_string(),
+    }
+}
+
+fn pair(v: (f64, &str)) -> String {
+    format!("{} {}", num(v.0), v.1)
+}
+
+/// The terminal table for a retinal assessment.
+pub fn retina_table(r: &RetinaReport) -> String {
+    let mut o = String::new();
+    let _ = writeln!(o, "retidose retina: {} eye", r.species.name());
+    let _ = writeln!(
+        o,
+        "  pupil             {} mm, {} [{}]",
+        num(r.pupil.diameter.get::<millimeter>()),
+        r.pupil.basis,
+        r.pupil.status
+    );
+    let _ = writeln!(o, "  collecting area   {} mm²", num(r.collecting_area_mm2));
+    let _ = writeln!(o, "  nodal distance    {} mm", num(r.nodal_distance.get::<millimeter>()));
+    if !r.filters.is_empty() {
+        let _ = writeln!(o, "  filters           {}", r.filters.join(", "));
+    }
+    for (i, s) in r.sources.iter().enumerate() {
+        let _ = writeln!(o, "\nSource {}: {}", i + 1, s.label);
+        let _ = writeln!(o, "  at the cornea     {}", photometric_short(&s.illuminance));
+        let _ = writeln!(o, "                    {}", pair(s.irradiance.si_with_unit()));
+        let _ = writeln!(o, "                    {}", pair(s.photon_irradiance.si_with_unit()));
+        match (&s.radiance, &s.luminance) {
+            (Some(l), Some(lv)) => {
+                let derived = if s.radiance_derived { " (derived)" } else { "" };
+                let _ = writeln!(o, "  seen radiance     {}{derived}", pair(l.si_with_unit()));
+                let _ = writeln!(o, "  seen luminance    {}", photometric_short(lv));
+            }
+            _ => {
+                let _ = writeln!(o, "  seen radiance     not known");
+            }
+        }
+        if let Some(a) = s.subtense {
+            let _ = writeln!(o, "  subtense          {} mrad ({}°)", num(a.si() * 1e3), num(a.si().to_degrees()));
+        }
+        for n in &s.notes {
+            let _ = writeln!(o, "  note              {n}");
+        }
+        match &s.retinal {
+            None => {
+                let _ = writeln!(o, "  retina            not assessed: the radiance the eye sees is not known");
+            }
+            Some(ret) => {
+                let (e, eu) = ret.irradiance.si_with_unit();
+                let (q, _) = ret.photon_irradiance.si_with_unit();
+                let _ = writeln!(o, "  retina            {} {eu}, {} photons·µm⁻²·s⁻¹", num(e), num(q * 1e-12));
+                let t = &ret.trolands;
+                let _ = writeln!(
+                    o,
+                    "  trolands          photopic {} td, scotopic {} td",
+                    num(as_td_f64(t.photopic)),
+                    num(as_td_f64(t.scotopic))
+                );
+                let _ = writeln!(
+                    o,
+                    "                    Stiles–Crawford effective: {} td (Barten 1999), {} td (integral, ρ 0.05 mm⁻²)",
+                    num(as_td_f64(t.photopic_effective_barten)),
+                    num(as_td_f64(t.photopic_effective_integral))
+                );
+                if let Some(sz) = ret.image_size {
+                    let _ = writeln!(o, "  image size        {} µm", num(sz.si() * 1e6));
+                }
+                let _ = writeln!(o, "  photoisomerisations, R*/receptor/s (spectral route)");
+                for c in &ret.catch {
+                    let memo = if c.from_memory.is_empty() {
+                        String::new()
+                    } else {
+                        format!("  [from memory: {}]", c.from_memory.join(", "))
+                    };
+                    let _ = writeln!(
+                        o,
+                        "    {:<8} λmax {:>5} nm  {:>11}{}{memo}",
+                        c.receptor,
+                        num(c.lambda_max_nm),
+                        num(c.rate.si()),
+                        coverage_text(&c.coverage)
+                    );
+                    for t in &c.troland_routes {
+                        let _ = writeln!(
+                            o,
+                            "             troland route {} R*/rod/s per scot td ({}): {}",
+                            num(t.factor),
+                            t.name,
+                            num(t.rate.si())
+                        );
+                    }
+                    if let Some(ratio) = route_spread(c) {
+                        let _ = writeln!(
+                            o,
+                            "             the routes differ by up to {ratio:.1}×: pupil, media and collecting-area assumptions differ"
+                        );
+                    }
+                }
+            }
+        }
+    }
+    let _ = writeln!(o, "\nAll sources at the cornea: {}", photometric_short(&r.total_illuminance));
+    if !r.human_alpha_opic.is_empty() {
+        let _ = writeln!(o, "\nα-opic quantities at the cornea (CIE S 026:2018)");
+        for a in &r.human_alpha_opic {
+            let q = a.quantity.map_or("—".into(), |q| pair(q.si_with_unit()));
+            let edi = a.edi.map_or("—".into(), |e| pair(e.si_with_unit()));
+            let mark = if a.reconstructed { " *reconstructed" } else { "" };
+            let _ = writeln!(o, "  {:<13} {:>24}   EDI {:>12}{mark}{}", a.name, q, edi, coverage_text(&a.coverage));
+        }
+    }
+    if !r.species_opic.is_empty() {
+        let _ = writeln!(
+            o,
+            "\n{} α-opic quantities at the cornea (retidose method by analogy with CIE S 026; not a CIE quantity)",
+            r.species.name()
+        );
+        let _ = writeln!(o, "  {:<11} {:>6}  {:>26}  {:>14}", "channel", "λmax", "photon irradiance", "equiv. D65");
+        for s in &r.species_opic {
+            let _ = writeln!(
+                o,
+                "  {:<11} {:>6}  {:>26}  {:>14}{}",
+                s.channel,
+                format!("{} nm", num(s.lambda_max_nm)),
+                format!("{} photons·m⁻²·s⁻¹", num(s.photon_irradiance.si())),
+                format!("{} lx", num(s.equivalent_daylight.get::<lux>())),
+                coverage_text(&s.coverage)
+            );
+        }
+    }
+    let _ = writeln!(o, "\nNotes");
+    for n in &r.notes {
+        let _ = writeln!(o, "  - {n}");
+    }
+    let _ = writeln!(o, "\n{CAUTION}");
+    o
+}
+
+/// Largest ratio between the spectral route and the troland routes, if they differ by more
+/// than 20 %.
+fn route_spread(c: &ReceptorCatch) -> Option<f64> {
+    let mut rates: Vec<f64> = c.troland_routes.iter().map(|t| t.rate.si()).collect();
+    rates.push(c.rate.si());
+    let max = rates.iter().copied().fold(f64::MIN, f64::max);
+    let min = rates.iter().copied().fold(f64::MAX, f64::min);
+    (rates.len() > 1 && min > 0.0 && max / min > 1.2).then(|| max / min)
+}
+
+fn si_json(v: (f64, &str)) -> Value {
+    json!({ "value": v.0, "unit": v.1 })
+}
+
+/// The JSON document for a retinal assessment (schema `retidose.retina/1`).
+pub fn retina_json(r: &RetinaReport) -> String {
+    let sources: Vec<Value> = r
+        .sources
+        .iter()
+        .map(|s| {
+            json!({
+                "label": s.label,
+                "corneal_irradiance": si_json(s.irradiance.si_with_unit()),
+                "corneal_photon_irradiance": si_json(s.photon_irradiance.si_with_unit()),
+                "corneal_illuminance": photometric_json(&s.illuminance),
+                "seen_radiance": s.radiance.map(|l| si_json(l.si_with_unit())),
+                "seen_luminance": s.luminance.as_ref().map(photometric_json),
+                "radiance_derived": s.radiance_derived,
+                "subtense_rad": s.subtense.map(|a| a.si()),
+                "notes": s.notes,
+                "retina": s.retinal.as_ref().map(|ret| json!({
+                    "irradiance": si_json(ret.irradiance.si_with_unit()),
+                    "photon_irradiance_per_um2_s": ret.photon_irradiance.si_with_unit().0 * 1e-12,
+                    "photopic_td": as_td_f64(ret.trolands.photopic),
+                    "scotopic_td": as_td_f64(ret.trolands.scotopic),
+                    "photopic_effective_td_barten": as_td_f64(ret.trolands.photopic_effective_barten),
+                    "photopic_effective_td_integral": as_td_f64(ret.trolands.photopic_effective_integral),
+                    "image_size_um": ret.image_size.map(|l| l.si() * 1e6),
+                    "catch": ret.catch.iter().map(|c| json!({
+                        "receptor": c.receptor,
+                        "lambda_max_nm": c.lambda_max_nm,
+                        "r_star_per_receptor_per_s": c.rate.si(),
+                        "coverage": coverage_json(&c.coverage),
+                        "from_memory": c.from_memory,
+                        "troland_routes": c.troland_routes.iter().map(|t| json!({
+                            "name": t.name,
+                            "factor_r_star_per_scot_td": t.factor,
+                            "r_star_per_receptor_per_s": t.rate.si(),
+                            "source": t.source,
+                        })).collect::<Vec<_>>(),
+                    })).collect::<Vec<_>>(),
+                })),
+            })
+        })
+        .collect();
+    let doc = json!({
+        "schema": "retidose.retina/1",
+        "species": r.species.name(),
+        "pupil": {
+            "diameter_mm": r.pupil.diameter.get::<millimeter>(),
+            "area_mm2": r.pupil.area_mm2(),
+            "basis": r.pupil.basis,
+            "status": r.pupil.status.name(),
+        },
+        "collecting_area_mm2": r.collecting_area_mm2,
+        "nodal_distance_mm": r.nodal_distance.get::<millimeter>(),
+        "filters": r.filters,
+        "sources": sources,
+        "total_corneal_illuminance": photometric_json(&r.total_illuminance),
+        "human_alpha_opic": r.human_alpha_opic.iter().map(|a| json!({
+            "name": a.name,
+            "quantity": value_json(a.quantity.as_ref().map(|q| q.si_with_unit())),
+            "edi": value_json(a.edi.as_ref().map(|e| e.si_with_unit())),
+            "der": a.der,
+            "reconstructed": a.reconstructed,
+            "coverage": coverage_json(&a.coverage),
+        })).collect::<Vec<_>>(),
+        "species_alpha_opic": r.species_opic.iter().map(|s| json!({
+            "channel": s.channel,
+            "lambda_max_nm": s.lambda_max_nm,
+            "photon_irradiance_per_m2_s": s.photon_irradiance.si(),
+            "equivalent_daylight_lx": s.equivalent_daylight.get::<lux>(),
+            "method": "retidose: lens-filtered Govardovskii template, peak 1, photon basis, relative to CIE D65; not a CIE quantity",
+            "coverage": coverage_json(&s.coverage),
+        })).collect::<Vec<_>>(),
+        "notes": r.notes,
+        "caution": CAUTION,
+    });
+    let mut s = serde_json::to_string_pretty(&doc).unwrap_or_else(|e| format!("{{\"error\": \"{e}\"}}"));
+    s.push('\n');
+    s
 }
