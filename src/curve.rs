@@ -166,6 +166,17 @@ impl Curve {
         Curve::new(w, v).ok()
     }
 
+    /// The sum of two curves over the union of their ranges, each taken as zero outside its own
+    /// range, on the union of their nodes. (Used to add the spectra of several sources, whose
+    /// tabulated ranges may differ; callers report the ranges.)
+    pub fn added_over_union(&self, other: &Curve) -> Curve {
+        let mut w: Vec<f64> = self.wavelength_nm.iter().chain(&other.wavelength_nm).copied().collect();
+        w.sort_by(f64::total_cmp);
+        w.dedup();
+        let v = w.iter().map(|&x| self.at(x).unwrap_or(0.0) + other.at(x).unwrap_or(0.0)).collect();
+        Curve { wavelength_nm: w, value: v }
+    }
+
     /// Values at the nodes of `grid_nm` (linear interpolation).
     ///
     /// # Errors

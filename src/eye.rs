@@ -235,13 +235,16 @@ impl Eye {
     /// [`crate::ErrorKind::InvalidData`] naming `origin` and the key: unknown keys, a value
     /// without its unit, an unknown status or species.
     pub fn from_toml(text: &str, origin: &str) -> Result<Eye> {
-        let raw: RawEye = toml::from_str(text).map_err(|e| Error::data(format!("{origin}: {}", one_line(&e))))?;
+        let raw: RawEye =
+            toml::from_str(text).map_err(|e| Error::data(format!("{origin}: {}", one_line(&e))))?;
         let at = |key: &str| format!("{origin}: key '{key}'");
-        let species = Species::parse(&raw.species).map_err(|e| Error::data(e.context(at("species")).to_string()))?;
+        let species =
+            Species::parse(&raw.species).map_err(|e| Error::data(e.context(at("species")).to_string()))?;
         let length = |p: &RawParam, key: &str| convert(p, key, origin, parse_length);
         let number = |p: &RawParam, key: &str| convert(p, key, origin, parse_number);
-        let media_status = Status::parse(&raw.media.status)
-            .ok_or_else(|| Error::data(format!("{}: unknown status '{}'", at("media.status"), raw.media.status)))?;
+        let media_status = Status::parse(&raw.media.status).ok_or_else(|| {
+            Error::data(format!("{}: unknown status '{}'", at("media.status"), raw.media.status))
+        })?;
         let media = match raw.media.model.as_str() {
             "van-de-kraats-2007" => Media::HumanAge {
                 default_age: parse_time(raw.media.default_age.as_deref().unwrap_or("32 y"))
@@ -249,11 +252,18 @@ impl Eye {
             },
             "cut-off" => {
                 let need = |p: &Option<RawParam>, key: &str| {
-                    p.clone().ok_or_else(|| Error::data(format!("{}: missing for a cut-off media model", at(key))))
+                    p.clone()
+                        .ok_or_else(|| Error::data(format!("{}: missing for a cut-off media model", at(key))))
                 };
                 Media::CutOff {
-                    half_transmission: length(&need(&raw.media.half_transmission, "media.half_transmission")?, "media.half_transmission")?,
-                    edge_width: length(&need(&raw.media.edge_width, "media.edge_width")?, "media.edge_width")?,
+                    half_transmission: length(
+                        &need(&raw.media.half_transmission, "media.half_transmission")?,
+                        "media.half_transmission",
+                    )?,
+                    edge_width: length(
+                        &need(&raw.media.edge_width, "media.edge_width")?,
+                        "media.edge_width",
+                    )?,
                     plateau: number(&need(&raw.media.plateau, "media.plateau")?, "media.plateau")?,
                 }
             }
@@ -276,7 +286,11 @@ impl Eye {
                     peak_optical_density: number(&r.peak_optical_density, &k("peak_optical_density"))?,
                     aperture_area: convert(&r.aperture_area, &k("aperture_area"), origin, parse_area)?,
                     quantum_efficiency: number(&r.quantum_efficiency, &k("quantum_efficiency"))?,
-                    pigment_per_cell: r.pigment_per_cell.as_ref().map(|p| number(p, &k("pigment_per_cell"))).transpose()?,
+                    pigment_per_cell: r
+                        .pigment_per_cell
+                        .as_ref()
+                        .map(|p| number(p, &k("pigment_per_cell")))
+                        .transpose()?,
                 })
             })
             .collect::<Result<Vec<_>>>()?;
@@ -293,7 +307,11 @@ impl Eye {
             media_status,
             media_source: raw.media.source,
             receptors,
-            melanopsin: raw.melanopsin.as_ref().map(|m| length(&m.lambda_max, "melanopsin.lambda_max")).transpose()?,
+            melanopsin: raw
+                .melanopsin
+                .as_ref()
+                .map(|m| length(&m.lambda_max, "melanopsin.lambda_max"))
+                .transpose()?,
             iris: raw
                 .iris
                 .as_ref()
@@ -411,7 +429,9 @@ static EYES: LazyLock<Vec<Eye>> = LazyLock::new(|| {
 
 /// The built-in eye model of `species`.
 pub fn builtin_eye(species: Species) -> &'static Eye {
-    EYES.iter().find(|e| e.species == species).unwrap_or_else(|| panic!("no built-in eye for {}", species.name()))
+    EYES.iter()
+        .find(|e| e.species == species)
+        .unwrap_or_else(|| panic!("no built-in eye for {}", species.name()))
 }
 
 #[cfg(test)]
@@ -444,7 +464,8 @@ mod tests {
         let err = Eye::from_toml(&text, "m.toml").unwrap_err();
         assert!(err.message().contains("m.toml: key 'nodal_distance'"), "{err}");
         assert!(err.message().contains("has no unit"), "{err}");
-        let text = include_str!("data/eyes/mouse.toml").replace("status = \"confirmed\"", "status = \"sure\"");
+        let text =
+            include_str!("data/eyes/mouse.toml").replace("status = \"confirmed\"", "status = \"sure\"");
         assert!(Eye::from_toml(&text, "m.toml").unwrap_err().message().contains("unknown status 'sure'"));
     }
 }

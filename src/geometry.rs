@@ -170,15 +170,16 @@ pub fn corneal(spectrum: &Spectrum, geometry: &Geometry) -> Result<Corneal> {
             None => Ok(None),
         }
     };
-    let small_source = |i_factor: f64, d: f64, incidence: f64, size: Option<Length>, notes: &mut Vec<String>| {
-        let e = spectrum.scaled_as(i_factor * incidence.cos() / (d * d), Measure::Irradiance)?;
-        let alpha = size.map(|s| subtense(s, Length::from_si(d))).transpose()?.map(|a| a.si());
-        if alpha.is_none() {
-            notes.push("radiance not known: give the source size to derive it".to_string());
-        }
-        let radiance = derive(&e, alpha, notes)?;
-        Ok::<_, Error>((e, radiance, alpha))
-    };
+    let small_source =
+        |i_factor: f64, d: f64, incidence: f64, size: Option<Length>, notes: &mut Vec<String>| {
+            let e = spectrum.scaled_as(i_factor * incidence.cos() / (d * d), Measure::Irradiance)?;
+            let alpha = size.map(|s| subtense(s, Length::from_si(d))).transpose()?.map(|a| a.si());
+            if alpha.is_none() {
+                notes.push("radiance not known: give the source size to derive it".to_string());
+            }
+            let radiance = derive(&e, alpha, notes)?;
+            Ok::<_, Error>((e, radiance, alpha))
+        };
     let (irradiance, radiance, alpha, derived) = match geometry {
         Geometry::Intensity { distance, incidence, size } => {
             require(spectrum, Measure::Intensity, "intensity")?;
@@ -248,13 +249,18 @@ mod tests {
     use crate::units::{parse_angle, parse_length};
 
     fn flat(measure: Measure, v: f64) -> Spectrum {
-        Spectrum::new(Curve::new(vec![400.0, 700.0], vec![v, v]).unwrap(), measure, Basis::Energy, "flat").unwrap()
+        Spectrum::new(Curve::new(vec![400.0, 700.0], vec![v, v]).unwrap(), measure, Basis::Energy, "flat")
+            .unwrap()
     }
 
     #[test]
     fn impossible_geometry_is_rejected_with_the_allowed_range() {
         let i = flat(Measure::Intensity, 1.0);
-        let g = Geometry::Intensity { distance: parse_length("-1 m").unwrap(), incidence: Angle::from_si(0.0), size: None };
+        let g = Geometry::Intensity {
+            distance: parse_length("-1 m").unwrap(),
+            incidence: Angle::from_si(0.0),
+            size: None,
+        };
         assert!(corneal(&i, &g).unwrap_err().message().contains("must be above 0 m"));
         let g = Geometry::Intensity {
             distance: parse_length("1 m").unwrap(),

@@ -19,6 +19,7 @@ use std::f64::consts::PI;
 use crate::error::{Error, Result};
 use crate::eye::{Eye, Status};
 use crate::quantity::{Angle, Length, Luminance, SiValue, Time};
+use crate::units::tidy;
 use uom::si::length::millimeter;
 use uom::si::luminance::candela_per_square_meter;
 
@@ -140,7 +141,9 @@ pub fn choose(eye: &Eye, rule: PupilRule, adaptation: &Adaptation) -> Result<Pup
         })
     };
     let formula_only_human = |name: &str| {
-        Error::input(format!("the {name} pupil formula is for human eyes; give a diameter (\"2 mm\") or dark/light/dilated"))
+        Error::input(format!(
+            "the {name} pupil formula is for human eyes; give a diameter (\"2 mm\") or dark/light/dilated"
+        ))
     };
     let (mm, basis, status) = match rule {
         PupilRule::Fixed(d) => (d.get::<millimeter>(), "given".to_string(), Status::Confirmed),
@@ -158,9 +161,11 @@ pub fn choose(eye: &Eye, rule: PupilRule, adaptation: &Adaptation) -> Result<Pup
         PupilRule::DeGrootGebhard if human => {
             (de_groot_gebhard_mm(luminance()?), "de Groot & Gebhard (1952)".into(), Status::Derived)
         }
-        PupilRule::MoonSpencer if human => {
-            (moon_spencer_mm(luminance()?), "Moon & Spencer (1944), as converted by Watson & Yellott (2012)".into(), Status::FromMemory)
-        }
+        PupilRule::MoonSpencer if human => (
+            moon_spencer_mm(luminance()?),
+            "Moon & Spencer (1944), as converted by Watson & Yellott (2012)".into(),
+            Status::FromMemory,
+        ),
         PupilRule::WatsonYellott if human => {
             let field = adaptation.field.ok_or_else(|| {
                 Error::input("the Watson & Yellott pupil formula needs the field size (\"--field 10 deg\")")
@@ -184,8 +189,10 @@ pub fn choose(eye: &Eye, rule: PupilRule, adaptation: &Adaptation) -> Result<Pup
     let max = eye.pupil.maximum.value.get::<millimeter>();
     if !(mm > 0.0 && mm.is_finite()) || mm > max {
         return Err(Error::input(format!(
-            "pupil diameter {mm:.3} mm is outside the range for a {} eye: above 0 and at most {max} mm",
-            eye.species.name()
+            "pupil diameter {} mm is outside the range for a {} eye: above 0 and at most {} mm",
+            tidy(mm),
+            eye.species.name(),
+            tidy(max)
         )));
     }
     Ok(Pupil { diameter: Length::new::<millimeter>(mm), basis, status })

@@ -23,8 +23,8 @@ use uom::si::{Dimension, ISQ, Quantity, SI};
 use uom::typenum::{N1, N2, N3, P1, P2, P3, Z0};
 
 pub use uom::si::f64::{
-    Angle, Area, Frequency, HeatFluxDensity as Irradiance, Illuminance, Length, Luminance, LuminousIntensity, Power, Ratio,
-    SolidAngle, ThermodynamicTemperature, Time,
+    Angle, Area, Frequency, HeatFluxDensity as Irradiance, Illuminance, Length, Luminance, LuminousIntensity,
+    Power, Ratio, SolidAngle, ThermodynamicTemperature, Time,
 };
 
 /// Build a quantity from, and read it in, coherent SI units.

@@ -93,7 +93,10 @@ pub fn retinal_irradiance(
     let geometric = area_mm2 / (f_mm * f_mm);
     let energy = radiance.to_energy();
     let curve = energy.curve().map(|w, v| v * eye.media_transmittance(w, age) * geometric);
-    Ok(energy.with_curve(curve).scaled_as(1.0, Measure::Irradiance)?.with_label(format!("retina ({})", radiance.label())))
+    Ok(energy
+        .with_curve(curve)
+        .scaled_as(1.0, Measure::Irradiance)?
+        .with_label(format!("retina ({})", radiance.label())))
 }
 
 /// Size of the retinal image of a source of full angle `subtense_rad`: 2 f tan(α/2)

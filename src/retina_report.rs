@@ -142,13 +142,16 @@ pub fn assess_retina(s: &RetinaScenario) -> Result<RetinaReport> {
             _ => Some(x),
         });
     let adaptation = Adaptation {
-        luminance: s.adapting_luminance.or(brightest.map(|b| Luminance::new::<uom::si::luminance::candela_per_square_meter>(b.0))),
+        luminance: s
+            .adapting_luminance
+            .or(brightest.map(|b| Luminance::new::<uom::si::luminance::candela_per_square_meter>(b.0))),
         field: s.field.or(brightest.and_then(|b| b.1)),
         age: s.age,
         eyes: s.eyes,
     };
     let pupil = choose(eye, s.pupil, &adaptation)?;
     let area = collecting_area_mm2(eye, &pupil, s.albino_iris);
+    let human = eye.species == Species::Human;
     let mut notes = Vec::new();
     let mut sources = Vec::new();
     for (src, c) in s.sources.iter().zip(&cornea) {
@@ -158,8 +161,12 @@ pub fn assess_retina(s: &RetinaScenario) -> Result<RetinaReport> {
                 let td = trolands_of(l, &pupil);
                 let catch = receptor_catch(l, eye, area, s.age, as_td_f64(td.scotopic));
                 Some(Retinal {
-                    irradiance: spectral.radiometric_total().ok_or_else(|| Error::input("retinal spectrum has no scale"))?,
-                    photon_irradiance: spectral.photon_total().ok_or_else(|| Error::input("retinal spectrum has no scale"))?,
+                    irradiance: spectral
+                        .radiometric_total()
+                        .ok_or_else(|| Error::input("retinal spectrum has no scale"))?,
+                    photon_irradiance: spectral
+                        .photon_total()
+                        .ok_or_else(|| Error::input("retinal spectrum has no scale"))?,
                     spectral_irradiance: spectral,
                     trolands: td,
                     image_size: c.subtense.map(|a| image_size(eye, a.si())),
@@ -170,8 +177,14 @@ pub fn assess_retina(s: &RetinaScenario) -> Result<RetinaReport> {
         };
         sources.push(SourceAtEye {
             label: src.spectrum.label().to_string(),
-            irradiance: c.irradiance.radiometric_total().ok_or_else(|| Error::input("corneal spectrum has no scale"))?,
-            photon_irradiance: c.irradiance.photon_total().ok_or_else(|| Error::input("corneal spectrum has no scale"))?,
+            irradiance: c
+                .irradiance
+                .radiometric_total()
+                .ok_or_else(|| Error::input("corneal spectrum has no scale"))?,
+            photon_irradiance: c
+                .irradiance
+                .photon_total()
+                .ok_or_else(|| Error::input("corneal spectrum has no scale"))?,
             illuminance: photopic(&c.irradiance),
             radiance: c.radiance.as_ref().and_then(Spectrum::radiometric_total),
             luminance: c.radiance.as_ref().map(photopic),
@@ -182,10 +195,38 @@ pub fn assess_retina(s: &RetinaScenario) -> Result<RetinaReport> {
         });
     }
     let total = Spectrum::sum(&cornea.iter().map(|c| c.irradiance.clone()).collect::<Vec<_>>())?;
+    let ranges: Vec<(f64, f64)> = cornea.iter().map(|c| c.irradiance.range_nm()).collect();
+    if ranges.windows(2).any(|w| w[0] != w[1]) {
+        notes.push(format!(
+            "the sources' spectra cover different ranges ({}); the total takes each source as emitting nothing outside \
+             its own range",
+            cornea
+                .iter()
+                .map(|c| format!("{} {}–{} nm", c.irradiance.label(), c.irradiance.range_nm().0, c.irradiance.range_nm().1))
+                .collect::<Vec<_>>()
+                .join("; ")
+        ));
+    }
     if s.sources.len() > 1 {
         notes.push(
             "corneal quantities add over the sources; retinal quantities are per source, because the images \
              of different sources fall on different parts of the retina"
+                .to_string(),
+        );
+    }
+    if sources.iter().any(|x| x.retinal.is_some()) {
+        notes.push(
+            "R* rates are for dark-adapted, unbleached pigment; bleaching lowers them at high levels and is not \
+             modelled here"
+                .to_string(),
+        );
+    }
+    let saturating =
+        sources.iter().filter_map(|x| x.retinal.as_ref()).any(|r| as_td_f64(r.trolands.scotopic) > 1000.0);
+    if human && saturating {
+        notes.push(
+            "above about 3 log scotopic trolands human rods saturate (common practice, no source): the rod rate is \
+             a photon count, not a signal"
                 .to_string(),
         );
     }
@@ -207,7 +248,6 @@ pub fn assess_retina(s: &RetinaScenario) -> Result<RetinaReport> {
                 .to_string(),
         );
     }
-    let human = eye.species == Species::Human;
     if !human {
         notes.push(
             "rodent α-opic quantities are retidose's method (lens-filtered Govardovskii templates, peak 1, photon \

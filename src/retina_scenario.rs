@@ -186,18 +186,25 @@ pub fn place(spec: &SourceSpec, base: Option<&Path>) -> Result<PlacedSource> {
             }
         },
     };
-    let missing = |key: &str| Error::input(format!("source '{}' with {kind} geometry needs '{key}'", spec.spectrum));
+    let missing =
+        |key: &str| Error::input(format!("source '{}' with {kind} geometry needs '{key}'", spec.spectrum));
     let geometry = match kind.as_str() {
         "at-eye" => {
             let field = match (spec.full_field, sub, size, distance) {
                 (true, None, None, _) => Some(Field::FullField),
                 (true, _, _, _) => {
-                    return Err(Error::input("give either full_field or a subtense (or size and distance), not both"));
+                    return Err(Error::input(
+                        "give either full_field or a subtense (or size and distance), not both",
+                    ));
                 }
                 (false, Some(a), None, _) => Some(Field::Subtense(a)),
                 (false, None, Some(s), Some(d)) => Some(Field::Subtense(subtense(s, d)?)),
-                (false, None, Some(_), None) => return Err(Error::input("a source size needs its 'distance'")),
-                (false, Some(_), Some(_), _) => return Err(Error::input("give either 'subtense' or 'size', not both")),
+                (false, None, Some(_), None) => {
+                    return Err(Error::input("a source size needs its 'distance'"));
+                }
+                (false, Some(_), Some(_), _) => {
+                    return Err(Error::input("give either 'subtense' or 'size', not both"));
+                }
                 (false, None, None, _) => None,
             };
             Geometry::AtEye { field }
@@ -215,7 +222,9 @@ pub fn place(spec: &SourceSpec, base: Option<&Path>) -> Result<PlacedSource> {
             };
             Geometry::Extended { subtense: a }
         }
-        "intensity" => Geometry::Intensity { distance: distance.ok_or_else(|| missing("distance"))?, incidence, size },
+        "intensity" => {
+            Geometry::Intensity { distance: distance.ok_or_else(|| missing("distance"))?, incidence, size }
+        }
         "flux" => {
             let emission = match spec.emission.as_deref().ok_or_else(|| missing("emission"))? {
                 "isotropic" => Emission::Isotropic,
@@ -327,7 +336,8 @@ pub fn build(
 /// the line (for syntax and unknown keys) or the key, and what would be right.
 pub fn parse_scenario(text: &str, origin: &str, base: Option<&Path>) -> Result<RetinaScenario> {
     let raw: RawScenario = toml::from_str(text).map_err(|e| {
-        let msg: Vec<String> = e.to_string().lines().map(|l| l.trim().to_string()).filter(|l| !l.is_empty()).collect();
+        let msg: Vec<String> =
+            e.to_string().lines().map(|l| l.trim().to_string()).filter(|l| !l.is_empty()).collect();
         Error::data(format!("{origin}: {}", msg.join(" ")))
     })?;
     build(&raw.subject, &raw.source, &raw.filter, base).map_err(|e| e.context(origin))

@@ -12,7 +12,8 @@ use uom::si::luminance::candela_per_square_meter;
 use crate::error::{Error, Result};
 use crate::photometry::photopic;
 use crate::quantity::{
-    Illuminance, Irradiance, Luminance, LuminousFlux, LuminousIntensity, PhotonIrradiance, Power, Radiance, SiValue,
+    Illuminance, Irradiance, Luminance, LuminousFlux, LuminousIntensity, PhotonIrradiance, Power, Radiance,
+    SiValue,
 };
 use crate::spectrum::{Measure, Spectrum};
 

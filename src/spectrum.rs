@@ -354,12 +354,12 @@ impl Spectrum {
         Spectrum { curve, ..self.clone() }
     }
 
-    /// The sum of spectra of one measure and basis, over the range all of them cover (each
-    /// linearly interpolated on the union of their nodes).
+    /// The sum of spectra of one measure and basis over the union of their ranges, each source
+    /// taken as emitting nothing outside its own tabulated range (on the union of their nodes).
+    /// Callers should say so when the ranges differ.
     ///
     /// # Errors
-    /// [`crate::ErrorKind::InvalidInput`] for an empty list or mixed measures or bases;
-    /// [`crate::ErrorKind::NotCovered`] if the spectra have no common range.
+    /// [`crate::ErrorKind::InvalidInput`] for an empty list or mixed measures or bases.
     pub fn sum(parts: &[Spectrum]) -> Result<Spectrum> {
         let first = parts.first().ok_or_else(|| Error::input("nothing to add: no spectra"))?;
         let mut curve = first.curve.clone();
@@ -373,9 +373,7 @@ impl Spectrum {
                     first.measure.name()
                 )));
             }
-            curve = curve.combined(&p.curve, |a, b| a + b).ok_or_else(|| {
-                Error::not_covered(format!("'{}' does not overlap the other sources in wavelength", p.label))
-            })?;
+            curve = curve.added_over_union(&p.curve);
         }
         let label = parts.iter().map(|p| p.label.as_str()).collect::<Vec<_>>().join(" + ");
         Ok(Spectrum { curve, label, provenance: None, ..first.clone() })

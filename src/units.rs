@@ -6,8 +6,8 @@
 
 use crate::error::{Error, Result};
 use crate::quantity::{
-    Angle, Area, Illuminance, Irradiance, Length, Luminance, LuminousFlux, LuminousIntensity, PhotonIrradiance,
-    Power, Radiance, SiValue, ThermodynamicTemperature, Time,
+    Angle, Area, Illuminance, Irradiance, Length, Luminance, LuminousFlux, LuminousIntensity,
+    PhotonIrradiance, Power, Radiance, SiValue, ThermodynamicTemperature, Time,
 };
 
 /// One unit: its accepted ASCII spellings (after normalisation) and its size in SI units.
@@ -207,6 +207,16 @@ pub fn parse_luminous_flux(text: &str) -> Result<LuminousFlux> {
 /// As [`parse_length`].
 pub fn parse_power(text: &str) -> Result<Power> {
     parse_in(text, "radiant flux", POWER).map(Power::from_si)
+}
+
+/// A number for messages: rounded to 9 significant digits, so 9.000000000000002 reads 9.
+pub fn tidy(v: f64) -> String {
+    if v == 0.0 || !v.is_finite() {
+        return format!("{v}");
+    }
+    let digits = 8 - v.abs().log10().floor() as i32;
+    let scale = 10f64.powi(digits);
+    format!("{}", (v * scale).round() / scale)
 }
 
 /// Parses an area such as `"2.4 µm²"`, `"2.4 um2"` or `"12.6 mm2"`.

@@ -211,3 +211,174 @@ fn kind_override_applies_to_files_only() {
     assert_eq!(v["source"]["measure"], "irradiance");
     retidose().args(["spectrum", "cie:A", "--kind", "irradiance"]).assert().code(2);
 }
+
+#[test]
+fn retina_for_a_mouse_cage_reports_catch_and_species_alpha_opic() {
+    let v = json(&[
+        "retina",
+        "warm-white-led",
+        "--illuminance",
+        "350 lx",
+        "--full-field",
+        "--species",
+        "mouse",
+        "--pupil",
+        "dark",
+    ]);
+    assert_eq!(v["schema"], "retidose.retina/1");
+    assert_eq!(v["species"], "mouse");
+    let src = &v["sources"][0];
+    assert_eq!(src["radiance_derived"], true);
+    let catch = src["retina"]["catch"].as_array().unwrap();
+    let names: Vec<&str> = catch.iter().map(|c| c["receptor"].as_str().unwrap()).collect();
+    assert_eq!(names, ["rod", "m-cone", "uv-cone"]);
+    assert!(catch.iter().all(|c| c["r_star_per_receptor_per_s"].as_f64().unwrap() > 0.0));
+    let opic = v["species_alpha_opic"].as_array().unwrap();
+    assert_eq!(opic.len(), 4);
+    assert!(opic[0]["method"].as_str().unwrap().contains("not a CIE quantity"));
+    assert!(v["notes"].as_array().unwrap().iter().any(|n| n.as_str().unwrap().contains("from memory")));
+}
+
+#[test]
+fn retina_for_a_human_shows_both_rod_routes_and_trolands() {
+    let v = json(&[
+        "retina",
+        "cie:D65",
+        "--luminance",
+        "100 cd/m2",
+        "--subtense",
+        "20 deg",
+        "--species",
+        "human",
+        "--pupil",
+        "3 mm",
+    ]);
+    let ret = &v["sources"][0]["retina"];
+    assert!((ret["photopic_td"].as_f64().unwrap() - 100.0 * std::f64::consts::PI * 2.25).abs() < 1e-6);
+    let rod = &ret["catch"][0];
+    assert_eq!(rod["receptor"], "rod");
+    assert_eq!(rod["troland_routes"].as_array().unwrap().len(), 2);
+    assert_eq!(v["human_alpha_opic"].as_array().unwrap().len(), 5);
+    assert!(ret["image_size_um"].as_f64().unwrap() > 5000.0);
+}
+
+#[test]
+fn retina_without_a_known_radiance_says_what_is_not_assessed() {
+    retidose()
+        .args([
+            "retina",
+            "neutral-white-led",
+            "--illuminance",
+            "300 lx",
+            "--species",
+            "rat",
+            "--pupil",
+            "light",
+        ])
+        .assert()
+        .success()
+        .stdout(predicate::str::contains("not assessed: the radiance the eye sees is not known"));
+}
+
+#[test]
+fn retina_rejects_impossible_geometry_and_pupils() {
+    let base = ["retina", "stimulus-460-led", "--luminous-intensity", "2 cd", "--species", "human"];
+    retidose()
+        .args(base)
+        .args(["--distance=-2 m", "--pupil", "3 mm"])
+        .assert()
+        .code(2)
+        .stderr(predicate::str::contains("must be above 0 m"));
+    retidose()
+        .args(base)
+        .args(["--distance", "0.2 m", "--pupil", "12 mm"])
+        .assert()
+        .code(2)
+        .stderr(predicate::str::contains("at most 9 mm"));
+    retidose()
+        .args([
+            "retina",
+            "cie:D65",
+            "--luminance",
+            "100 cd/m2",
+            "--subtense",
+            "200 deg",
+            "--species",
+            "human",
+            "--pupil",
+            "3 mm",
+        ])
+        .assert()
+        .code(2)
+        .stderr(predicate::str::contains("below π rad"));
+    retidose()
+        .args(base)
+        .args(["--distance", "0.2", "--pupil", "3 mm"])
+        .assert()
+        .code(2)
+        .stderr(predicate::str::contains("has no unit"));
+    retidose()
+        .args([
+            "retina",
+            "warm-white-led",
+            "--illuminance",
+            "300 lx",
+            "--full-field",
+            "--species",
+            "mouse",
+            "--pupil",
+            "watson-yellott",
+        ])
+        .assert()
+        .code(2)
+        .stderr(predicate::str::contains("for human eyes"));
+}
+
+#[test]
+fn retina_scenario_file_with_two_sources_and_a_filter() {
+    let dir = temp_file("wall.csv", "# name: cage wall\n300,0.5\n500,0.8\n800,0.85\n")
+        .parent()
+        .unwrap()
+        .to_path_buf();
+    let scenario = temp_file(
+        "cage.toml",
+        r#"
+[subject]
+species = "mouse"
+pupil = "1.5 mm"
+
+[[source]]
+spectrum = "neutral-white-led"
+illuminance = "200 lx"
+full_field = true
+
+[[source]]
+spectrum = "red-safelight-led"
+irradiance = "0.01 W/m2"
+full_field = true
+
+[[filter]]
+name = "cage wall"
+file = "wall.csv"
+"#,
+    );
+    assert_eq!(scenario.parent().unwrap(), dir);
+    let v = json(&["retina", "--scenario", scenario.to_str().unwrap()]);
+    assert_eq!(v["sources"].as_array().unwrap().len(), 2);
+    assert_eq!(v["filters"][0], "cage wall");
+    let total = v["total_corneal_illuminance"]["value"].as_f64().unwrap();
+    assert!(total > 150.0 && total < 200.0, "{total}");
+    assert!(
+        v["notes"].as_array().unwrap().iter().any(|n| n.as_str().unwrap().contains("cover different ranges"))
+    );
+    let bad = temp_file(
+        "bad.toml",
+        "[subject]\nspecies = \"mouse\"\npupil = \"dark\"\ncolour = 3\n[[source]]\nspectrum = \"cie:A\"\n",
+    );
+    retidose()
+        .args(["retina", "--scenario", bad.to_str().unwrap()])
+        .assert()
+        .code(2)
+        .stderr(predicate::str::contains("bad.toml"))
+        .stderr(predicate::str::contains("colour"));
+}

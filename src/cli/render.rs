@@ -4,18 +4,18 @@ use std::fmt::Write;
 
 use retidose::alpha_opic::action_spectra;
 use retidose::catch::ReceptorCatch;
-use retidose::quantity::as_td_f64;
-use retidose::retina_report::RetinaReport;
-use uom::si::illuminance::lux;
-use uom::si::length::millimeter;
 use retidose::data::TABLE_FILES;
 use retidose::photometry::{Photometric, PhotometricResult};
 use retidose::quantity::SiValue;
+use retidose::quantity::as_td_f64;
 use retidose::reader::read_table;
+use retidose::retina_report::RetinaReport;
 use retidose::source::BUILTIN_LAMPS;
 use retidose::spectrum::{Basis, Coverage};
 use retidose::spectrum_report::SpectrumReport;
 use serde_json::{Value, json};
+use uom::si::illuminance::lux;
+use uom::si::length::millimeter;
 
 /// The caution printed under every report.
 pub const CAUTION: &str = "retidose informs; it does not replace the standards, a qualified optical-radiation \
@@ -306,19 +306,22 @@ pub fn retina_table(r: &RetinaReport) -> String {
             }
         }
         if let Some(a) = s.subtense {
-            let _ = writeln!(o, "  subtense          {} mrad ({}°)", num(a.si() * 1e3), num(a.si().to_degrees()));
+            let _ =
+                writeln!(o, "  subtense          {} mrad ({}°)", num(a.si() * 1e3), num(a.si().to_degrees()));
         }
         for n in &s.notes {
             let _ = writeln!(o, "  note              {n}");
         }
         match &s.retinal {
             None => {
-                let _ = writeln!(o, "  retina            not assessed: the radiance the eye sees is not known");
+                let _ =
+                    writeln!(o, "  retina            not assessed: the radiance the eye sees is not known");
             }
             Some(ret) => {
                 let (e, eu) = ret.irradiance.si_with_unit();
                 let (q, _) = ret.photon_irradiance.si_with_unit();
-                let _ = writeln!(o, "  retina            {} {eu}, {} photons·µm⁻²·s⁻¹", num(e), num(q * 1e-12));
+                let _ =
+                    writeln!(o, "  retina            {} {eu}, {} photons·µm⁻²·s⁻¹", num(e), num(q * 1e-12));
                 let t = &ret.trolands;
                 let _ = writeln!(
                     o,
@@ -376,7 +379,14 @@ pub fn retina_table(r: &RetinaReport) -> String {
             let q = a.quantity.map_or("—".into(), |q| pair(q.si_with_unit()));
             let edi = a.edi.map_or("—".into(), |e| pair(e.si_with_unit()));
             let mark = if a.reconstructed { " *reconstructed" } else { "" };
-            let _ = writeln!(o, "  {:<13} {:>24}   EDI {:>12}{mark}{}", a.name, q, edi, coverage_text(&a.coverage));
+            let _ = writeln!(
+                o,
+                "  {:<13} {:>24}   EDI {:>12}{mark}{}",
+                a.name,
+                q,
+                edi,
+                coverage_text(&a.coverage)
+            );
         }
     }
     if !r.species_opic.is_empty() {
@@ -385,7 +395,11 @@ pub fn retina_table(r: &RetinaReport) -> String {
             "\n{} α-opic quantities at the cornea (retidose method by analogy with CIE S 026; not a CIE quantity)",
             r.species.name()
         );
-        let _ = writeln!(o, "  {:<11} {:>6}  {:>26}  {:>14}", "channel", "λmax", "photon irradiance", "equiv. D65");
+        let _ = writeln!(
+            o,
+            "  {:<11} {:>6}  {:>26}  {:>14}",
+            "channel", "λmax", "photon irradiance", "equiv. D65"
+        );
         for s in &r.species_opic {
             let _ = writeln!(
                 o,
