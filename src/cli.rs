@@ -125,6 +125,10 @@ struct RetinaArgs {
     /// A user eye-model file (same layout as the built-in ones)
     #[arg(long, value_name = "FILE")]
     eye_file: Option<String>,
+    /// Also write the retinal spectral irradiance of each source to this new CSV file
+    /// (W·m⁻²·nm⁻¹ and photons·µm⁻²·s⁻¹·nm⁻¹); an existing file is never overwritten
+    #[arg(long, value_name = "FILE")]
+    retinal_spectrum: Option<String>,
     /// Output format
     #[arg(long, value_enum, default_value_t = Format::Table)]
     format: Format,
@@ -302,6 +306,16 @@ fn retina(a: RetinaArgs) -> Result<String> {
         }
     };
     let r = assess_retina(&scenario)?;
+    if let Some(path) = &a.retinal_spectrum {
+        let csv = render::retinal_spectrum_csv(&r);
+        let mut f = std::fs::OpenOptions::new()
+            .write(true)
+            .create_new(true)
+            .open(path)
+            .with_context(|| format!("--retinal-spectrum {path}: cannot create a new file (an existing file is never overwritten)"))?;
+        std::io::Write::write_all(&mut f, csv.as_bytes())
+            .with_context(|| format!("--retinal-spectrum {path}"))?;
+    }
     Ok(match a.format {
         Format::Table => render::retina_table(&r),
         Format::Json => render::retina_json(&r),

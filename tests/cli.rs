@@ -382,3 +382,32 @@ file = "wall.csv"
         .stderr(predicate::str::contains("bad.toml"))
         .stderr(predicate::str::contains("colour"));
 }
+
+#[test]
+fn retinal_spectrum_is_written_to_a_new_file_and_never_over_an_existing_one() {
+    let out = std::env::temp_dir().join(format!("retidose-cli-{}", std::process::id())).join("retina.csv");
+    let _ = std::fs::remove_file(&out);
+    let args = [
+        "retina",
+        "cie:D65",
+        "--luminance",
+        "100 cd/m2",
+        "--subtense",
+        "20 deg",
+        "--species",
+        "human",
+        "--pupil",
+        "3 mm",
+    ];
+    retidose().args(args).args(["--retinal-spectrum", out.to_str().unwrap()]).assert().success();
+    let text = std::fs::read_to_string(&out).unwrap();
+    assert!(text.contains("wavelength_nm,retinal_irradiance_w_per_m2_nm"));
+    assert!(text.lines().count() > 100);
+    retidose()
+        .args(args)
+        .args(["--retinal-spectrum", out.to_str().unwrap()])
+        .assert()
+        .code(2)
+        .stderr(predicate::str::contains("never overwritten"));
+    assert_eq!(std::fs::read_to_string(&out).unwrap(), text);
+}

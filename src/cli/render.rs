@@ -512,3 +512,20 @@ pub fn retina_json(r: &RetinaReport) -> String {
     s.push('\n');
     s
 }
+
+/// The retinal spectral irradiance of every source with a known radiance, as CSV.
+pub fn retinal_spectrum_csv(r: &RetinaReport) -> String {
+    let mut o = String::from(
+        "# retinal spectral irradiance written by retidose retina\n\
+         source,wavelength_nm,retinal_irradiance_w_per_m2_nm,retinal_photons_per_um2_s_nm\n",
+    );
+    for s in &r.sources {
+        let Some(ret) = &s.retinal else { continue };
+        let e = &ret.spectral_irradiance;
+        let q = e.to_photon();
+        for ((w, v), p) in e.curve().wavelength_nm().iter().zip(e.curve().values()).zip(q.curve().values()) {
+            let _ = writeln!(o, "\"{}\",{w},{v:e},{:e}", s.label.replace('"', "'"), p * 1e-12);
+        }
+    }
+    o
+}
