@@ -280,23 +280,20 @@ fn retina_without_a_known_radiance_says_what_is_not_assessed() {
         .stdout(predicate::str::contains("not assessed: the radiance the eye sees is not known"));
 }
 
+/// Runs retidose with `args` and checks that it fails with exit status 2 and `needle` in stderr.
+fn fails(args: &[&str], needle: &str) {
+    retidose().args(args).assert().code(2).stderr(predicate::str::contains(needle));
+}
+
 #[test]
 fn retina_rejects_impossible_geometry_and_pupils() {
-    let base = ["retina", "stimulus-460-led", "--luminous-intensity", "2 cd", "--species", "human"];
-    retidose()
-        .args(base)
-        .args(["--distance=-2 m", "--pupil", "3 mm"])
-        .assert()
-        .code(2)
-        .stderr(predicate::str::contains("must be above 0 m"));
-    retidose()
-        .args(base)
-        .args(["--distance", "0.2 m", "--pupil", "12 mm"])
-        .assert()
-        .code(2)
-        .stderr(predicate::str::contains("at most 9 mm"));
-    retidose()
-        .args([
+    let led = ["retina", "stimulus-460-led", "--luminous-intensity", "2 cd", "--species", "human"];
+    let with = |extra: &[&'static str]| -> Vec<&'static str> { led.iter().chain(extra).copied().collect() };
+    fails(&with(&["--distance=-2 m", "--pupil", "3 mm"]), "must be above 0 m");
+    fails(&with(&["--distance", "0.2 m", "--pupil", "12 mm"]), "at most 9 mm");
+    fails(&with(&["--distance", "0.2", "--pupil", "3 mm"]), "has no unit");
+    fails(
+        &[
             "retina",
             "cie:D65",
             "--luminance",
@@ -307,18 +304,11 @@ fn retina_rejects_impossible_geometry_and_pupils() {
             "human",
             "--pupil",
             "3 mm",
-        ])
-        .assert()
-        .code(2)
-        .stderr(predicate::str::contains("below π rad"));
-    retidose()
-        .args(base)
-        .args(["--distance", "0.2", "--pupil", "3 mm"])
-        .assert()
-        .code(2)
-        .stderr(predicate::str::contains("has no unit"));
-    retidose()
-        .args([
+        ],
+        "below π rad",
+    );
+    fails(
+        &[
             "retina",
             "warm-white-led",
             "--illuminance",
@@ -328,10 +318,9 @@ fn retina_rejects_impossible_geometry_and_pupils() {
             "mouse",
             "--pupil",
             "watson-yellott",
-        ])
-        .assert()
-        .code(2)
-        .stderr(predicate::str::contains("for human eyes"));
+        ],
+        "for human eyes",
+    );
 }
 
 #[test]

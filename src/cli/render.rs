@@ -215,9 +215,7 @@ pub fn spectrum_json(r: &SpectrumReport) -> String {
         "notes": r.notes,
         "caution": CAUTION,
     });
-    let mut s = serde_json::to_string_pretty(&doc).unwrap_or_else(|e| format!("{{\"error\": \"{e}\"}}"));
-    s.push('\n');
-    s
+    pretty(&doc)
 }
 
 /// The list of built-in sources, generators and reference tables.
@@ -508,9 +506,7 @@ pub fn retina_json(r: &RetinaReport) -> String {
         "notes": r.notes,
         "caution": CAUTION,
     });
-    let mut s = serde_json::to_string_pretty(&doc).unwrap_or_else(|e| format!("{{\"error\": \"{e}\"}}"));
-    s.push('\n');
-    s
+    pretty(&doc)
 }
 
 /// The retinal spectral irradiance of every source with a known radiance, as CSV.
@@ -528,4 +524,11 @@ pub fn retinal_spectrum_csv(r: &RetinaReport) -> String {
         }
     }
     o
+}
+
+/// Pretty JSON with a final newline.
+fn pretty(doc: &Value) -> String {
+    let mut s = serde_json::to_string_pretty(doc).unwrap_or_else(|e| format!("{{\"error\": \"{e}\"}}"));
+    s.push('\n');
+    s
 }
