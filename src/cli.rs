@@ -7,8 +7,11 @@ use std::path::Path;
 use anyhow::{Context, Result, bail};
 use clap::{Args, Parser, Subcommand, ValueEnum};
 use retidose::generate::Grid;
+use retidose::filter::Filter;
+use retidose::limits::{LimitSet, find_set, parse_set};
+use retidose::limits_report::{LimitsRequest, assess_limits};
 use retidose::retina_report::assess_retina;
-use retidose::retina_scenario::{FilterSpec, SourceSpec, SubjectSpec, build, parse_scenario};
+use retidose::retina_scenario::{FilterSpec, SourceSpec, SubjectSpec, build, parse_scenario, place};
 use retidose::scale::{ScaleTarget, scale_to};
 use retidose::source::resolve;
 use retidose::spectrum::{Basis, Measure};
@@ -46,8 +49,146 @@ enum Command {
     /// Corneal and retinal quantities and photoreceptor catch for a human, mouse or rat eye
     #[command(after_help = RETINA_EXAMPLES)]
     Retina(Box<RetinaArgs>),
+    /// Photobiological exposure limits: list the sets, show one, or check a source against one
+    #[command(subcommand)]
+    Limits(LimitsCommand),
     /// List the built-in light sources, generators and reference tables
     Sources,
+}
+
+#[derive(Debug, Subcommand)]
+enum LimitsCommand {
+    /// List the limit sets with document, edition and status counts
+    List,
+    /// Show one limit set: every hazard, band, weighting and limit piece with its status
+    Show {
+        /// Set id (see `retidose limits list`)
+        #[arg(value_name = "SET", required_unless_present = "set_file")]
+        set: Option<String>,
+        /// A user limit-set file instead of a built-in set
+        #[arg(long, value_name = "FILE")]
+        set_file: Option<String>,
+    },
+    /// Check a source at a distance for an exposure duration against a limit set
+    #[command(after_help = LIMITS_EXAMPLES)]
+    Check(Box<CheckArgs>),
+}
+
+const LIMITS_EXAMPLES: &str = "\
+Examples:
+  retidose limits check stimulus-460-led --luminous-intensity \"2 cd\" --distance \"200 mm\" --size \"5 mm\" --for \"8 h\" --classify
+  retidose limits check uva-365-led --irradiance \"0.5 W/m2\" --full-field --for \"1 h\" --set directive-2006-25-ec
+  retidose limits check halogen-3000k --luminance \"2e6 cd/m2\" --size \"10 mm\" --distance \"0.5 m\" --for \"10 s\"";
+
+#[derive(Debug, Args)]
+struct CheckArgs {
+    /// The source spectrum (as for `retidose spectrum`)
+    #[arg(value_name = "SOURCE")]
+    source: String,
+    #[command(flatten)]
+    scale: ScaleArgs,
+    #[command(flatten)]
+    place: PlaceArgs,
+    /// Exposure duration, e.g. "8 h", "100 s"
+    #[arg(long = "for", value_name = "DURATION")]
+    duration: String,
+    /// Limit set id (default: iec62471-2006)
+    #[arg(long, value_name = "SET", default_value = "iec62471-2006")]
+    set: String,
+    /// A user limit-set file instead of a built-in set
+    #[arg(long, value_name = "FILE")]
+    set_file: Option<String>,
+    /// Also evaluate the opt-in hazards (aphakic eyes, infants)
+    #[arg(long)]
+    aphakic: bool,
+    /// Evaluate only this hazard (id as in `retidose limits show`); repeatable
+    #[arg(long, value_name = "HAZARD")]
+    hazard: Vec<String>,
+    /// Classify into IEC 62471 risk groups at 200 mm
+    #[arg(long)]
+    classify: bool,
+    /// With --classify: a lamp for general lighting (assessed where it gives 500 lx, not below 200 mm)
+    #[arg(long, requires = "classify")]
+    general_lighting: bool,
+    /// Output format
+    #[arg(long, value_enum, default_value_t = Format::Table)]
+    format: Format,
+}
+
+/// Where the source is, as seen by the eye (shared by `retina` and `limits check`).
+#[derive(Debug, Args)]
+struct PlaceArgs {
+    /// at-eye, extended, intensity or flux (default: from the spectrum's measure)
+    #[arg(long, value_name = "GEOMETRY")]
+    geometry: Option<String>,
+    /// Distance from the source to the eye
+    #[arg(long, value_name = "LENGTH")]
+    distance: Option<String>,
+    /// Source diameter
+    #[arg(long, value_name = "LENGTH")]
+    size: Option<String>,
+    /// Full angle subtended by the source
+    #[arg(long, value_name = "ANGLE")]
+    subtense: Option<String>,
+    /// The light fills the field of view evenly (radiance = irradiance / π)
+    #[arg(long)]
+    full_field: bool,
+    /// isotropic or lambertian (flux geometry)
+    #[arg(long, value_name = "EMISSION")]
+    emission: Option<String>,
+    /// Angle from a Lambertian emitter's axis
+    #[arg(long, value_name = "ANGLE")]
+    emission_angle: Option<String>,
+    /// Angle of incidence at the eye
+    #[arg(long, value_name = "ANGLE")]
+    incidence: Option<String>,
+    /// A filter in the path: a transmittance ("0.65") or a transmittance file; repeatable
+    #[arg(long, value_name = "FILTER")]
+    filter: Vec<String>,
+}
+
+impl PlaceArgs {
+    fn source_spec(&self, spectrum: &str, scale: &ScaleArgs) -> SourceSpec {
+        let mut src = SourceSpec {
+            spectrum: spectrum.to_string(),
+            geometry: self.geometry.clone(),
+            distance: self.distance.clone(),
+            size: self.size.clone(),
+            subtense: self.subtense.clone(),
+            full_field: self.full_field,
+            emission: self.emission.clone(),
+            emission_angle: self.emission_angle.clone(),
+            incidence: self.incidence.clone(),
+            ..SourceSpec::default()
+        };
+        if let Some((key, value)) = scale.given() {
+            let v = Some(value.to_string());
+            match key {
+                "illuminance" => src.illuminance = v,
+                "luminance" => src.luminance = v,
+                "irradiance" => src.irradiance = v,
+                "photon_irradiance" => src.photon_irradiance = v,
+                "radiance" => src.radiance = v,
+                "luminous_intensity" => src.luminous_intensity = v,
+                "luminous_flux" => src.luminous_flux = v,
+                _ => src.radiant_flux = v,
+            }
+        }
+        src
+    }
+
+    fn filter_specs(&self) -> Vec<FilterSpec> {
+        self.filter
+            .iter()
+            .map(|f| {
+                if units::parse_number(f).is_ok() {
+                    FilterSpec { transmittance: Some(f.clone()), ..FilterSpec::default() }
+                } else {
+                    FilterSpec { file: Some(f.clone()), ..FilterSpec::default() }
+                }
+            })
+            .collect()
+    }
 }
 
 const RETINA_EXAMPLES: &str = "\
@@ -80,33 +221,8 @@ struct RetinaArgs {
     /// A diameter ("3 mm") or a rule: dark, light, dilated, watson-yellott, de-groot-gebhard, moon-spencer
     #[arg(long, value_name = "PUPIL", required_unless_present = "scenario")]
     pupil: Option<String>,
-    /// at-eye, extended, intensity or flux (default: from the spectrum's measure)
-    #[arg(long, value_name = "GEOMETRY")]
-    geometry: Option<String>,
-    /// Distance from the source to the eye
-    #[arg(long, value_name = "LENGTH")]
-    distance: Option<String>,
-    /// Source diameter
-    #[arg(long, value_name = "LENGTH")]
-    size: Option<String>,
-    /// Full angle subtended by the source
-    #[arg(long, value_name = "ANGLE")]
-    subtense: Option<String>,
-    /// The light fills the field of view evenly (radiance = irradiance / π)
-    #[arg(long)]
-    full_field: bool,
-    /// isotropic or lambertian (flux geometry)
-    #[arg(long, value_name = "EMISSION")]
-    emission: Option<String>,
-    /// Angle from a Lambertian emitter's axis
-    #[arg(long, value_name = "ANGLE")]
-    emission_angle: Option<String>,
-    /// Angle of incidence at the eye
-    #[arg(long, value_name = "ANGLE")]
-    incidence: Option<String>,
-    /// A filter in the path: a transmittance ("0.65") or a transmittance file; repeatable
-    #[arg(long, value_name = "FILTER")]
-    filter: Vec<String>,
+    #[command(flatten)]
+    place: PlaceArgs,
     /// Age of the subject ("32 y"): human media and pupil formulas
     #[arg(long, value_name = "AGE")]
     age: Option<String>,
@@ -237,6 +353,12 @@ pub fn run(cli: Cli) -> Result<String> {
     match cli.command {
         Command::Spectrum(args) => spectrum(*args),
         Command::Retina(args) => retina(*args),
+        Command::Limits(LimitsCommand::List) => Ok(render::limit_sets()),
+        Command::Limits(LimitsCommand::Show { set, set_file }) => {
+            let set = load_set(set.as_deref().unwrap_or(""), set_file.as_deref())?;
+            Ok(render::limit_set(&set))
+        }
+        Command::Limits(LimitsCommand::Check(args)) => check(*args),
         Command::Sources => Ok(render::sources()),
     }
 }
@@ -247,6 +369,42 @@ fn scale_target(a: &ScaleArgs) -> Result<Option<ScaleTarget>> {
         .transpose()
 }
 
+fn load_set(id: &str, file: Option<&str>) -> Result<LimitSet> {
+    Ok(match file {
+        Some(f) => {
+            let text = std::fs::read_to_string(f).with_context(|| format!("cannot read the limit set {f}"))?;
+            parse_set(&text, f)?
+        }
+        None => find_set(id)?.clone(),
+    })
+}
+
+fn check(a: CheckArgs) -> Result<String> {
+    let set = load_set(&a.set, a.set_file.as_deref())?;
+    let duration = units::parse_time(&a.duration).context("--for")?;
+    let spec = a.place.source_spec(&a.source, &a.scale);
+    let source = place(&spec, None)?;
+    let filters = a
+        .place
+        .filter
+        .iter()
+        .map(|f| Filter::parse(f))
+        .collect::<std::result::Result<Vec<_>, _>>()?;
+    let report = assess_limits(&LimitsRequest {
+        source: &source,
+        filters: &filters,
+        set: &set,
+        duration,
+        aphakic: a.aphakic,
+        classify: a.classify.then_some(a.general_lighting),
+        only: &a.hazard,
+    })?;
+    Ok(match a.format {
+        Format::Table => render::limits_table(&report),
+        Format::Json => render::limits_json(&report),
+    })
+}
+
 fn retina(a: RetinaArgs) -> Result<String> {
     let scenario = match &a.scenario {
         Some(file) => {
@@ -254,33 +412,7 @@ fn retina(a: RetinaArgs) -> Result<String> {
             parse_scenario(&text, file, Path::new(file).parent())?
         }
         None => {
-            let (key, value) = match a.scale.given() {
-                Some((k, v)) => (Some(k), Some(v.to_string())),
-                None => (None, None),
-            };
-            let mut src = SourceSpec {
-                spectrum: a.source.clone().unwrap_or_default(),
-                geometry: a.geometry.clone(),
-                distance: a.distance.clone(),
-                size: a.size.clone(),
-                subtense: a.subtense.clone(),
-                full_field: a.full_field,
-                emission: a.emission.clone(),
-                emission_angle: a.emission_angle.clone(),
-                incidence: a.incidence.clone(),
-                ..SourceSpec::default()
-            };
-            match key {
-                Some("illuminance") => src.illuminance = value,
-                Some("luminance") => src.luminance = value,
-                Some("irradiance") => src.irradiance = value,
-                Some("photon_irradiance") => src.photon_irradiance = value,
-                Some("radiance") => src.radiance = value,
-                Some("luminous_intensity") => src.luminous_intensity = value,
-                Some("luminous_flux") => src.luminous_flux = value,
-                Some("radiant_flux") => src.radiant_flux = value,
-                _ => {}
-            }
+            let src = a.place.source_spec(a.source.as_deref().unwrap_or_default(), &a.scale);
             let subject = SubjectSpec {
                 species: a.species.clone().unwrap_or_default(),
                 pupil: a.pupil.clone(),
@@ -291,17 +423,7 @@ fn retina(a: RetinaArgs) -> Result<String> {
                 albino_iris: a.albino_iris,
                 eye_file: a.eye_file.clone(),
             };
-            let filters: Vec<FilterSpec> = a
-                .filter
-                .iter()
-                .map(|f| {
-                    if units::parse_number(f).is_ok() {
-                        FilterSpec { transmittance: Some(f.clone()), ..FilterSpec::default() }
-                    } else {
-                        FilterSpec { file: Some(f.clone()), ..FilterSpec::default() }
-                    }
-                })
-                .collect();
+            let filters = a.place.filter_specs();
             build(&subject, &[src], &filters, None)?
         }
     };

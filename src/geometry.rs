@@ -87,6 +87,8 @@ pub struct Corneal {
     pub radiance_derived: bool,
     /// Full angle subtended by the source, if known (`None` for a full field).
     pub subtense: Option<Angle>,
+    /// True when the light fills the field of view (a source larger than any limit's field).
+    pub full_field: bool,
     /// How the radiance was obtained, or why it is not known.
     pub notes: Vec<String>,
 }
@@ -237,6 +239,7 @@ pub fn corneal(spectrum: &Spectrum, geometry: &Geometry) -> Result<Corneal> {
         radiance,
         radiance_derived: derived,
         subtense: alpha.map(Angle::from_si),
+        full_field: matches!(geometry, Geometry::AtEye { field: Some(Field::FullField) }),
         notes,
     })
 }

@@ -36,6 +36,8 @@ pub mod filter;
 pub mod generate;
 pub mod geometry;
 pub mod lens;
+pub mod limits;
+pub mod limits_report;
 pub mod photometry;
 pub mod pupil;
 pub mod quantity;

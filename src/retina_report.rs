@@ -20,6 +20,8 @@ pub struct PlacedSource {
     pub spectrum: Spectrum,
     /// Where it is and how it radiates.
     pub geometry: Geometry,
+    /// Its diameter, when given (lets an extended source be placed at another distance).
+    pub size: Option<Length>,
 }
 
 /// Everything needed to assess one viewing situation.

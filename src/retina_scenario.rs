@@ -249,7 +249,7 @@ pub fn place(spec: &SourceSpec, base: Option<&Path>) -> Result<PlacedSource> {
             )));
         }
     };
-    Ok(PlacedSource { spectrum, geometry })
+    Ok(PlacedSource { spectrum, geometry, size })
 }
 
 /// Builds a scenario from its parts.

@@ -264,6 +264,7 @@ fn scenario(species: Species, lux: &str, filters: Vec<Filter>) -> RetinaScenario
         sources: vec![PlacedSource {
             spectrum: s,
             geometry: Geometry::AtEye { field: Some(Field::FullField) },
+            size: None,
         }],
         filters,
         pupil: PupilRule::DarkAdapted,

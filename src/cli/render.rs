@@ -4,6 +4,8 @@ use std::fmt::Write;
 
 use retidose::alpha_opic::action_spectra;
 use retidose::catch::ReceptorCatch;
+use retidose::limits::{Form, LimitQuantity, LimitSet, TMax, Verdict, builtin_sets, builtin_weightings};
+use retidose::limits_report::{LIMITS_CAUTION, LimitsAssessment};
 use retidose::data::TABLE_FILES;
 use retidose::photometry::{Photometric, PhotometricResult};
 use retidose::quantity::SiValue;
@@ -531,4 +533,263 @@ fn pretty(doc: &Value) -> String {
     let mut s = serde_json::to_string_pretty(doc).unwrap_or_else(|e| format!("{{\"error\": \"{e}\"}}"));
     s.push('\n');
     s
+}
+
+fn t_max_text(t: &Option<TMax>) -> String {
+    match t {
+        None => "—".to_string(),
+        Some(TMax::Seconds(s)) => duration_text(*s),
+        Some(TMax::NotReached(up)) if up.is_infinite() => "not reached (no time limit)".to_string(),
+        Some(TMax::NotReached(up)) => format!("not reached up to {}", duration_text(*up)),
+        Some(TMax::BelowRange(s)) => format!("< {}", duration_text(*s)),
+    }
+}
+
+fn duration_text(s: f64) -> String {
+    if s >= 3600.0 {
+        format!("{} h", num(s / 3600.0))
+    } else if s >= 60.0 {
+        format!("{} min", num(s / 60.0))
+    } else {
+        format!("{} s", num(s))
+    }
+}
+
+/// The list of limit sets.
+pub fn limit_sets() -> String {
+    let mut o = String::new();
+    let _ = writeln!(o, "{LIMITS_CAUTION}\n");
+    for s in builtin_sets() {
+        let counts: Vec<String> = s.status_counts().iter().map(|(k, n)| format!("{n} {k}")).collect();
+        let _ = writeln!(o, "{}", s.id);
+        let _ = writeln!(o, "  {}", s.document);
+        let _ = writeln!(o, "  edition: {}; errata: {}", s.edition, s.errata);
+        let _ = writeln!(o, "  {} hazards; limit pieces: {}  ({})", s.hazards.len(), counts.join(", "), s.origin);
+    }
+    let _ = writeln!(o, "\nWeighting functions");
+    for w in builtin_weightings() {
+        let (a, b) = w.curve.range_nm();
+        let _ = writeln!(o, "  {:<7} {} ({a}–{b} nm): {} [{}]", w.id, w.name, w.source, w.status);
+    }
+    o
+}
+
+/// One limit set in full.
+pub fn limit_set(s: &LimitSet) -> String {
+    let mut o = String::new();
+    let _ = writeln!(o, "{LIMITS_CAUTION}\n");
+    let _ = writeln!(o, "{} — {}", s.id, s.document);
+    let _ = writeln!(o, "  edition: {}\n  clauses: {}\n  errata: {}", s.edition, s.clauses, s.errata);
+    for n in &s.notes {
+        let _ = writeln!(o, "  note: {n}");
+    }
+    for h in &s.hazards {
+        let w = h.weighting.as_deref().unwrap_or("unweighted");
+        let kind = match h.quantity {
+            LimitQuantity::Irradiance => "irradiance",
+            LimitQuantity::Radiance => "radiance",
+        };
+        let _ = writeln!(o, "\n{} ({}) — {}, {}–{} nm, {w}, {kind}", h.name, h.id, h.clause, h.band_nm.0, h.band_nm.1);
+        for c in &h.conditions {
+            let _ = writeln!(o, "  applies: {c:?}");
+        }
+        if let Some(c) = h.c_alpha {
+            let _ = writeln!(
+                o,
+                "  C_α = α limited to {}–{} mrad{}",
+                num(c.min_rad * 1e3),
+                num(c.max_rad * 1e3),
+                if c.in_mrad { " (coefficients with C_α in mrad)" } else { " (coefficients with C_α in rad)" }
+            );
+        }
+        for f in &h.field_of_view {
+            let _ = writeln!(
+                o,
+                "  field of view {}–{} s: {} rad × t^{}",
+                num(f.from_s),
+                num(f.to_s),
+                num(f.coefficient_rad),
+                f.time_exponent
+            );
+        }
+        for l in &h.limits {
+            let form = match l.form {
+                Form::Dose => "dose",
+                Form::Rate => "rate",
+            };
+            let _ = writeln!(
+                o,
+                "  {}–{} s: {form} ≤ {} × t^{} × C_α^{}  [{}]  {}",
+                num(l.from_s),
+                num(l.to_s),
+                num(l.coefficient),
+                l.time_exponent,
+                l.alpha_exponent,
+                l.status,
+                l.source
+            );
+        }
+        if let Some(b) = h.risk_group_time_bases_s {
+            let _ = writeln!(o, "  risk-group time bases (Exempt, RG1, RG2): {} s, {} s, {} s", num(b[0]), num(b[1]), num(b[2]));
+        }
+    }
+    o
+}
+
+/// The terminal table of a limits check.
+pub fn limits_table(r: &LimitsAssessment) -> String {
+    let mut o = String::new();
+    let _ = writeln!(o, "{LIMITS_CAUTION}\n");
+    let _ = writeln!(o, "retidose limits check: {} against {}", r.source, r.set_id);
+    let _ = writeln!(o, "  document   {}", r.document);
+    let _ = writeln!(o, "  edition    {}; errata: {}", r.edition, r.errata);
+    let _ = writeln!(o, "  duration   {}", duration_text(r.duration.si()));
+    let _ = writeln!(o, "  spectrum   {}–{} nm", r.range_nm.0, r.range_nm.1);
+    for h in &r.hazards {
+        let memo = if h.from_memory.is_empty() { String::new() } else { " [from memory]".to_string() };
+        let _ = writeln!(o, "\n{} — {} ({}–{} nm)", h.name, h.clause, h.band_nm.0, h.band_nm.1);
+        if let Some(q) = h.weighted {
+            let _ = writeln!(o, "  weighted        {} {}", num(q), h.quantity_unit);
+        }
+        if let (Some(a), Some(g)) = (h.averaged, h.field_of_view_rad) {
+            let _ = writeln!(o, "  averaged        {} {} over {} mrad", num(a), h.quantity_unit, num(g * 1e3));
+        }
+        if let Some(c) = h.c_alpha {
+            let _ = writeln!(o, "  C_α             {}", num(c));
+        }
+        if let (Some((x, u)), Some((l, _))) = (h.exposure, h.limit) {
+            let _ = writeln!(o, "  exposure/limit  {} / {} {u}", num(x), num(l));
+        }
+        if let Some(r) = h.ratio {
+            let _ = writeln!(o, "  hazard ratio    {}", num(r));
+        }
+        if let Some(r) = h.lower_bound_ratio {
+            let _ = writeln!(o, "  ratio of the covered part (a lower bound) {}", num(r));
+        }
+        if h.t_max.is_some() {
+            let _ = writeln!(o, "  t_max           {}", t_max_text(&h.t_max));
+        }
+        let _ = writeln!(o, "  verdict         {}{memo}", h.verdict.text());
+        if !h.from_memory.is_empty() {
+            let _ = writeln!(o, "  from memory     {}", h.from_memory.join("; "));
+        }
+        if !h.source.is_empty() {
+            let _ = writeln!(o, "  limit from      {}", h.source);
+        }
+    }
+    match &r.classification {
+        None => {}
+        Some(Err(e)) => {
+            let _ = writeln!(o, "\nRisk group (IEC 62471): not assessed: {e}");
+        }
+        Some(Ok(c)) => {
+            let _ = writeln!(
+                o,
+                "\nRisk group (IEC 62471 cl. 6) at {} mm ({}), {} lx",
+                num(c.distance.si() * 1e3),
+                c.distance_basis,
+                num(c.illuminance_lx)
+            );
+            for g in &c.hazards {
+                let group = g.group.map_or_else(|| g.reason.clone().unwrap_or_default(), |x| x.name().to_string());
+                let ratios: Vec<String> = g.ratios.iter().map(|x| x.map_or("—".into(), num)).collect();
+                let _ = writeln!(o, "  {:<44} {:<8} (ratios at {}/{}/{} s: {})", g.name, group, num(g.time_bases_s[0]), num(g.time_bases_s[1]), num(g.time_bases_s[2]), ratios.join(", "));
+            }
+            let overall = c.overall.map_or("—", |x| x.name());
+            let lb = if c.not_assessed.is_empty() { "" } else { " (lower bound: some hazards not assessed)" };
+            let _ = writeln!(o, "  overall: {overall}{lb}");
+            if let Some(k) = c.blue_efficacy_w_per_lm {
+                let _ = writeln!(o, "  blue-light efficacy K_B,v {} mW/lm; E_thr = 1 W/m² / K_B,v = {} lx", num(k * 1e3), num(1.0 / k));
+            }
+            if let Some(d) = c.threshold_distance {
+                let _ = writeln!(o, "  blue-light group is at most RG1 beyond {} m", num(d.si()));
+            }
+            for n in &c.notes {
+                let _ = writeln!(o, "  note: {n}");
+            }
+        }
+    }
+    let _ = writeln!(o, "\nNotes");
+    for n in &r.notes {
+        let _ = writeln!(o, "  - {n}");
+    }
+    let _ = writeln!(o, "\n{CAUTION}");
+    o
+}
+
+fn t_max_json(t: &Option<TMax>) -> Value {
+    match t {
+        None => Value::Null,
+        Some(TMax::Seconds(s)) => json!({ "kind": "seconds", "seconds": s }),
+        Some(TMax::NotReached(up)) => json!({ "kind": "not-reached", "up_to_s": if up.is_finite() { json!(up) } else { Value::Null } }),
+        Some(TMax::BelowRange(s)) => json!({ "kind": "below-range", "seconds": s }),
+    }
+}
+
+fn verdict_json(v: &Verdict) -> Value {
+    match v {
+        Verdict::Within => json!({ "kind": "within-limit" }),
+        Verdict::Exceeds => json!({ "kind": "exceeds-limit" }),
+        Verdict::NotAssessed(r) => json!({ "kind": "not-assessed", "reason": r }),
+        Verdict::NotApplicable(r) => json!({ "kind": "not-applicable", "reason": r }),
+    }
+}
+
+/// The JSON document of a limits check (schema `retidose.limits/1`).
+pub fn limits_json(r: &LimitsAssessment) -> String {
+    let classification = match &r.classification {
+        None => Value::Null,
+        Some(Err(e)) => json!({ "assessed": false, "reason": e }),
+        Some(Ok(c)) => json!({
+            "assessed": true,
+            "distance_m": c.distance.si(),
+            "distance_basis": c.distance_basis,
+            "illuminance_lx": c.illuminance_lx,
+            "hazards": c.hazards.iter().map(|g| json!({
+                "id": g.id,
+                "name": g.name,
+                "group": g.group.map(|x| x.name()),
+                "reason": g.reason,
+                "not_applicable": g.not_applicable,
+                "ratios": g.ratios,
+                "time_bases_s": g.time_bases_s,
+            })).collect::<Vec<_>>(),
+            "overall": c.overall.map(|x| x.name()),
+            "not_assessed": c.not_assessed,
+            "blue_light_efficacy_w_per_lm": c.blue_efficacy_w_per_lm,
+            "e_thr_lx": c.e_thr_lx,
+            "threshold_distance_m": c.threshold_distance.map(|d| d.si()),
+            "notes": c.notes,
+        }),
+    };
+    let doc = json!({
+        "schema": "retidose.limits/1",
+        "caution": LIMITS_CAUTION,
+        "set": { "id": r.set_id, "document": r.document, "edition": r.edition, "errata": r.errata },
+        "source": r.source,
+        "duration_s": r.duration.si(),
+        "range_nm": [r.range_nm.0, r.range_nm.1],
+        "hazards": r.hazards.iter().map(|h| json!({
+            "id": h.id,
+            "name": h.name,
+            "clause": h.clause,
+            "band_nm": [h.band_nm.0, h.band_nm.1],
+            "weighted": h.weighted.map(|q| json!({ "value": q, "unit": h.quantity_unit })),
+            "averaged": h.averaged.map(|q| json!({ "value": q, "unit": h.quantity_unit })),
+            "field_of_view_rad": h.field_of_view_rad,
+            "c_alpha": h.c_alpha,
+            "exposure": h.exposure.map(|(x, u)| json!({ "value": x, "unit": u })),
+            "limit": h.limit.map(|(x, u)| json!({ "value": x, "unit": u })),
+            "ratio": h.ratio,
+            "lower_bound_ratio": h.lower_bound_ratio,
+            "t_max": t_max_json(&h.t_max),
+            "verdict": verdict_json(&h.verdict),
+            "coverage": h.coverage.as_ref().map(coverage_json),
+            "from_memory": h.from_memory,
+            "limit_source": h.source,
+        })).collect::<Vec<_>>(),
+        "risk_group": classification,
+        "notes": r.notes,
+    });
+    pretty(&doc)
 }

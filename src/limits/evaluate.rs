@@ -1,0 +1,384 @@
+//! Evaluating a source against a limit set.
+//!
+//! For each hazard: the weighted quantity Q = ∫ X_λ w(λ) dλ over the hazard's band (X the
+//! corneal spectral irradiance or the seen spectral radiance), the radiance averaged over the
+//! field of view γ(t) when the source is smaller than it (uniform disc: Q·sin²(α/2)/sin²(γ/2)),
+//! the limit at the exposure duration, the hazard ratio (IEC TR 62471-2 "exposure hazard
+//! value") = exposure ÷ limit, the longest permissible duration t_max and a verdict.
+//!
+//! Doses are time integrals (ICNIRP 2013 errata, Eq. 11): for a schedule of steps the dose is
+//! Σ Q·fᵢ·Δtᵢ and it is compared with the dose the limit allows over the whole duration (a rate
+//! limit c·t^e allows c·t^e·t). For a constant exposure this is the usual comparison.
+//!
+//! Coverage rule: if the spectrum does not cover the hazard's band the verdict is "not
+//! assessed", with the ratio of the covered part as a lower bound, never "within limit".
+
+use std::f64::consts::FRAC_PI_2;
+
+use super::set::{Condition, Form, Hazard, LimitQuantity, LimitSet, Segment};
+use super::weighting::find_weighting;
+use crate::curve::Curve;
+use crate::photometry::photopic;
+use crate::quantity::{SiValue, Time};
+use crate::spectrum::{Coverage, Spectrum};
+
+/// What reaches the eye, for a limits evaluation.
+#[derive(Debug, Clone, Copy)]
+pub struct Exposure<'a> {
+    /// Spectral irradiance at the cornea (or skin).
+    pub irradiance: &'a Spectrum,
+    /// Spectral radiance of what the eye sees, if known.
+    pub radiance: Option<&'a Spectrum>,
+    /// Full angle the source subtends, rad, if known.
+    pub subtense_rad: Option<f64>,
+    /// True when the light fills the field of view.
+    pub full_field: bool,
+    /// Exposure duration.
+    pub duration: Time,
+    /// Relative level over time as (duration s, factor) steps; `None` for a constant exposure.
+    pub schedule: Option<&'a [(f64, f64)]>,
+    /// Evaluate the opt-in hazards (aphakic eyes, infants).
+    pub aphakic: bool,
+}
+
+/// The outcome for one hazard.
+#[derive(Debug, Clone, PartialEq)]
+pub enum Verdict {
+    /// Exposure ≤ limit.
+    Within,
+    /// Exposure > limit.
+    Exceeds,
+    /// The hazard could not be assessed, with the reason.
+    NotAssessed(String),
+    /// The hazard does not apply to this exposure, with the reason.
+    NotApplicable(String),
+}
+
+impl Verdict {
+    /// Short text for reports.
+    pub fn text(&self) -> String {
+        match self {
+            Verdict::Within => "within limit".to_string(),
+            Verdict::Exceeds => "EXCEEDS LIMIT".to_string(),
+            Verdict::NotAssessed(r) => format!("not assessed: {r}"),
+            Verdict::NotApplicable(r) => format!("not applicable: {r}"),
+        }
+    }
+}
+
+/// The longest permissible duration.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub enum TMax {
+    /// The limit is reached after this many seconds.
+    Seconds(f64),
+    /// Not reached anywhere the set gives limits (up to this duration, s; infinite if open).
+    NotReached(f64),
+    /// Already exceeded at the shortest duration the set covers, s.
+    BelowRange(f64),
+}
+
+/// The evaluation of one hazard.
+#[derive(Debug, Clone, PartialEq)]
+pub struct HazardResult {
+    /// Hazard id.
+    pub id: String,
+    /// Hazard name.
+    pub name: String,
+    /// Clause, row or equation.
+    pub clause: String,
+    /// Band, nm.
+    pub band_nm: (f64, f64),
+    /// Unit of the weighted quantity (W/m² or W/m²/sr).
+    pub quantity_unit: &'static str,
+    /// Weighted quantity over the band (covered part), before any averaging.
+    pub weighted: Option<f64>,
+    /// After averaging over the field of view at the exposure duration.
+    pub averaged: Option<f64>,
+    /// Averaging field of view at the exposure duration, rad.
+    pub field_of_view_rad: Option<f64>,
+    /// C_α used, in the document's unit (rad or mrad).
+    pub c_alpha: Option<f64>,
+    /// Exposure in the limit's form at the duration (dose or rate) with its unit.
+    pub exposure: Option<(f64, &'static str)>,
+    /// Limit at the duration, same form and unit.
+    pub limit: Option<(f64, &'static str)>,
+    /// Exposure ÷ limit.
+    pub ratio: Option<f64>,
+    /// Longest permissible duration.
+    pub t_max: Option<TMax>,
+    /// Verdict.
+    pub verdict: Verdict,
+    /// Coverage of the band by the spectrum.
+    pub coverage: Option<Coverage>,
+    /// Ratio from the covered part only, when the band is not fully covered (a lower bound).
+    pub lower_bound_ratio: Option<f64>,
+    /// Parts of this result that rest on values from memory.
+    pub from_memory: Vec<String>,
+    /// Source of the limit piece used.
+    pub source: String,
+}
+
+fn unit(q: LimitQuantity, f: Form) -> &'static str {
+    match (q, f) {
+        (LimitQuantity::Irradiance, Form::Dose) => "J/m²",
+        (LimitQuantity::Irradiance, Form::Rate) => "W/m²",
+        (LimitQuantity::Radiance, Form::Dose) => "J/(m²·sr)",
+        (LimitQuantity::Radiance, Form::Rate) => "W/(m²·sr)",
+    }
+}
+
+fn segment_at(h: &Hazard, t: f64) -> Option<&Segment> {
+    h.limits.iter().enumerate().find_map(|(i, s)| {
+        let inside = (t > s.from_s || (i == 0 && t >= s.from_s)) && t <= s.to_s;
+        inside.then_some(s)
+    })
+}
+
+fn fov_at(h: &Hazard, t: f64) -> Option<f64> {
+    h.field_of_view.iter().enumerate().find_map(|(i, f)| {
+        let inside = (t > f.from_s || (i == 0 && t >= f.from_s)) && t <= f.to_s;
+        inside.then(|| f.coefficient_rad * t.powf(f.time_exponent))
+    })
+}
+
+/// The hazard's weighting limited to its band (a box for an unweighted band).
+fn band_weighting(h: &Hazard) -> Curve {
+    let (lo, hi) = h.band_nm;
+    match h.weighting.as_deref().and_then(find_weighting) {
+        None => Curve::new(vec![lo, hi], vec![1.0, 1.0]).unwrap_or_else(|e| panic!("band box: {e}")),
+        Some(w) => {
+            let mut nodes = vec![lo];
+            nodes.extend(w.curve.wavelength_nm().iter().copied().filter(|&x| x > lo && x < hi));
+            nodes.push(hi);
+            w.curve.resampled(&nodes).unwrap_or_else(|e| panic!("validated band: {e}"))
+        }
+    }
+}
+
+/// Everything about the exposure that does not depend on t.
+struct Prepared {
+    q: f64,
+    alpha: Option<f64>,
+    full_field: bool,
+}
+
+impl Prepared {
+    /// The quantity after field-of-view averaging at duration t.
+    fn averaged(&self, h: &Hazard, t: f64) -> Option<f64> {
+        match (fov_at(h, t), self.alpha) {
+            (None, _) => Some(self.q),
+            (Some(_), _) if self.full_field => Some(self.q),
+            (Some(g), Some(a)) if a < g => {
+                let s = |x: f64| (x.min(FRAC_PI_2 * 2.0) / 2.0).sin().powi(2);
+                Some(self.q * s(a) / s(g))
+            }
+            (Some(_), Some(_)) => Some(self.q),
+            (Some(_), None) => None,
+        }
+    }
+
+    fn c_alpha(&self, h: &Hazard) -> Option<f64> {
+        let c = h.c_alpha?;
+        if self.full_field {
+            return Some(c.value(c.max_rad));
+        }
+        self.alpha.map(|a| c.value(a))
+    }
+
+    /// Dose over duration `t` (with the schedule's factors) and the dose the limit allows.
+    fn ratio<'h>(&self, h: &'h Hazard, t: f64, schedule_factor: f64) -> Option<(f64, f64, &'h Segment)> {
+        let seg = segment_at(h, t)?;
+        let q = self.averaged(h, t)?;
+        let c = if seg.alpha_exponent != 0.0 { self.c_alpha(h)?.powf(seg.alpha_exponent) } else { 1.0 };
+        let el = seg.coefficient * t.powf(seg.time_exponent) * c;
+        let allowed_dose = match seg.form {
+            Form::Dose => el,
+            Form::Rate => el * t,
+        };
+        let dose = q * t * schedule_factor;
+        Some((dose, allowed_dose, seg))
+    }
+}
+
+fn t_max(h: &Hazard, p: &Prepared) -> Option<TMax> {
+    let first = h.limits.first()?.from_s.max(1e-9);
+    let last = h.limits.last()?.to_s;
+    let top = if last.is_finite() { last } else { 1e9 };
+    let r = |t: f64| p.ratio(h, t, 1.0).map(|(d, a, _)| d / a);
+    let steps = ((top / first).log10() * 60.0).ceil().max(1.0) as usize;
+    let mut prev = first;
+    if r(first)? > 1.0 {
+        return Some(TMax::BelowRange(first));
+    }
+    for i in 1..=steps {
+        let t = (first.ln() + (top.ln() - first.ln()) * i as f64 / steps as f64).exp().min(top);
+        if r(t).is_some_and(|x| x > 1.0) {
+            let (mut lo, mut hi) = (prev, t);
+            for _ in 0..60 {
+                let mid = (lo * hi).sqrt();
+                if r(mid).is_some_and(|x| x > 1.0) {
+                    hi = mid;
+                } else {
+                    lo = mid;
+                }
+            }
+            return Some(TMax::Seconds(lo));
+        }
+        prev = t;
+    }
+    Some(TMax::NotReached(last))
+}
+
+/// Evaluates one hazard.
+pub(super) fn assess(h: &Hazard, e: &Exposure<'_>) -> HazardResult {
+    let mut out = HazardResult {
+        id: h.id.clone(),
+        name: h.name.clone(),
+        clause: h.clause.clone(),
+        band_nm: h.band_nm,
+        quantity_unit: unit(h.quantity, Form::Rate),
+        weighted: None,
+        averaged: None,
+        field_of_view_rad: None,
+        c_alpha: None,
+        exposure: None,
+        limit: None,
+        ratio: None,
+        t_max: None,
+        verdict: Verdict::Within,
+        coverage: None,
+        lower_bound_ratio: None,
+        from_memory: Vec::new(),
+        source: String::new(),
+    };
+    if let Some(w) = h.weighting.as_deref().and_then(find_weighting)
+        && w.is_from_memory()
+    {
+        out.from_memory.push(format!("weighting {}", w.name));
+    }
+    if h.status.starts_with("from memory") {
+        out.from_memory.push(format!("hazard definition ({})", h.clause));
+    }
+    let not = |mut o: HazardResult, v: Verdict| {
+        o.verdict = v;
+        o
+    };
+    if h.conditions.contains(&Condition::OptIn) && !e.aphakic {
+        return not(out, Verdict::NotApplicable("opt-in hazard for aphakic eyes and infants (ask for it)".into()));
+    }
+    let spectrum = match h.quantity {
+        LimitQuantity::Irradiance => e.irradiance,
+        LimitQuantity::Radiance => match e.radiance {
+            Some(l) => l,
+            None => {
+                return not(
+                    out,
+                    Verdict::NotAssessed("needs the radiance the eye sees: give the source's size or subtense".into()),
+                );
+            }
+        },
+    };
+    let alpha = e.subtense_rad;
+    for c in &h.conditions {
+        match *c {
+            Condition::SmallerThanRad(r) => match (alpha, e.full_field) {
+                (_, true) => return not(out, Verdict::NotApplicable(format!("the light fills the field (not a source below {r} rad)"))),
+                (Some(a), _) if a >= r => {
+                    return not(out, Verdict::NotApplicable(format!("source subtends {a:.4} rad, not below {r} rad")));
+                }
+                (None, _) => return not(out, Verdict::NotAssessed("needs the source's subtense".into())),
+                _ => {}
+            },
+            Condition::AtLeastRad(r) => match (alpha, e.full_field) {
+                (_, true) => {}
+                (Some(a), _) if a < r => {
+                    return not(out, Verdict::NotApplicable(format!("source subtends {a:.4} rad, below {r} rad")));
+                }
+                (None, _) => return not(out, Verdict::NotAssessed("needs the source's subtense".into())),
+                _ => {}
+            },
+            Condition::LuminanceBelow(limit) => {
+                let lum = e.radiance.map(|l| photopic(l).raw);
+                match lum {
+                    None => return not(out, Verdict::NotAssessed("needs the seen luminance".into())),
+                    Some(l) if l >= limit => {
+                        return not(
+                            out,
+                            Verdict::NotApplicable(format!(
+                                "seen luminance {l:.3} cd/m² is not below {limit} cd/m² (a visible stimulus)"
+                            )),
+                        );
+                    }
+                    _ => {}
+                }
+            }
+            Condition::OptIn => {}
+        }
+    }
+    let w = band_weighting(h);
+    let (q, coverage) = spectrum.to_energy().weighted(&w);
+    out.weighted = Some(q);
+    out.coverage = Some(coverage);
+    let p = Prepared { q, alpha, full_field: e.full_field };
+    let t = e.duration.si();
+    if !(t > 0.0 && t.is_finite()) {
+        return not(out, Verdict::NotAssessed(format!("exposure duration {t} s must be above 0 s")));
+    }
+    let factor = match e.schedule {
+        None => 1.0,
+        Some(steps) => {
+            let total: f64 = steps.iter().map(|s| s.0).sum();
+            if total <= 0.0 {
+                return not(out, Verdict::NotAssessed("the schedule has no duration".into()));
+            }
+            steps.iter().map(|s| s.0 * s.1).sum::<f64>() / total
+        }
+    };
+    out.field_of_view_rad = fov_at(h, t);
+    out.c_alpha = p.c_alpha(h);
+    out.averaged = p.averaged(h, t);
+    let Some((dose, allowed, seg)) = p.ratio(h, t, factor) else {
+        let (a, b) = (h.limits[0].from_s, h.limits[h.limits.len() - 1].to_s);
+        let reason = if segment_at(h, t).is_none() {
+            format!("this set gives no limit for t = {t} s (it covers {a}–{b} s)")
+        } else if h.c_alpha.is_some() && p.c_alpha(h).is_none() {
+            "needs the source's subtense for C_α".to_string()
+        } else {
+            "needs the source's subtense to average over the field of view".to_string()
+        };
+        return not(out, Verdict::NotAssessed(reason));
+    };
+    if seg.status.starts_with("from memory") {
+        out.from_memory.push(format!("limit {}", seg.source));
+    }
+    out.source = seg.source.clone();
+    let ratio = dose / allowed;
+    out.exposure = Some(match seg.form {
+        Form::Dose => (dose, unit(h.quantity, Form::Dose)),
+        Form::Rate => (dose / t, unit(h.quantity, Form::Rate)),
+    });
+    out.limit = Some(match seg.form {
+        Form::Dose => (allowed, unit(h.quantity, Form::Dose)),
+        Form::Rate => (allowed / t, unit(h.quantity, Form::Rate)),
+    });
+    if !coverage.is_complete() {
+        out.lower_bound_ratio = Some(ratio);
+        let (lo, hi) = spectrum.range_nm();
+        return not(
+            out,
+            Verdict::NotAssessed(format!(
+                "spectrum covers {lo}–{hi} nm, hazard needs {}–{} nm",
+                h.band_nm.0, h.band_nm.1
+            )),
+        );
+    }
+    out.ratio = Some(ratio);
+    out.t_max = if e.schedule.is_none() { t_max(h, &p) } else { None };
+    out.verdict = if ratio <= 1.0 { Verdict::Within } else { Verdict::Exceeds };
+    out
+}
+
+/// Evaluates every hazard of `set` for `exposure`.
+pub fn evaluate_set(set: &LimitSet, exposure: &Exposure<'_>) -> Vec<HazardResult> {
+    set.hazards.iter().map(|h| assess(h, exposure)).collect()
+}

@@ -1,0 +1,281 @@
+//! IEC 62471:2006 clause 6 risk groups for continuous-wave lamps.
+//!
+//! A hazard's group is the first of Exempt, RG1, RG2 whose time base (from the set's data,
+//! clause 6.1) the exposure at the assessment distance does not exceed; otherwise RG3. This is
+//! the same as comparing with the Table 6.1 emission limits, which are the clause 4.3 limits at
+//! those time bases with the fields of view of those times. The assessment distance is 200 mm,
+//! or for lamps for general lighting the distance at which the lamp gives 500 lx, not less than
+//! 200 mm (IEC 62471:2006 cl. 5.2).
+//!
+//! The blue-light threshold illuminance E_thr = 1 W·m⁻² / K_B,v (K_B,v the spectrum's blue-light
+//! hazard efficacy of luminous radiation, CIE e-ILV 17-26-061) and the threshold distance follow
+//! IEC TR 62778:2014, which IEC 62471-7:2023 has replaced; the 62471-7 revised exposure times and
+//! assessment distances are not encoded.
+
+use uom::si::length::meter;
+
+use super::evaluate::{Exposure, Verdict, assess};
+use super::set::LimitSet;
+use super::weighting::find_weighting;
+use crate::error::{Error, Result};
+use crate::geometry::{Geometry, corneal, subtense};
+use crate::photometry::photopic;
+use crate::quantity::{Angle, Length, SiValue, Time};
+use crate::spectrum::{Measure, Spectrum};
+
+/// IEC 62471 risk groups, in increasing order of hazard.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, PartialOrd, Ord)]
+pub enum RiskGroup {
+    /// No photobiological hazard.
+    Exempt,
+    /// No hazard under normal behavioural limitations.
+    Rg1,
+    /// No hazard owing to the aversion response to bright light or thermal discomfort.
+    Rg2,
+    /// Hazardous even for momentary or brief exposure.
+    Rg3,
+}
+
+impl RiskGroup {
+    /// The name as IEC 62471 writes it.
+    pub fn name(self) -> &'static str {
+        match self {
+            RiskGroup::Exempt => "Exempt",
+            RiskGroup::Rg1 => "RG1",
+            RiskGroup::Rg2 => "RG2",
+            RiskGroup::Rg3 => "RG3",
+        }
+    }
+}
+
+/// The group of one hazard.
+#[derive(Debug, Clone, PartialEq)]
+pub struct HazardGroup {
+    /// Hazard id.
+    pub id: String,
+    /// Hazard name.
+    pub name: String,
+    /// The group, or `None` when not assessed or not applicable.
+    pub group: Option<RiskGroup>,
+    /// Why there is no group ("not assessed: …" or "not applicable: …").
+    pub reason: Option<String>,
+    /// True when the hazard does not apply (so it does not make the overall group a lower bound).
+    pub not_applicable: bool,
+    /// Exposure ÷ limit at the Exempt, RG1 and RG2 time bases.
+    pub ratios: [Option<f64>; 3],
+    /// Time bases, s.
+    pub time_bases_s: [f64; 3],
+}
+
+/// A source that can be placed at any distance: a spectral intensity (a small source, with an
+/// optional size), or a spectral radiance with its size.
+#[derive(Debug, Clone, PartialEq)]
+pub struct MovableSource {
+    /// Spectral radiant intensity or spectral radiance.
+    pub spectrum: Spectrum,
+    /// Source diameter (required for a radiance).
+    pub size: Option<Length>,
+}
+
+impl MovableSource {
+    fn geometry_at(&self, d: Length) -> Result<Geometry> {
+        match (self.spectrum.measure(), self.size) {
+            (Measure::Intensity, size) => {
+                Ok(Geometry::Intensity { distance: d, incidence: Angle::from_si(0.0), size })
+            }
+            (Measure::Radiance, Some(s)) => Ok(Geometry::Extended { subtense: subtense(s, d)? }),
+            (Measure::Radiance, None) => Err(Error::input("a radiance source needs its size to be placed at a distance")),
+            (m, _) => Err(Error::input(format!(
+                "risk groups need a source that can be moved: a spectral intensity or a radiance with its size, not a spectral {}",
+                m.name()
+            ))),
+        }
+    }
+
+    fn illuminance_at(&self, d: Length) -> Result<f64> {
+        Ok(photopic(&corneal(&self.spectrum, &self.geometry_at(d)?)?.irradiance).raw)
+    }
+}
+
+/// A risk-group classification.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Classification {
+    /// Assessment distance.
+    pub distance: Length,
+    /// Why that distance.
+    pub distance_basis: String,
+    /// Illuminance at the assessment distance, lx.
+    pub illuminance_lx: f64,
+    /// Per hazard.
+    pub hazards: Vec<HazardGroup>,
+    /// The highest group of the assessed hazards.
+    pub overall: Option<RiskGroup>,
+    /// Hazards that could not be grouped (so `overall` is a lower bound when not empty).
+    pub not_assessed: Vec<String>,
+    /// Blue-light hazard efficacy of luminous radiation K_B,v, W/lm.
+    pub blue_efficacy_w_per_lm: Option<f64>,
+    /// Threshold illuminance E_thr = 1 W/m² / K_B,v, lx.
+    pub e_thr_lx: Option<f64>,
+    /// Distance beyond which the blue-light group is at most RG1, when it is worse at the
+    /// assessment distance.
+    pub threshold_distance: Option<Length>,
+    /// Notes.
+    pub notes: Vec<String>,
+}
+
+/// K_B,v = ∫E_λ B(λ) dλ / E_v (W/lm) of a spectrum, over B's 300–700 nm (None if B is not fully
+/// covered or there is no light).
+pub fn blue_light_efficacy(spectrum: &Spectrum) -> Option<f64> {
+    let b = find_weighting("B")?;
+    let e = spectrum.to_energy();
+    let (x, cov) = e.weighted(&b.curve);
+    let v = photopic(&e).raw;
+    (cov.is_complete() && v > 0.0).then(|| x / v)
+}
+
+fn groups_at(set: &LimitSet, source: &MovableSource, d: Length) -> Result<Vec<HazardGroup>> {
+    let c = corneal(&source.spectrum, &source.geometry_at(d)?)?;
+    Ok(set
+        .hazards
+        .iter()
+        .filter_map(|h| h.risk_group_time_bases_s.map(|b| (h, b)))
+        .map(|(h, bases)| {
+            let mut ratios = [None; 3];
+            let mut reason = None;
+            let mut group = None;
+            let mut not_applicable = false;
+            for (i, &t) in bases.iter().enumerate() {
+                let e = Exposure {
+                    irradiance: &c.irradiance,
+                    radiance: c.radiance.as_ref(),
+                    subtense_rad: c.subtense.map(|a| a.si()),
+                    full_field: c.full_field,
+                    duration: Time::from_si(t),
+                    schedule: None,
+                    aphakic: false,
+                };
+                let r = assess(h, &e);
+                match &r.verdict {
+                    Verdict::Within | Verdict::Exceeds => ratios[i] = r.ratio,
+                    other => {
+                        not_applicable = matches!(other, Verdict::NotApplicable(_));
+                        reason = Some(other.text());
+                        break;
+                    }
+                }
+            }
+            if reason.is_none() {
+                group = Some(match ratios {
+                    [Some(r), _, _] if r <= 1.0 => RiskGroup::Exempt,
+                    [_, Some(r), _] if r <= 1.0 => RiskGroup::Rg1,
+                    [_, _, Some(r)] if r <= 1.0 => RiskGroup::Rg2,
+                    _ => RiskGroup::Rg3,
+                });
+            }
+            HazardGroup {
+                id: h.id.clone(),
+                name: h.name.clone(),
+                group,
+                reason,
+                not_applicable,
+                ratios,
+                time_bases_s: bases,
+            }
+        })
+        .collect())
+}
+
+fn worst_blue(groups: &[HazardGroup]) -> Option<RiskGroup> {
+    groups.iter().filter(|g| g.id.starts_with("blue-light")).filter_map(|g| g.group).max()
+}
+
+/// Classifies `source` against the risk-group data of `set`.
+///
+/// # Errors
+/// [`crate::ErrorKind::InvalidInput`] if the set has no risk-group data or the source cannot be
+/// placed at a distance.
+pub fn classify(set: &LimitSet, source: &MovableSource, general_lighting: bool) -> Result<Classification> {
+    if set.hazards.iter().all(|h| h.risk_group_time_bases_s.is_none()) {
+        return Err(Error::input(format!(
+            "the set '{}' has no risk-group time bases; risk groups are defined by IEC 62471 (set iec62471-2006)",
+            set.id
+        )));
+    }
+    let d200 = Length::new::<meter>(0.2);
+    let (distance, basis) = if general_lighting {
+        // Find the distance with 500 lx (illuminance falls with distance), not below 200 mm.
+        if source.illuminance_at(d200)? <= 500.0 {
+            (d200, "general lighting: 500 lx is not reached beyond 200 mm, so 200 mm".to_string())
+        } else {
+            let (mut lo, mut hi) = (0.2f64, 0.4f64);
+            while source.illuminance_at(Length::new::<meter>(hi))? > 500.0 && hi < 1e6 {
+                lo = hi;
+                hi *= 2.0;
+            }
+            for _ in 0..80 {
+                let mid = 0.5 * (lo + hi);
+                if source.illuminance_at(Length::new::<meter>(mid))? > 500.0 {
+                    lo = mid;
+                } else {
+                    hi = mid;
+                }
+            }
+            (Length::new::<meter>(hi), "general lighting: the distance giving 500 lx (IEC 62471 cl. 5.2)".to_string())
+        }
+    } else {
+        (d200, "200 mm (IEC 62471 cl. 5.2)".to_string())
+    };
+    let hazards = groups_at(set, source, distance)?;
+    let overall = hazards.iter().filter_map(|g| g.group).max();
+    let not_assessed: Vec<String> = hazards
+        .iter()
+        .filter(|g| g.group.is_none() && !g.not_applicable)
+        .map(|g| format!("{} ({})", g.name, g.reason.clone().unwrap_or_default()))
+        .collect();
+    let c = corneal(&source.spectrum, &source.geometry_at(distance)?)?;
+    let kbv = blue_light_efficacy(&c.irradiance);
+    let mut threshold_distance = None;
+    let mut notes = vec![
+        "E_thr and the threshold distance follow IEC TR 62778:2014, withdrawn and replaced by IEC 62471-7:2023; \
+         the revised exposure times and assessment distances of IEC 62471-7 are not encoded"
+            .to_string(),
+    ];
+    if worst_blue(&hazards).is_some_and(|g| g > RiskGroup::Rg1) {
+        let ok = |d: f64| -> Result<bool> {
+            Ok(worst_blue(&groups_at(set, source, Length::new::<meter>(d))?).is_none_or(|g| g <= RiskGroup::Rg1))
+        };
+        let (mut lo, mut hi) = (distance.get::<meter>(), distance.get::<meter>() * 2.0);
+        while !ok(hi)? && hi < 1e5 {
+            lo = hi;
+            hi *= 2.0;
+        }
+        if ok(hi)? {
+            for _ in 0..60 {
+                let mid = 0.5 * (lo + hi);
+                if ok(mid)? {
+                    hi = mid;
+                } else {
+                    lo = mid;
+                }
+            }
+            threshold_distance = Some(Length::new::<meter>(hi));
+        } else {
+            notes.push("the blue-light group stays above RG1 out to 100 km".to_string());
+        }
+    }
+    if !not_assessed.is_empty() {
+        notes.push("some hazards could not be grouped, so the overall group is a lower bound".to_string());
+    }
+    Ok(Classification {
+        illuminance_lx: photopic(&c.irradiance).raw,
+        distance,
+        distance_basis: basis,
+        hazards,
+        overall,
+        not_assessed,
+        blue_efficacy_w_per_lm: kbv,
+        e_thr_lx: kbv.map(|k| 1.0 / k),
+        threshold_distance,
+        notes,
+    })
+}

@@ -1,0 +1,431 @@
+//! Limit sets: one TOML file per document and edition in `limits/`.
+
+use std::sync::LazyLock;
+
+use serde::Deserialize;
+
+use super::weighting::{find_weighting, one_line};
+use crate::error::{Error, Result};
+
+/// Whether a hazard limits an irradiance (W/m², dose J/m²) or a radiance (W/m²/sr, J/m²/sr).
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum LimitQuantity {
+    /// Irradiance at the eye or skin.
+    Irradiance,
+    /// Radiance of the source as seen, averaged over the field of view.
+    Radiance,
+}
+
+/// Dose form (∫Q dt ≤ limit) or rate form (Q ≤ limit).
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum Form {
+    /// The time-integrated quantity is limited.
+    Dose,
+    /// The quantity itself is limited.
+    Rate,
+}
+
+/// One piece of a limit, valid for `from_s < t ≤ to_s` (the first piece includes `from_s`).
+#[derive(Debug, Clone, PartialEq)]
+pub struct Segment {
+    /// Start of validity, s.
+    pub from_s: f64,
+    /// End of validity, s (may be infinite).
+    pub to_s: f64,
+    /// Dose or rate.
+    pub form: Form,
+    /// Coefficient c in SI units of the form (J/m², W/m², J/m²/sr, W/m²/sr), with C_α in the
+    /// set's angle unit where `alpha_exponent` ≠ 0.
+    pub coefficient: f64,
+    /// Exponent e of t (in s).
+    pub time_exponent: f64,
+    /// Exponent k of C_α (0 or −1).
+    pub alpha_exponent: f64,
+    /// Status of this piece.
+    pub status: String,
+    /// Where the piece comes from (row, clause, equation).
+    pub source: String,
+}
+
+/// The C_α rule: α clamped to [min, max], expressed in rad or mrad for the coefficient.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct CAlpha {
+    /// Smallest C_α, rad.
+    pub min_rad: f64,
+    /// Largest C_α, rad.
+    pub max_rad: f64,
+    /// True when the document writes C_α in mrad (Directive 2006/25/EC).
+    pub in_mrad: bool,
+}
+
+impl CAlpha {
+    /// C_α for a source of subtense `alpha_rad`, in the document's unit.
+    pub fn value(&self, alpha_rad: f64) -> f64 {
+        let c = alpha_rad.clamp(self.min_rad, self.max_rad);
+        if self.in_mrad { c * 1e3 } else { c }
+    }
+}
+
+/// One piece of the averaging field of view γ(t) = c·t^e rad, for `from_s < t ≤ to_s`.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub struct FieldOfView {
+    /// Start, s.
+    pub from_s: f64,
+    /// End, s.
+    pub to_s: f64,
+    /// c in rad.
+    pub coefficient_rad: f64,
+    /// e.
+    pub time_exponent: f64,
+}
+
+/// When a hazard applies.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub enum Condition {
+    /// Only for sources smaller than this subtense (small-source blue light).
+    SmallerThanRad(f64),
+    /// Only for sources at least this large.
+    AtLeastRad(f64),
+    /// Only when the seen luminance is below this (weak visual stimulus), cd/m².
+    LuminanceBelow(f64),
+    /// Only when asked for (aphakic eyes, infants).
+    OptIn,
+}
+
+/// One hazard of a set.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Hazard {
+    /// Identifier (`actinic-uv`, `blue-light`, …).
+    pub id: String,
+    /// Name.
+    pub name: String,
+    /// Clause, row or equation of the document.
+    pub clause: String,
+    /// Weighting function id, or `None` for an unweighted band.
+    pub weighting: Option<String>,
+    /// Band, nm.
+    pub band_nm: (f64, f64),
+    /// Irradiance or radiance.
+    pub quantity: LimitQuantity,
+    /// Conditions of application.
+    pub conditions: Vec<Condition>,
+    /// C_α rule, if the limit depends on the source size.
+    pub c_alpha: Option<CAlpha>,
+    /// Averaging field of view for radiance.
+    pub field_of_view: Vec<FieldOfView>,
+    /// The limit, piecewise in t.
+    pub limits: Vec<Segment>,
+    /// IEC 62471 risk-group time bases (Exempt, RG1, RG2), s.
+    pub risk_group_time_bases_s: Option<[f64; 3]>,
+    /// Status of the hazard's values as a whole.
+    pub status: String,
+}
+
+/// A limit set.
+#[derive(Debug, Clone, PartialEq)]
+pub struct LimitSet {
+    /// Identifier used on the command line.
+    pub id: String,
+    /// Document title.
+    pub document: String,
+    /// Edition.
+    pub edition: String,
+    /// Clauses and tables encoded.
+    pub clauses: String,
+    /// Errata applied.
+    pub errata: String,
+    /// Notes on what is and is not in the set.
+    pub notes: Vec<String>,
+    /// The hazards.
+    pub hazards: Vec<Hazard>,
+    /// The file it came from.
+    pub origin: String,
+}
+
+impl LimitSet {
+    /// Counts of segments by status text (confirmed, from memory, derived …).
+    pub fn status_counts(&self) -> Vec<(String, usize)> {
+        let mut out: Vec<(String, usize)> = Vec::new();
+        for s in self.hazards.iter().flat_map(|h| &h.limits) {
+            let key = s.status.split(':').next().unwrap_or("").trim().to_string();
+            match out.iter_mut().find(|(k, _)| *k == key) {
+                Some((_, n)) => *n += 1,
+                None => out.push((key, 1)),
+            }
+        }
+        out
+    }
+
+    /// A hazard by id.
+    pub fn hazard(&self, id: &str) -> Option<&Hazard> {
+        self.hazards.iter().find(|h| h.id == id)
+    }
+}
+
+#[derive(Deserialize)]
+#[serde(deny_unknown_fields)]
+struct RawSet {
+    id: String,
+    document: String,
+    edition: String,
+    clauses: String,
+    errata: String,
+    #[serde(default)]
+    notes: Vec<String>,
+    hazard: Vec<RawHazard>,
+}
+
+#[derive(Deserialize)]
+#[serde(deny_unknown_fields)]
+struct RawHazard {
+    id: String,
+    name: String,
+    clause: String,
+    weighting: String,
+    band_nm: [f64; 2],
+    quantity: String,
+    status: String,
+    smaller_than_rad: Option<f64>,
+    at_least_rad: Option<f64>,
+    luminance_below_cd_m2: Option<f64>,
+    #[serde(default)]
+    opt_in: bool,
+    c_alpha: Option<RawCAlpha>,
+    #[serde(default)]
+    field_of_view: Vec<RawFov>,
+    risk_group_time_bases_s: Option<[f64; 3]>,
+    limit: Vec<RawSegment>,
+}
+
+#[derive(Deserialize)]
+#[serde(deny_unknown_fields)]
+struct RawCAlpha {
+    min: String,
+    max: String,
+    unit: String,
+}
+
+#[derive(Deserialize)]
+#[serde(deny_unknown_fields)]
+struct RawFov {
+    from_s: f64,
+    to_s: f64,
+    coefficient_rad: f64,
+    #[serde(default)]
+    time_exponent: f64,
+}
+
+#[derive(Deserialize)]
+#[serde(deny_unknown_fields)]
+struct RawSegment {
+    from_s: f64,
+    to_s: f64,
+    form: String,
+    coefficient: f64,
+    unit: String,
+    #[serde(default)]
+    time_exponent: f64,
+    #[serde(default)]
+    alpha_exponent: f64,
+    status: String,
+    source: String,
+}
+
+fn expected_unit(q: LimitQuantity, f: Form) -> &'static [&'static str] {
+    match (q, f) {
+        (LimitQuantity::Irradiance, Form::Dose) => &["J/m2", "J·m⁻²"],
+        (LimitQuantity::Irradiance, Form::Rate) => &["W/m2", "W·m⁻²"],
+        (LimitQuantity::Radiance, Form::Dose) => &["J/m2/sr", "J·m⁻²·sr⁻¹"],
+        (LimitQuantity::Radiance, Form::Rate) => &["W/m2/sr", "W·m⁻²·sr⁻¹"],
+    }
+}
+
+/// Parses a limit-set file and checks it: known weightings, ordered contiguous time pieces,
+/// units that fit the quantity and form, a valid C_α rule and band.
+///
+/// # Errors
+/// [`crate::ErrorKind::InvalidData`] naming `origin`, the key and the reason.
+pub fn parse_set(text: &str, origin: &str) -> Result<LimitSet> {
+    let raw: RawSet = toml::from_str(text).map_err(|e| Error::data(format!("{origin}: {}", one_line(&e))))?;
+    let mut hazards = Vec::new();
+    for (hi, h) in raw.hazard.iter().enumerate() {
+        let at = |k: &str| format!("{origin}: key 'hazard[{hi}].{k}' ({})", h.id);
+        let quantity = match h.quantity.as_str() {
+            "irradiance" => LimitQuantity::Irradiance,
+            "radiance" => LimitQuantity::Radiance,
+            o => return Err(Error::data(format!("{}: '{o}' is not irradiance or radiance", at("quantity")))),
+        };
+        let weighting = match h.weighting.as_str() {
+            "none" => None,
+            w => {
+                let f = find_weighting(w).ok_or_else(|| {
+                    Error::data(format!("{}: unknown weighting '{w}'; built in: S_UV, B, A, R_1997, R_2013, or none", at("weighting")))
+                })?;
+                let (a, b) = f.curve.range_nm();
+                if h.band_nm[0] < a - 1e-9 || h.band_nm[1] > b + 1e-9 {
+                    return Err(Error::data(format!(
+                        "{}: band {}–{} nm reaches outside the weighting {w} ({a}–{b} nm)",
+                        at("band_nm"),
+                        h.band_nm[0],
+                        h.band_nm[1]
+                    )));
+                }
+                Some(w.to_string())
+            }
+        };
+        if !(h.band_nm[0] > 0.0 && h.band_nm[0] < h.band_nm[1]) {
+            return Err(Error::data(format!("{}: band must be increasing and positive", at("band_nm"))));
+        }
+        let mut limits = Vec::new();
+        for (si, s) in h.limit.iter().enumerate() {
+            let k = |f: &str| at(&format!("limit[{si}].{f}"));
+            let form = match s.form.as_str() {
+                "dose" => Form::Dose,
+                "rate" => Form::Rate,
+                o => return Err(Error::data(format!("{}: '{o}' is not dose or rate", k("form")))),
+            };
+            let units = expected_unit(quantity, form);
+            if !units.contains(&s.unit.as_str()) {
+                return Err(Error::data(format!(
+                    "{}: unit '{}' does not fit a {} {}; expected {}",
+                    k("unit"),
+                    s.unit,
+                    h.quantity,
+                    s.form,
+                    units[0]
+                )));
+            }
+            if !(s.coefficient.is_finite() && s.coefficient > 0.0) {
+                return Err(Error::data(format!("{}: must be a finite number above 0", k("coefficient"))));
+            }
+            if !(s.from_s >= 0.0 && s.from_s < s.to_s) {
+                return Err(Error::data(format!("{}: from_s must be ≥ 0 and below to_s", k("from_s"))));
+            }
+            if let Some(prev) = limits.last().map(|p: &Segment| p.to_s)
+                && (s.from_s - prev).abs() > 1e-12 * prev.max(1.0)
+            {
+                return Err(Error::data(format!(
+                    "{}: pieces must follow each other without gap or overlap: this one starts at {} s, the previous ends at {prev} s",
+                    k("from_s"),
+                    s.from_s
+                )));
+            }
+            if s.alpha_exponent != 0.0 && h.c_alpha.is_none() {
+                return Err(Error::data(format!("{}: depends on C_α but the hazard has no c_alpha rule", k("alpha_exponent"))));
+            }
+            limits.push(Segment {
+                from_s: s.from_s,
+                to_s: s.to_s,
+                form,
+                coefficient: s.coefficient,
+                time_exponent: s.time_exponent,
+                alpha_exponent: s.alpha_exponent,
+                status: s.status.clone(),
+                source: s.source.clone(),
+            });
+        }
+        if limits.is_empty() {
+            return Err(Error::data(format!("{}: a hazard needs at least one limit piece", at("limit"))));
+        }
+        let c_alpha = match &h.c_alpha {
+            None => None,
+            Some(c) => {
+                let parse = |t: &str, key: &str| crate::units::parse_angle(t).map_err(|e| Error::data(format!("{}: {e}", at(key))));
+                let (min, max) = (parse(&c.min, "c_alpha.min")?, parse(&c.max, "c_alpha.max")?);
+                let in_mrad = match c.unit.as_str() {
+                    "rad" => false,
+                    "mrad" => true,
+                    o => return Err(Error::data(format!("{}: '{o}' is not rad or mrad", at("c_alpha.unit")))),
+                };
+                use crate::quantity::SiValue;
+                if !(min.si() > 0.0 && min.si() < max.si()) {
+                    return Err(Error::data(format!("{}: need 0 < min < max", at("c_alpha"))));
+                }
+                Some(CAlpha { min_rad: min.si(), max_rad: max.si(), in_mrad })
+            }
+        };
+        let mut conditions = Vec::new();
+        if let Some(r) = h.smaller_than_rad {
+            conditions.push(Condition::SmallerThanRad(r));
+        }
+        if let Some(r) = h.at_least_rad {
+            conditions.push(Condition::AtLeastRad(r));
+        }
+        if let Some(l) = h.luminance_below_cd_m2 {
+            conditions.push(Condition::LuminanceBelow(l));
+        }
+        if h.opt_in {
+            conditions.push(Condition::OptIn);
+        }
+        if quantity == LimitQuantity::Irradiance && !h.field_of_view.is_empty() {
+            return Err(Error::data(format!("{}: only radiance hazards have an averaging field of view", at("field_of_view"))));
+        }
+        hazards.push(Hazard {
+            id: h.id.clone(),
+            name: h.name.clone(),
+            clause: h.clause.clone(),
+            weighting,
+            band_nm: (h.band_nm[0], h.band_nm[1]),
+            quantity,
+            conditions,
+            c_alpha,
+            field_of_view: h
+                .field_of_view
+                .iter()
+                .map(|f| FieldOfView {
+                    from_s: f.from_s,
+                    to_s: f.to_s,
+                    coefficient_rad: f.coefficient_rad,
+                    time_exponent: f.time_exponent,
+                })
+                .collect(),
+            limits,
+            risk_group_time_bases_s: h.risk_group_time_bases_s,
+            status: h.status.clone(),
+        });
+    }
+    Ok(LimitSet {
+        id: raw.id,
+        document: raw.document,
+        edition: raw.edition,
+        clauses: raw.clauses,
+        errata: raw.errata,
+        notes: raw.notes,
+        hazards,
+        origin: origin.to_string(),
+    })
+}
+
+/// The limit-set files shipped in `limits/`.
+pub const SET_FILES: [(&str, &str); 5] = [
+    ("limits/iec62471_2006.toml", include_str!("../../limits/iec62471_2006.toml")),
+    ("limits/directive_2006_25_ec.toml", include_str!("../../limits/directive_2006_25_ec.toml")),
+    ("limits/icnirp_1997_visible_ir.toml", include_str!("../../limits/icnirp_1997_visible_ir.toml")),
+    ("limits/icnirp_2004_uv.toml", include_str!("../../limits/icnirp_2004_uv.toml")),
+    ("limits/icnirp_2013_visible_ir.toml", include_str!("../../limits/icnirp_2013_visible_ir.toml")),
+];
+
+static SETS: LazyLock<Vec<LimitSet>> = LazyLock::new(|| {
+    SET_FILES.iter().map(|(n, t)| parse_set(t, n).unwrap_or_else(|e| panic!("embedded limit set: {e}"))).collect()
+});
+
+/// The built-in limit sets.
+pub fn builtin_sets() -> &'static [LimitSet] {
+    &SETS
+}
+
+/// A built-in set by id.
+///
+/// # Errors
+/// [`crate::ErrorKind::UnknownName`] listing the built-in ids.
+pub fn find_set(id: &str) -> Result<&'static LimitSet> {
+    SETS.iter().find(|s| s.id == id).ok_or_else(|| {
+        Error::new(
+            crate::ErrorKind::UnknownName,
+            format!(
+                "unknown limit set '{id}'; built in: {}",
+                SETS.iter().map(|s| s.id.as_str()).collect::<Vec<_>>().join(", ")
+            ),
+        )
+    })
+}
