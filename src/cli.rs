@@ -6,8 +6,8 @@ use std::path::Path;
 
 use anyhow::{Context, Result, bail};
 use clap::{Args, Parser, Subcommand, ValueEnum};
-use retidose::generate::Grid;
 use retidose::filter::Filter;
+use retidose::generate::Grid;
 use retidose::limits::{LimitSet, find_set, parse_set};
 use retidose::limits_report::{LimitsRequest, assess_limits};
 use retidose::retina_report::assess_retina;
@@ -372,7 +372,8 @@ fn scale_target(a: &ScaleArgs) -> Result<Option<ScaleTarget>> {
 fn load_set(id: &str, file: Option<&str>) -> Result<LimitSet> {
     Ok(match file {
         Some(f) => {
-            let text = std::fs::read_to_string(f).with_context(|| format!("cannot read the limit set {f}"))?;
+            let text =
+                std::fs::read_to_string(f).with_context(|| format!("cannot read the limit set {f}"))?;
             parse_set(&text, f)?
         }
         None => find_set(id)?.clone(),
@@ -384,12 +385,8 @@ fn check(a: CheckArgs) -> Result<String> {
     let duration = units::parse_time(&a.duration).context("--for")?;
     let spec = a.place.source_spec(&a.source, &a.scale);
     let source = place(&spec, None)?;
-    let filters = a
-        .place
-        .filter
-        .iter()
-        .map(|f| Filter::parse(f))
-        .collect::<std::result::Result<Vec<_>, _>>()?;
+    let filters =
+        a.place.filter.iter().map(|f| Filter::parse(f)).collect::<std::result::Result<Vec<_>, _>>()?;
     let report = assess_limits(&LimitsRequest {
         source: &source,
         filters: &filters,

@@ -3,7 +3,9 @@
 use crate::error::Result;
 use crate::filter::Filter;
 use crate::geometry::corneal;
-use crate::limits::{Classification, Exposure, HazardResult, LimitSet, MovableSource, Verdict, classify, evaluate_set};
+use crate::limits::{
+    Classification, Exposure, HazardResult, LimitSet, MovableSource, Verdict, classify, evaluate_set,
+};
 use crate::quantity::{SiValue, Time};
 use crate::retina_report::PlacedSource;
 use crate::spectrum::Measure;
@@ -104,7 +106,9 @@ pub fn assess_limits(r: &LimitsRequest<'_>) -> Result<LimitsAssessment> {
         );
     }
     if hazards.iter().any(|h| !h.from_memory.is_empty()) {
-        notes.push("verdicts marked [from memory] rest on values not checked against the published text".to_string());
+        notes.push(
+            "verdicts marked [from memory] rest on values not checked against the published text".to_string(),
+        );
     }
     if !r.filters.is_empty() {
         notes.push(format!(

@@ -400,3 +400,90 @@ fn retinal_spectrum_is_written_to_a_new_file_and_never_over_an_existing_one() {
         .stderr(predicate::str::contains("never overwritten"));
     assert_eq!(std::fs::read_to_string(&out).unwrap(), text);
 }
+
+#[test]
+fn limits_list_and_show_start_with_the_caution() {
+    for args in [vec!["limits", "list"], vec!["limits", "show", "iec62471-2006"]] {
+        let out = retidose().args(&args).output().unwrap();
+        assert!(out.status.success());
+        let text = String::from_utf8(out.stdout).unwrap();
+        assert!(text.starts_with("These limits apply to humans."), "{args:?}");
+    }
+    retidose()
+        .args(["limits", "list"])
+        .assert()
+        .success()
+        .stdout(predicate::str::contains("icnirp-2013-visible-ir"))
+        .stdout(predicate::str::contains("from memory"));
+    retidose()
+        .args(["limits", "show", "directive-2006-25-ec"])
+        .assert()
+        .success()
+        .stdout(predicate::str::contains("row g"))
+        .stdout(predicate::str::contains("C_α in mrad"));
+}
+
+#[test]
+fn limits_check_reports_every_hazard_and_the_risk_group() {
+    let v = json(&[
+        "limits",
+        "check",
+        "stimulus-460-led",
+        "--luminous-intensity",
+        "2 cd",
+        "--distance",
+        "200 mm",
+        "--size",
+        "5 mm",
+        "--for",
+        "8 h",
+        "--classify",
+    ]);
+    assert_eq!(v["schema"], "retidose.limits/1");
+    assert!(v["caution"].as_str().unwrap().starts_with("These limits apply to humans"));
+    let hazards = v["hazards"].as_array().unwrap();
+    assert_eq!(hazards.len(), 8);
+    let uv = hazards.iter().find(|h| h["id"] == "actinic-uv").unwrap();
+    assert_eq!(uv["verdict"]["kind"], "not-assessed");
+    assert!(uv["verdict"]["reason"].as_str().unwrap().contains("hazard needs 200–400 nm"));
+    let blue = hazards.iter().find(|h| h["id"] == "blue-light").unwrap();
+    assert!(blue["ratio"].as_f64().unwrap() > 0.0);
+    assert!(!blue["from_memory"].as_array().unwrap().is_empty());
+    let rg = &v["risk_group"];
+    assert_eq!(rg["assessed"], true);
+    assert!((rg["distance_m"].as_f64().unwrap() - 0.2).abs() < 1e-12);
+    assert!(rg["e_thr_lx"].as_f64().unwrap() > 0.0);
+}
+
+#[test]
+fn limits_check_rejects_bad_input() {
+    let base =
+        ["limits", "check", "stimulus-460-led", "--luminous-intensity", "2 cd", "--distance", "200 mm"];
+    let with = |extra: &[&str]| -> Vec<String> { base.iter().chain(extra).map(|s| s.to_string()).collect() };
+    let fails = |args: Vec<String>, needle: &str| {
+        let refs: Vec<&str> = args.iter().map(String::as_str).collect();
+        fails(&refs, needle);
+    };
+    fails(with(&["--for=-5 s"]), "must be above 0 s");
+    fails(with(&["--for", "0 s"]), "must be above 0 s");
+    fails(with(&["--for", "8"]), "has no unit");
+    fails(with(&["--for", "8 h", "--hazard", "x-rays"]), "has no hazard 'x-rays'");
+    fails(
+        ["limits", "check", "cie:D65", "--luminance", "1000 cd/m2", "--subtense", "190 deg", "--for", "1 h"]
+            .map(String::from)
+            .to_vec(),
+        "below π rad",
+    );
+    let set = include_str!("../limits/icnirp_2004_uv.toml")
+        .replace("from_s = 1000\nto_s = 28800", "from_s = 500\nto_s = 28800");
+    let p = temp_file("overlap.toml", &set);
+    fails(
+        with(&["--for", "1 h", "--set-file", p.to_str().unwrap()]),
+        "pieces must follow each other without gap or overlap",
+    );
+    let bad_unit =
+        include_str!("../limits/icnirp_2004_uv.toml").replace("unit = \"W/m2\"", "unit = \"W/m3\"");
+    let p = temp_file("unit.toml", &bad_unit);
+    fails(with(&["--for", "1 h", "--set-file", p.to_str().unwrap()]), "unit 'W/m3' does not fit");
+    fails(with(&["--for", "1 h", "--set", "icnirp-1899"]), "unknown limit set 'icnirp-1899'");
+}

@@ -4,9 +4,9 @@ use std::fmt::Write;
 
 use retidose::alpha_opic::action_spectra;
 use retidose::catch::ReceptorCatch;
+use retidose::data::TABLE_FILES;
 use retidose::limits::{Form, LimitQuantity, LimitSet, TMax, Verdict, builtin_sets, builtin_weightings};
 use retidose::limits_report::{LIMITS_CAUTION, LimitsAssessment};
-use retidose::data::TABLE_FILES;
 use retidose::photometry::{Photometric, PhotometricResult};
 use retidose::quantity::SiValue;
 use retidose::quantity::as_td_f64;
@@ -564,7 +564,8 @@ pub fn limit_sets() -> String {
         let _ = writeln!(o, "{}", s.id);
         let _ = writeln!(o, "  {}", s.document);
         let _ = writeln!(o, "  edition: {}; errata: {}", s.edition, s.errata);
-        let _ = writeln!(o, "  {} hazards; limit pieces: {}  ({})", s.hazards.len(), counts.join(", "), s.origin);
+        let _ =
+            writeln!(o, "  {} hazards; limit pieces: {}  ({})", s.hazards.len(), counts.join(", "), s.origin);
     }
     let _ = writeln!(o, "\nWeighting functions");
     for w in builtin_weightings() {
@@ -589,7 +590,11 @@ pub fn limit_set(s: &LimitSet) -> String {
             LimitQuantity::Irradiance => "irradiance",
             LimitQuantity::Radiance => "radiance",
         };
-        let _ = writeln!(o, "\n{} ({}) — {}, {}–{} nm, {w}, {kind}", h.name, h.id, h.clause, h.band_nm.0, h.band_nm.1);
+        let _ = writeln!(
+            o,
+            "\n{} ({}) — {}, {}–{} nm, {w}, {kind}",
+            h.name, h.id, h.clause, h.band_nm.0, h.band_nm.1
+        );
         for c in &h.conditions {
             let _ = writeln!(o, "  applies: {c:?}");
         }
@@ -599,7 +604,11 @@ pub fn limit_set(s: &LimitSet) -> String {
                 "  C_α = α limited to {}–{} mrad{}",
                 num(c.min_rad * 1e3),
                 num(c.max_rad * 1e3),
-                if c.in_mrad { " (coefficients with C_α in mrad)" } else { " (coefficients with C_α in rad)" }
+                if c.in_mrad {
+                    " (coefficients with C_α in mrad)"
+                } else {
+                    " (coefficients with C_α in rad)"
+                }
             );
         }
         for f in &h.field_of_view {
@@ -630,7 +639,13 @@ pub fn limit_set(s: &LimitSet) -> String {
             );
         }
         if let Some(b) = h.risk_group_time_bases_s {
-            let _ = writeln!(o, "  risk-group time bases (Exempt, RG1, RG2): {} s, {} s, {} s", num(b[0]), num(b[1]), num(b[2]));
+            let _ = writeln!(
+                o,
+                "  risk-group time bases (Exempt, RG1, RG2): {} s, {} s, {} s",
+                num(b[0]),
+                num(b[1]),
+                num(b[2])
+            );
         }
     }
     o
@@ -652,7 +667,8 @@ pub fn limits_table(r: &LimitsAssessment) -> String {
             let _ = writeln!(o, "  weighted        {} {}", num(q), h.quantity_unit);
         }
         if let (Some(a), Some(g)) = (h.averaged, h.field_of_view_rad) {
-            let _ = writeln!(o, "  averaged        {} {} over {} mrad", num(a), h.quantity_unit, num(g * 1e3));
+            let _ =
+                writeln!(o, "  averaged        {} {} over {} mrad", num(a), h.quantity_unit, num(g * 1e3));
         }
         if let Some(c) = h.c_alpha {
             let _ = writeln!(o, "  C_α             {}", num(c));
@@ -691,15 +707,30 @@ pub fn limits_table(r: &LimitsAssessment) -> String {
                 num(c.illuminance_lx)
             );
             for g in &c.hazards {
-                let group = g.group.map_or_else(|| g.reason.clone().unwrap_or_default(), |x| x.name().to_string());
+                let group =
+                    g.group.map_or_else(|| g.reason.clone().unwrap_or_default(), |x| x.name().to_string());
                 let ratios: Vec<String> = g.ratios.iter().map(|x| x.map_or("—".into(), num)).collect();
-                let _ = writeln!(o, "  {:<44} {:<8} (ratios at {}/{}/{} s: {})", g.name, group, num(g.time_bases_s[0]), num(g.time_bases_s[1]), num(g.time_bases_s[2]), ratios.join(", "));
+                let _ = writeln!(
+                    o,
+                    "  {:<44} {:<8} (ratios at {}/{}/{} s: {})",
+                    g.name,
+                    group,
+                    num(g.time_bases_s[0]),
+                    num(g.time_bases_s[1]),
+                    num(g.time_bases_s[2]),
+                    ratios.join(", ")
+                );
             }
             let overall = c.overall.map_or("—", |x| x.name());
             let lb = if c.not_assessed.is_empty() { "" } else { " (lower bound: some hazards not assessed)" };
             let _ = writeln!(o, "  overall: {overall}{lb}");
             if let Some(k) = c.blue_efficacy_w_per_lm {
-                let _ = writeln!(o, "  blue-light efficacy K_B,v {} mW/lm; E_thr = 1 W/m² / K_B,v = {} lx", num(k * 1e3), num(1.0 / k));
+                let _ = writeln!(
+                    o,
+                    "  blue-light efficacy K_B,v {} mW/lm; E_thr = 1 W/m² / K_B,v = {} lx",
+                    num(k * 1e3),
+                    num(1.0 / k)
+                );
             }
             if let Some(d) = c.threshold_distance {
                 let _ = writeln!(o, "  blue-light group is at most RG1 beyond {} m", num(d.si()));
@@ -721,7 +752,9 @@ fn t_max_json(t: &Option<TMax>) -> Value {
     match t {
         None => Value::Null,
         Some(TMax::Seconds(s)) => json!({ "kind": "seconds", "seconds": s }),
-        Some(TMax::NotReached(up)) => json!({ "kind": "not-reached", "up_to_s": if up.is_finite() { json!(up) } else { Value::Null } }),
+        Some(TMax::NotReached(up)) => {
+            json!({ "kind": "not-reached", "up_to_s": if up.is_finite() { json!(up) } else { Value::Null } })
+        }
         Some(TMax::BelowRange(s)) => json!({ "kind": "below-range", "seconds": s }),
     }
 }

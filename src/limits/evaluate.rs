@@ -264,7 +264,10 @@ pub(super) fn assess(h: &Hazard, e: &Exposure<'_>) -> HazardResult {
         o
     };
     if h.conditions.contains(&Condition::OptIn) && !e.aphakic {
-        return not(out, Verdict::NotApplicable("opt-in hazard for aphakic eyes and infants (ask for it)".into()));
+        return not(
+            out,
+            Verdict::NotApplicable("opt-in hazard for aphakic eyes and infants (ask for it)".into()),
+        );
     }
     let spectrum = match h.quantity {
         LimitQuantity::Irradiance => e.irradiance,
@@ -273,7 +276,9 @@ pub(super) fn assess(h: &Hazard, e: &Exposure<'_>) -> HazardResult {
             None => {
                 return not(
                     out,
-                    Verdict::NotAssessed("needs the radiance the eye sees: give the source's size or subtense".into()),
+                    Verdict::NotAssessed(
+                        "needs the radiance the eye sees: give the source's size or subtense".into(),
+                    ),
                 );
             }
         },
@@ -282,9 +287,19 @@ pub(super) fn assess(h: &Hazard, e: &Exposure<'_>) -> HazardResult {
     for c in &h.conditions {
         match *c {
             Condition::SmallerThanRad(r) => match (alpha, e.full_field) {
-                (_, true) => return not(out, Verdict::NotApplicable(format!("the light fills the field (not a source below {r} rad)"))),
+                (_, true) => {
+                    return not(
+                        out,
+                        Verdict::NotApplicable(format!(
+                            "the light fills the field (not a source below {r} rad)"
+                        )),
+                    );
+                }
                 (Some(a), _) if a >= r => {
-                    return not(out, Verdict::NotApplicable(format!("source subtends {a:.4} rad, not below {r} rad")));
+                    return not(
+                        out,
+                        Verdict::NotApplicable(format!("source subtends {a:.4} rad, not below {r} rad")),
+                    );
                 }
                 (None, _) => return not(out, Verdict::NotAssessed("needs the source's subtense".into())),
                 _ => {}
@@ -292,7 +307,10 @@ pub(super) fn assess(h: &Hazard, e: &Exposure<'_>) -> HazardResult {
             Condition::AtLeastRad(r) => match (alpha, e.full_field) {
                 (_, true) => {}
                 (Some(a), _) if a < r => {
-                    return not(out, Verdict::NotApplicable(format!("source subtends {a:.4} rad, below {r} rad")));
+                    return not(
+                        out,
+                        Verdict::NotApplicable(format!("source subtends {a:.4} rad, below {r} rad")),
+                    );
                 }
                 (None, _) => return not(out, Verdict::NotAssessed("needs the source's subtense".into())),
                 _ => {}

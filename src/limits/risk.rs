@@ -84,7 +84,9 @@ impl MovableSource {
                 Ok(Geometry::Intensity { distance: d, incidence: Angle::from_si(0.0), size })
             }
             (Measure::Radiance, Some(s)) => Ok(Geometry::Extended { subtense: subtense(s, d)? }),
-            (Measure::Radiance, None) => Err(Error::input("a radiance source needs its size to be placed at a distance")),
+            (Measure::Radiance, None) => {
+                Err(Error::input("a radiance source needs its size to be placed at a distance"))
+            }
             (m, _) => Err(Error::input(format!(
                 "risk groups need a source that can be moved: a spectral intensity or a radiance with its size, not a spectral {}",
                 m.name()
@@ -220,7 +222,10 @@ pub fn classify(set: &LimitSet, source: &MovableSource, general_lighting: bool) 
                     hi = mid;
                 }
             }
-            (Length::new::<meter>(hi), "general lighting: the distance giving 500 lx (IEC 62471 cl. 5.2)".to_string())
+            (
+                Length::new::<meter>(hi),
+                "general lighting: the distance giving 500 lx (IEC 62471 cl. 5.2)".to_string(),
+            )
         }
     } else {
         (d200, "200 mm (IEC 62471 cl. 5.2)".to_string())
@@ -242,7 +247,8 @@ pub fn classify(set: &LimitSet, source: &MovableSource, general_lighting: bool) 
     ];
     if worst_blue(&hazards).is_some_and(|g| g > RiskGroup::Rg1) {
         let ok = |d: f64| -> Result<bool> {
-            Ok(worst_blue(&groups_at(set, source, Length::new::<meter>(d))?).is_none_or(|g| g <= RiskGroup::Rg1))
+            Ok(worst_blue(&groups_at(set, source, Length::new::<meter>(d))?)
+                .is_none_or(|g| g <= RiskGroup::Rg1))
         };
         let (mut lo, mut hi) = (distance.get::<meter>(), distance.get::<meter>() * 2.0);
         while !ok(hi)? && hi < 1e5 {

@@ -259,7 +259,10 @@ pub fn parse_set(text: &str, origin: &str) -> Result<LimitSet> {
             "none" => None,
             w => {
                 let f = find_weighting(w).ok_or_else(|| {
-                    Error::data(format!("{}: unknown weighting '{w}'; built in: S_UV, B, A, R_1997, R_2013, or none", at("weighting")))
+                    Error::data(format!(
+                        "{}: unknown weighting '{w}'; built in: S_UV, B, A, R_1997, R_2013, or none",
+                        at("weighting")
+                    ))
                 })?;
                 let (a, b) = f.curve.range_nm();
                 if h.band_nm[0] < a - 1e-9 || h.band_nm[1] > b + 1e-9 {
@@ -311,7 +314,10 @@ pub fn parse_set(text: &str, origin: &str) -> Result<LimitSet> {
                 )));
             }
             if s.alpha_exponent != 0.0 && h.c_alpha.is_none() {
-                return Err(Error::data(format!("{}: depends on C_α but the hazard has no c_alpha rule", k("alpha_exponent"))));
+                return Err(Error::data(format!(
+                    "{}: depends on C_α but the hazard has no c_alpha rule",
+                    k("alpha_exponent")
+                )));
             }
             limits.push(Segment {
                 from_s: s.from_s,
@@ -330,12 +336,16 @@ pub fn parse_set(text: &str, origin: &str) -> Result<LimitSet> {
         let c_alpha = match &h.c_alpha {
             None => None,
             Some(c) => {
-                let parse = |t: &str, key: &str| crate::units::parse_angle(t).map_err(|e| Error::data(format!("{}: {e}", at(key))));
+                let parse = |t: &str, key: &str| {
+                    crate::units::parse_angle(t).map_err(|e| Error::data(format!("{}: {e}", at(key))))
+                };
                 let (min, max) = (parse(&c.min, "c_alpha.min")?, parse(&c.max, "c_alpha.max")?);
                 let in_mrad = match c.unit.as_str() {
                     "rad" => false,
                     "mrad" => true,
-                    o => return Err(Error::data(format!("{}: '{o}' is not rad or mrad", at("c_alpha.unit")))),
+                    o => {
+                        return Err(Error::data(format!("{}: '{o}' is not rad or mrad", at("c_alpha.unit"))));
+                    }
                 };
                 use crate::quantity::SiValue;
                 if !(min.si() > 0.0 && min.si() < max.si()) {
@@ -358,7 +368,10 @@ pub fn parse_set(text: &str, origin: &str) -> Result<LimitSet> {
             conditions.push(Condition::OptIn);
         }
         if quantity == LimitQuantity::Irradiance && !h.field_of_view.is_empty() {
-            return Err(Error::data(format!("{}: only radiance hazards have an averaging field of view", at("field_of_view"))));
+            return Err(Error::data(format!(
+                "{}: only radiance hazards have an averaging field of view",
+                at("field_of_view")
+            )));
         }
         hazards.push(Hazard {
             id: h.id.clone(),
@@ -406,7 +419,10 @@ pub const SET_FILES: [(&str, &str); 5] = [
 ];
 
 static SETS: LazyLock<Vec<LimitSet>> = LazyLock::new(|| {
-    SET_FILES.iter().map(|(n, t)| parse_set(t, n).unwrap_or_else(|e| panic!("embedded limit set: {e}"))).collect()
+    SET_FILES
+        .iter()
+        .map(|(n, t)| parse_set(t, n).unwrap_or_else(|e| panic!("embedded limit set: {e}")))
+        .collect()
 });
 
 /// The built-in limit sets.

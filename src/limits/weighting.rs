@@ -74,10 +74,16 @@ struct RawFormula {
 /// [`crate::ErrorKind::InvalidData`] naming `origin` and the key: unsorted or mismatched nodes,
 /// negative values, an unknown interpolation or formula form, overlapping segments.
 pub fn parse_weighting(text: &str, origin: &str) -> Result<Weighting> {
-    let raw: RawWeighting = toml::from_str(text).map_err(|e| Error::data(format!("{origin}: {}", one_line(&e))))?;
+    let raw: RawWeighting =
+        toml::from_str(text).map_err(|e| Error::data(format!("{origin}: {}", one_line(&e))))?;
     let at = |k: &str| format!("{origin}: key '{k}'");
     if raw.nm.len() != raw.value.len() {
-        return Err(Error::data(format!("{}: {} wavelengths but {} values", at("value"), raw.nm.len(), raw.value.len())));
+        return Err(Error::data(format!(
+            "{}: {} wavelengths but {} values",
+            at("value"),
+            raw.nm.len(),
+            raw.value.len()
+        )));
     }
     if !raw.el_j_per_m2.is_empty() && raw.el_j_per_m2.len() != raw.nm.len() {
         return Err(Error::data(format!("{}: needs one limit per wavelength", at("el_j_per_m2"))));
@@ -90,7 +96,10 @@ pub fn parse_weighting(text: &str, origin: &str) -> Result<Weighting> {
         "linear" => false,
         "log-linear" => true,
         other => {
-            return Err(Error::data(format!("{}: '{other}' is not linear or log-linear", at("interpolation"))));
+            return Err(Error::data(format!(
+                "{}: '{other}' is not linear or log-linear",
+                at("interpolation")
+            )));
         }
     };
     let mut nodes: Vec<(f64, f64)> = Vec::new();
@@ -120,7 +129,7 @@ pub fn parse_weighting(text: &str, origin: &str) -> Result<Weighting> {
     let mut last_end = t1;
     for (i, f) in raw.formula.iter().enumerate() {
         let k = format!("formula[{i}]");
-        if !(f.from_nm < f.to_nm) || f.from_nm < last_end - 1e-9 {
+        if f.from_nm.is_nan() || f.from_nm >= f.to_nm || f.from_nm < last_end - 1e-9 {
             return Err(Error::data(format!(
                 "{}: segment {}–{} nm must follow the previous part (ending at {last_end} nm) without overlap",
                 at(&k),
@@ -134,7 +143,8 @@ pub fn parse_weighting(text: &str, origin: &str) -> Result<Weighting> {
                 "constant" => Ok(f.coefficient),
                 "decade-exponential" => {
                     let per = f.per_nm.ok_or_else(|| Error::data(format!("{}: needs per_nm", at(&k))))?;
-                    let origin = f.origin_nm.ok_or_else(|| Error::data(format!("{}: needs origin_nm", at(&k))))?;
+                    let origin =
+                        f.origin_nm.ok_or_else(|| Error::data(format!("{}: needs origin_nm", at(&k))))?;
                     Ok(f.coefficient * 10f64.powf(per * (x - origin)))
                 }
                 other => Err(Error::data(format!(
@@ -210,7 +220,8 @@ mod tests {
 
     #[test]
     fn malformed_weightings_name_the_key() {
-        let bad = include_str!("../../limits/weightings/b.toml").replace("form = \"constant\"", "form = \"cubic\"");
+        let bad =
+            include_str!("../../limits/weightings/b.toml").replace("form = \"constant\"", "form = \"cubic\"");
         let err = parse_weighting(&bad, "b.toml").unwrap_err();
         assert!(err.message().contains("b.toml: key 'formula[1].form'"), "{err}");
     }
