@@ -26,6 +26,8 @@
 #![forbid(unsafe_code)]
 
 pub mod alpha_opic;
+pub mod bleach;
+pub mod bleach_scenario;
 pub mod catch;
 pub mod constants;
 pub mod curve;
@@ -35,6 +37,7 @@ pub mod eye;
 pub mod filter;
 pub mod generate;
 pub mod geometry;
+pub mod kinetics;
 pub mod lens;
 pub mod limits;
 pub mod limits_report;
@@ -46,6 +49,7 @@ pub mod retina;
 pub mod retina_report;
 pub mod retina_scenario;
 pub mod scale;
+pub mod schedule;
 pub mod source;
 pub mod spectrum;
 pub mod spectrum_report;

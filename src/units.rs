@@ -88,6 +88,23 @@ const POWER: &[Unit] = &[
     Unit { spellings: &["uW", "µW", "microwatt", "microwatts"], to_si: 1e-6 },
 ];
 
+const TROLAND: &[Unit] =
+    &[Unit { spellings: &["td", "Td", "troland", "trolands", "scottd", "phottd"], to_si: 1.0 }];
+
+const TROLAND_SECONDS: &[Unit] =
+    &[Unit { spellings: &["td s", "td*s", "tds", "scottds", "phottds", "scottd*s", "phottd*s"], to_si: 1.0 }];
+
+const RATE: &[Unit] = &[
+    Unit { spellings: &["/s", "pers", "s-1", "1/s"], to_si: 1.0 },
+    Unit { spellings: &["/min", "permin", "min-1", "1/min"], to_si: 1.0 / 60.0 },
+    Unit { spellings: &["/h", "perh", "h-1", "1/h"], to_si: 1.0 / 3600.0 },
+];
+
+const RATE_SQUARED: &[Unit] = &[Unit { spellings: &["/s2", "s-2", "1/s2", "pers2"], to_si: 1.0 }];
+
+const ISOMERISATION_RATE: &[Unit] =
+    &[Unit { spellings: &["R*/rod/s", "R*/s", "R*/cell/s", "R*/receptor/s", "R*/cone/s"], to_si: 1.0 }];
+
 const AREA: &[Unit] = &[
     Unit { spellings: &["um2", "µm2", "square micrometre", "square micrometer"], to_si: 1e-12 },
     Unit { spellings: &["mm2", "square millimetre", "square millimeter"], to_si: 1e-6 },
@@ -219,6 +236,47 @@ pub fn tidy(v: f64) -> String {
     format!("{}", (v * scale).round() / scale)
 }
 
+/// Parses a retinal illuminance in trolands, `"20000 td"` (the receptor decides whether
+/// photopic or scotopic trolands are meant; `scot td` and `phot td` are accepted as spellings).
+///
+/// # Errors
+/// As [`parse_length`].
+pub fn parse_trolands(text: &str) -> Result<f64> {
+    parse_in(text, "retinal illuminance", TROLAND)
+}
+
+/// Parses a retinal exposure in troland-seconds, `"1e7 td s"`.
+///
+/// # Errors
+/// As [`parse_length`].
+pub fn parse_troland_seconds(text: &str) -> Result<f64> {
+    parse_in(text, "retinal exposure", TROLAND_SECONDS)
+}
+
+/// Parses a rate such as `"0.085 /min"` into s⁻¹.
+///
+/// # Errors
+/// As [`parse_length`].
+pub fn parse_rate(text: &str) -> Result<crate::quantity::Frequency> {
+    parse_in(text, "rate", RATE).map(crate::quantity::Frequency::from_si)
+}
+
+/// Parses a rate per second squared, `"4 /s2"`, in s⁻².
+///
+/// # Errors
+/// As [`parse_length`].
+pub fn parse_per_second_squared(text: &str) -> Result<f64> {
+    parse_in(text, "amplification constant", RATE_SQUARED)
+}
+
+/// Parses a photoisomerisation rate per receptor, `"1e4 R*/rod/s"`.
+///
+/// # Errors
+/// As [`parse_length`].
+pub fn parse_isomerisation_rate(text: &str) -> Result<crate::quantity::Frequency> {
+    parse_in(text, "photoisomerisation rate", ISOMERISATION_RATE).map(crate::quantity::Frequency::from_si)
+}
+
 /// Parses an area such as `"2.4 µm²"`, `"2.4 um2"` or `"12.6 mm2"`.
 ///
 /// # Errors
@@ -339,6 +397,10 @@ mod tests {
         assert!((parse_area("2.4 µm²").unwrap().si() - 2.4e-12).abs() < 1e-24);
         assert_eq!(parse_number("0.35").unwrap(), 0.35);
         assert!(parse_number("0.35 mm").is_err());
+        assert_eq!(parse_trolands("2e4 scot td").unwrap(), 2e4);
+        assert_eq!(parse_troland_seconds("1e7 td·s").unwrap(), 1e7);
+        assert!((parse_rate("0.085 /min").unwrap().si() - 0.085 / 60.0).abs() < 1e-15);
+        assert_eq!(parse_isomerisation_rate("1e4 R*/rod/s").unwrap().si(), 1e4);
         assert_eq!(parse_time("2 y").unwrap().si(), 63_115_200.0);
     }
 

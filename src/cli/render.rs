@@ -3,8 +3,10 @@
 use std::fmt::Write;
 
 use retidose::alpha_opic::action_spectra;
+use retidose::bleach::{BleachReport, FlashResponse};
 use retidose::catch::ReceptorCatch;
 use retidose::data::TABLE_FILES;
+use retidose::kinetics::Pigment;
 use retidose::limits::{Form, LimitQuantity, LimitSet, TMax, Verdict, builtin_sets, builtin_weightings};
 use retidose::limits_report::{LIMITS_CAUTION, LimitsAssessment};
 use retidose::photometry::{Photometric, PhotometricResult};
@@ -825,4 +827,196 @@ pub fn limits_json(r: &LimitsAssessment) -> String {
         "notes": r.notes,
     });
     pretty(&doc)
+}
+
+/// The terminal table of a bleaching run.
+pub fn bleach_table(r: &BleachReport) -> String {
+    let mut o = String::new();
+    let unit = r.level_unit.symbol();
+    let _ = writeln!(o, "retidose bleach: {} ({} model)", r.receptor, r.model.name());
+    let _ = writeln!(
+        o,
+        "  parameters  τ0 {} s, v {} /min, K_m {}{}",
+        num(r.constants.tau0_s),
+        num(r.constants.v_per_s * 60.0),
+        num(r.constants.k_m),
+        if r.from_memory.is_empty() {
+            String::new()
+        } else {
+            format!("  [from memory: {}]", r.from_memory.join(", "))
+        }
+    );
+    let _ = writeln!(o, "  schedule    {} steps, {}", r.steps, duration_text(r.total_s));
+    let _ = writeln!(o, "\nPhases (last step of each)");
+    let _ = writeln!(
+        o,
+        "  {:<14} {:>6} {:>16} {:>11} {:>11} {:>13}",
+        "phase", "steps", "level", "end", "max end", "steady state"
+    );
+    for p in &r.phases {
+        let _ = writeln!(
+            o,
+            "  {:<14} {:>6} {:>16} {:>10.4}% {:>10.4}% {:>12.4}%",
+            p.name,
+            p.steps,
+            format!("{} {unit}", num(p.level)),
+            100.0 * p.end,
+            100.0 * p.max_end,
+            100.0 * p.steady_state
+        );
+    }
+    let s = &r.summary;
+    let _ = writeln!(
+        o,
+        "\nBleached at the end {:.4} %, peak {:.4} % at {}, time-weighted mean {:.4} %",
+        100.0 * s.end,
+        100.0 * s.peak,
+        duration_text(s.peak_s),
+        100.0 * s.mean
+    );
+    let rec = &r.recovery;
+    let t = |x: f64| if x.is_finite() { duration_text(x) } else { "—".to_string() };
+    let _ = writeln!(
+        o,
+        "Recovery in darkness from the end of exposure (t = {}, {:.4} % bleached): 90 % regenerated after {}, 95 % after {}, 99 % after {}",
+        duration_text(rec.from_s),
+        100.0 * rec.bleached_at_start,
+        t(rec.to_90_s),
+        t(rec.to_95_s),
+        t(rec.to_99_s)
+    );
+    if let Some(sat) = &r.saturation {
+        let _ = writeln!(o, "Saturation: {sat}");
+    }
+    for th in &r.thresholds {
+        let _ = writeln!(o, "\nRod threshold estimate — {}", th.basis);
+        let pts: Vec<String> = th
+            .curve
+            .iter()
+            .filter(|p| (p.0 as usize).is_multiple_of(10) && p.0 <= 60.0)
+            .map(|p| format!("{} min: {:.2}", p.0, p.1))
+            .collect();
+        let _ = writeln!(o, "  log elevation  {}", pts.join(", "));
+        match th.to_within_0_1_log_min {
+            Some(m) => {
+                let _ = writeln!(
+                    o,
+                    "  within 0.1 log units of absolute threshold after about {m} min (estimate)"
+                );
+            }
+            None => {
+                let _ = writeln!(o, "  not within 0.1 log units after 120 min (estimate)");
+            }
+        }
+    }
+    let _ = writeln!(o, "\nNotes");
+    for n in &r.notes {
+        let _ = writeln!(o, "  - {n}");
+    }
+    let _ = writeln!(o, "\n{CAUTION}");
+    o
+}
+
+/// The JSON document of a bleaching run (schema `retidose.bleach/1`).
+pub fn bleach_json(r: &BleachReport) -> String {
+    let doc = json!({
+        "schema": "retidose.bleach/1",
+        "receptor": r.receptor,
+        "model": r.model.name(),
+        "level_unit": r.level_unit.symbol(),
+        "parameters": { "tau0_s": r.constants.tau0_s, "v_per_min": r.constants.v_per_s * 60.0, "k_m": r.constants.k_m },
+        "from_memory": r.from_memory,
+        "total_s": r.total_s,
+        "steps": r.steps,
+        "phases": r.phases.iter().map(|p| json!({
+            "name": p.name, "steps": p.steps, "level": p.level, "end_bleached": p.end,
+            "max_end_bleached": p.max_end, "steady_state_bleached": p.steady_state,
+        })).collect::<Vec<_>>(),
+        "end_bleached": r.summary.end,
+        "peak_bleached": r.summary.peak,
+        "peak_time_s": r.summary.peak_s,
+        "mean_bleached": r.summary.mean,
+        "recovery_s": {
+            "from_s": r.recovery.from_s,
+            "bleached_at_start": r.recovery.bleached_at_start,
+            "to_90_percent": finite(r.recovery.to_90_s),
+            "to_95_percent": finite(r.recovery.to_95_s),
+            "to_99_percent": finite(r.recovery.to_99_s),
+        },
+        "saturation": r.saturation,
+        "thresholds": r.thresholds.iter().map(|t| json!({
+            "basis": t.basis,
+            "within_0_1_log_min": t.to_within_0_1_log_min,
+            "curve_min_log": t.curve,
+        })).collect::<Vec<_>>(),
+        "notes": r.notes,
+        "caution": CAUTION,
+    });
+    pretty(&doc)
+}
+
+fn finite(x: f64) -> Value {
+    if x.is_finite() { json!(x) } else { Value::Null }
+}
+
+/// The sampled time course as CSV.
+pub fn time_course_csv(r: &BleachReport) -> String {
+    let mut o = format!(
+        "# retidose bleach time course: {} ({} model)\ntime_s,bleached_fraction\n",
+        r.receptor,
+        r.model.name()
+    );
+    for (t, b) in &r.time_course {
+        let _ = writeln!(o, "{t},{b}");
+    }
+    o
+}
+
+/// The sampled time course as JSON.
+pub fn time_course_json(r: &BleachReport) -> String {
+    pretty(
+        &json!({ "schema": "retidose.time-course/1", "receptor": r.receptor, "model": r.model.name(), "time_s_bleached": r.time_course }),
+    )
+}
+
+/// A rod flash response as a table.
+pub fn flash_table(p: &Pigment, r: &FlashResponse) -> String {
+    let mut o = String::new();
+    let _ = writeln!(
+        o,
+        "retidose bleach: rod response estimate for {} to a flash of {} R*/rod",
+        p.id,
+        num(r.phi)
+    );
+    let _ = writeln!(o, "  basis        {}", r.basis);
+    let _ = writeln!(
+        o,
+        "  50 % of the circulating current suppressed at {} ms, 95 % at {} ms",
+        num(r.t_half_s * 1e3),
+        num(r.t_95_s * 1e3)
+    );
+    let _ = writeln!(o, "  saturating   {}", if r.saturating { "yes (95 % within 100 ms)" } else { "no" });
+    let pts: Vec<String> =
+        r.curve.iter().step_by(10).map(|(t, x)| format!("{} ms: {:.3}", num(t * 1e3), x)).collect();
+    let _ = writeln!(o, "  suppressed   {}", pts.join(", "));
+    let _ =
+        writeln!(o, "\nThis is an estimate of the response's rising phase, not a measurement.\n{CAUTION}");
+    o
+}
+
+/// A rod flash response as JSON.
+pub fn flash_json(p: &Pigment, r: &FlashResponse) -> String {
+    pretty(&json!({
+        "schema": "retidose.rod-response/1",
+        "receptor": p.id,
+        "flash_r_star_per_rod": r.phi,
+        "amplification_per_s2": r.amplification,
+        "effective_delay_s": r.delay_s,
+        "t_half_s": r.t_half_s,
+        "t_95_s": r.t_95_s,
+        "saturating": r.saturating,
+        "curve_s_fraction": r.curve,
+        "basis": r.basis,
+        "caution": CAUTION,
+    }))
 }
