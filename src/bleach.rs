@@ -6,7 +6,7 @@ use crate::kinetics::{
     Constants, LevelUnit, Model, Pigment, builtin_pigments, dark_time_to, light_time_to,
     rate_for_steady_state, steady_state,
 };
-use crate::schedule::{Schedule, Summary, run, sample, summarise};
+use crate::schedule::{Schedule, Summary, run, sample};
 
 /// One named phase of the schedule (all steps of that name), for the report.
 #[derive(Debug, Clone, PartialEq)]
@@ -120,24 +120,30 @@ pub fn assess(
             steady_state: 0.0,
         })
         .collect();
-    run(model, c, schedule, b0, |o| {
+    // One pass: phases, summary and the end of exposure (the end of the last lit step, from
+    // which recovery is counted).
+    let (mut peak, mut peak_s, mut area) = (b0, 0.0, 0.0);
+    let (mut exposure_end_b, mut exposure_end_s) = (b0, 0.0);
+    let end = run(model, c, schedule, b0, |o| {
         let s = &schedule.steps[o.index];
+        let step_end = o.start_s + s.duration_s;
         let row = &mut phases[s.name];
         row.steps += 1;
         row.level = pigment.level_of_rate(s.rate_per_s);
         row.end = o.b_end;
         row.max_end = row.max_end.max(o.b_end);
         row.steady_state = o.steady_state;
-    });
-    let summary = summarise(model, c, schedule, b0);
-    // Recovery is counted from the end of the last lit step (the end of exposure).
-    let (mut exposure_end_b, mut exposure_end_s) = (b0, 0.0);
-    run(model, c, schedule, b0, |o| {
-        if schedule.steps[o.index].rate_per_s > 0.0 {
+        if o.b_end > peak {
+            peak = o.b_end;
+            peak_s = step_end;
+        }
+        area += o.integral_s;
+        if s.rate_per_s > 0.0 {
             exposure_end_b = o.b_end;
-            exposure_end_s = o.start_s + schedule.steps[o.index].duration_s;
+            exposure_end_s = step_end;
         }
     });
+    let summary = Summary { end, peak, peak_s, mean: area / schedule.total_s() };
     let back = |b: f64| dark_time_to(model, c, exposure_end_b, b).unwrap_or(f64::INFINITY);
     let recovery = Recovery {
         from_s: exposure_end_s,

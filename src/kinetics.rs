@@ -305,9 +305,8 @@ fn wright_omega_large(x: f64) -> f64 {
     w
 }
 
-/// ∫₀^dt B dt for the same step, closed form.
-pub fn integral(model: Model, c: Constants, b0: f64, k_per_s: f64, dt_s: f64) -> f64 {
-    let b1 = advance(model, c, b0, k_per_s, dt_s);
+/// ∫₀^dt B dt for a step from `b0` to `b1` (as [`advance`] gives it), closed form.
+pub fn integral(model: Model, c: Constants, b0: f64, b1: f64, k_per_s: f64, dt_s: f64) -> f64 {
     match model {
         Model::Rushton => {
             let lambda = k_per_s + 1.0 / c.tau0_s;
@@ -319,15 +318,11 @@ pub fn integral(model: Model, c: Constants, b0: f64, k_per_s: f64, dt_s: f64) ->
             (c.k_m * (b0 - b1) + 0.5 * (b0 * b0 - b1 * b1)) / c.v_per_s
         }
         Model::RateLimited => {
+            // ∫B dt = r₁ t + ∫(B − r₁) dt, and (B − r₁)·dt/dB = −(K_m + B)/(k (B − r₂)), so
+            // ∫(B − r₁) dt = −[(B₁ − B₀) + (K_m + r₂) ln((B₁ − r₂)/(B₀ − r₂))]/k (no singular term).
             let (r1, r2) = roots(c, k_per_s);
-            if (b1 - b0).abs() < 1e-15 {
-                return b0 * dt_s;
-            }
-            let cc = r1 * (c.k_m + r1) / (r1 - r2);
-            let dd = r2 * (c.k_m + r2) / (r2 - r1);
-            let l1 = ((b1 - b0) / (b0 - r1)).ln_1p();
             let l2 = ((b1 - b0) / (b0 - r2)).ln_1p();
-            -((b1 - b0) + cc * l1 + dd * l2) / k_per_s
+            r1 * dt_s - ((b1 - b0) + (c.k_m + r2) * l2) / k_per_s
         }
     }
 }

@@ -113,7 +113,7 @@ pub fn run(
             start_s: t,
             b_start: b,
             b_end,
-            integral_s: integral(model, c, b, s.rate_per_s, s.duration_s),
+            integral_s: integral(model, c, b, b_end, s.rate_per_s, s.duration_s),
             steady_state: steady_state(model, c, s.rate_per_s),
         };
         each(&outcome);

@@ -487,3 +487,121 @@ fn limits_check_rejects_bad_input() {
     fails(with(&["--for", "1 h", "--set-file", p.to_str().unwrap()]), "unit 'W/m3' does not fit");
     fails(with(&["--for", "1 h", "--set", "icnirp-1899"]), "unknown limit set 'icnirp-1899'");
 }
+
+#[test]
+fn bleach_quick_form_reports_phases_recovery_and_thresholds() {
+    let v = json(&[
+        "bleach",
+        "--receptor",
+        "human-rod",
+        "--retinal",
+        "1e6 td",
+        "--for",
+        "60 s",
+        "--then-dark",
+        "40 min",
+    ]);
+    assert_eq!(v["schema"], "retidose.bleach/1");
+    assert_eq!(v["model"], "rate-limited");
+    let peak = v["peak_bleached"].as_f64().unwrap();
+    assert!(peak > 0.98 && peak < 0.99, "{peak}");
+    let to99 = v["recovery_s"]["to_99_percent"].as_f64().unwrap() / 60.0;
+    assert!(to99 > 20.0 && to99 < 25.0, "{to99} min");
+    assert_eq!(v["thresholds"].as_array().unwrap().len(), 2);
+    assert!(v["saturation"].as_str().unwrap().contains("saturated"));
+    retidose()
+        .args([
+            "bleach",
+            "--receptor",
+            "human-rod",
+            "--retinal",
+            "20000 td",
+            "--for",
+            "30 s",
+            "--model",
+            "rushton",
+        ])
+        .assert()
+        .success()
+        .stdout(predicate::str::contains("rushton model"))
+        .stdout(predicate::str::contains("Recovery in darkness"));
+}
+
+#[test]
+fn bleach_inverse_solves_and_flash() {
+    retidose()
+        .args(["bleach", "--receptor", "human-rod", "--solve", "steady", "--target", "0.5"])
+        .assert()
+        .success()
+        .stdout(predicate::str::contains("holds 0.5 bleached"));
+    retidose()
+        .args([
+            "bleach",
+            "--receptor",
+            "mouse-rod",
+            "--solve",
+            "duration",
+            "--target",
+            "0.2",
+            "--rate",
+            "1e5 R*/rod/s",
+        ])
+        .assert()
+        .success()
+        .stdout(predicate::str::contains("to reach 0.2"));
+    let v = json(&["bleach", "--receptor", "human-rod", "--flash", "1000"]);
+    assert_eq!(v["schema"], "retidose.rod-response/1");
+    assert_eq!(v["saturating"], true);
+}
+
+#[test]
+fn bleach_rejects_bad_input_and_never_overwrites() {
+    fails(&["bleach", "--receptor", "human-rod", "--retinal=-5 td", "--for", "30 s"], "≥ 0");
+    fails(&["bleach", "--receptor", "human-rod", "--retinal", "5000", "--for", "30 s"], "has no unit");
+    fails(
+        &["bleach", "--receptor", "human-rod", "--retinal", "5000 td", "--for", "0 s"],
+        "must be above 0 s",
+    );
+    fails(
+        &["bleach", "--receptor", "human-rod", "--retinal", "5000 td", "--for", "30 s", "--param", "k_m=0"],
+        "must be above 0",
+    );
+    fails(
+        &[
+            "bleach",
+            "--receptor",
+            "human-rod",
+            "--retinal",
+            "5000 td",
+            "--for",
+            "30 s",
+            "--param",
+            "tau0=-3 s",
+        ],
+        "must be above 0",
+    );
+    fails(
+        &["bleach", "--receptor", "human-rod", "--retinal", "5000 td", "--for", "1 h", "--repeat", "2000000"],
+        "must end",
+    );
+    fails(
+        &["bleach", "--receptor", "cat-rod", "--retinal", "5000 td", "--for", "1 h"],
+        "unknown receptor 'cat-rod'",
+    );
+    let out = temp_file("course.csv", "keep me\n");
+    fails(
+        &[
+            "bleach",
+            "--receptor",
+            "human-rod",
+            "--retinal",
+            "5000 td",
+            "--for",
+            "30 s",
+            "--time-course",
+            out.to_str().unwrap(),
+        ],
+        "never overwritten",
+    );
+    assert_eq!(std::fs::read_to_string(&out).unwrap(), "keep me\n");
+}
