@@ -1,6 +1,7 @@
 //! Argument parsing (clap) and dispatch. Rendering lives in [`render`].
 
 mod render;
+mod report;
 
 use std::path::Path;
 
@@ -57,6 +58,9 @@ enum Command {
     /// Corneal and retinal quantities and photoreceptor catch for a human, mouse or rat eye
     #[command(after_help = RETINA_EXAMPLES)]
     Retina(Box<RetinaArgs>),
+    /// The main job: one scenario file in, one assessment out (try --demo)
+    #[command(after_help = ASSESS_EXAMPLES)]
+    Assess(Box<AssessArgs>),
     /// Pigment bleaching and recovery over an exposure schedule (rods and cones)
     #[command(after_help = BLEACH_EXAMPLES)]
     Bleach(Box<BleachArgs>),
@@ -65,6 +69,129 @@ enum Command {
     Limits(LimitsCommand),
     /// List the built-in light sources, generators and reference tables
     Sources,
+}
+
+const ASSESS_EXAMPLES: &str = "\
+Built-in demos (invented, in the fictional Fenwick Institute of Comparative Vision):
+  vivarium          albino mice on a rack under LED panels, 12 h : 12 h with a dark-phase leak
+  dark-adaptation   a human rod bleach of 60 s at 5000 cd/m², then 40 min of darkness
+  stimulus-review   a 460 nm stimulus LED at 200 mm against IEC 62471 and the EU Directive
+
+Examples:
+  retidose assess --demo
+  retidose assess --demo vivarium --format html -o vivarium.html
+  retidose assess --example vivarium > my-room.toml
+  retidose assess my-room.toml --format json
+
+Exit status: 0 when every assessed item is within its limits and no guidance flag is raised,
+1 when a limit is exceeded or a guidance flag is raised, 2 on an input error. A --demo run exits
+with 0 (its flags are there to show them); its Outcome lines say what a scenario file would give.";
+
+#[derive(Debug, Args)]
+struct AssessArgs {
+    /// A scenario file (see `retidose assess --example`)
+    #[arg(value_name = "SCENARIO", conflicts_with_all = ["demo", "example"], required_unless_present_any = ["demo", "example"])]
+    scenario: Option<String>,
+    /// Run a built-in demo (all three when no name is given)
+    #[arg(long, value_name = "NAME", num_args = 0..=1, default_missing_value = "all")]
+    demo: Option<String>,
+    /// Print an annotated scenario to start from (the vivarium demo when no name is given)
+    #[arg(long, value_name = "NAME", num_args = 0..=1, default_missing_value = "vivarium")]
+    example: Option<String>,
+    /// Report format
+    #[arg(long, value_enum, default_value_t = ReportFormat::Table)]
+    format: ReportFormat,
+    /// Write the report to this file instead of the terminal (refuses to overwrite without --force)
+    #[arg(short = 'o', long = "output", value_name = "FILE")]
+    output: Option<String>,
+    /// Allow -o to replace an existing file (never an input)
+    #[arg(long)]
+    force: bool,
+}
+
+/// Report formats of `assess`.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, ValueEnum)]
+enum ReportFormat {
+    /// Tables for the terminal
+    Table,
+    /// JSON (schema retidose.assessment/1)
+    Json,
+    /// CSV: one row per cage position, or per hazard
+    Csv,
+    /// Markdown
+    Markdown,
+    /// One self-contained HTML file with inline SVG plots
+    Html,
+}
+
+/// What a command produced: the text and the exit status.
+pub struct Output {
+    /// Text for standard output (empty when written to a file).
+    pub text: String,
+    /// Exit status.
+    pub status: u8,
+}
+
+fn assess_cmd(a: AssessArgs) -> Result<Output> {
+    use retidose::assessment::{DEMOS, assess, demo, parse_scenario_file};
+    if let Some(name) = &a.example {
+        return Ok(Output { text: demo(name)?.to_string(), status: 0 });
+    }
+    let mut inputs: Vec<std::path::PathBuf> = Vec::new();
+    let scenarios = match (&a.demo, &a.scenario) {
+        (Some(name), _) => {
+            let names: Vec<&str> =
+                if name == "all" { DEMOS.iter().map(|d| d.0).collect() } else { vec![name.as_str()] };
+            names
+                .into_iter()
+                .map(|n| Ok(parse_scenario_file(demo(n)?, &format!("demo {n}"), None)?))
+                .collect::<Result<Vec<_>>>()?
+        }
+        (None, Some(file)) => {
+            let text =
+                std::fs::read_to_string(file).with_context(|| format!("cannot read the scenario {file}"))?;
+            inputs.push(Path::new(file).to_path_buf());
+            vec![parse_scenario_file(&text, file, Path::new(file).parent())?]
+        }
+        (None, None) => bail!("give a scenario file, --demo or --example"),
+    };
+    {
+        use std::io::IsTerminal;
+        if std::io::stderr().is_terminal() {
+            eprintln!("retidose: assessing {} scenario(s)…", scenarios.len());
+        }
+    }
+    let results = scenarios.iter().map(assess).collect::<std::result::Result<Vec<_>, _>>()?;
+    // A demo raises flags on purpose; its run is a success. Scenario files get the documented
+    // status (1 when a limit is exceeded or a guidance flag is raised).
+    let raised = results.iter().any(|r| r.limit_exceeded || r.flag_raised);
+    let status = u8::from(raised && a.demo.is_none());
+    let colour = a.output.is_none() && report::use_colour();
+    let text = match a.format {
+        ReportFormat::Table => report::terminal(&results, colour),
+        ReportFormat::Json => report::json_doc(&results),
+        ReportFormat::Csv => report::csv(&results),
+        ReportFormat::Markdown => report::markdown(&results),
+        ReportFormat::Html => report::html(&results),
+    };
+    match &a.output {
+        None => Ok(Output { text, status }),
+        Some(path) => {
+            let target = Path::new(path);
+            let same = |p: &Path| match (p.canonicalize(), target.canonicalize()) {
+                (Ok(x), Ok(y)) => x == y,
+                _ => false,
+            };
+            if inputs.iter().any(|i| same(i)) {
+                bail!("-o {path} is an input of this run; it is never overwritten");
+            }
+            if target.exists() && !a.force {
+                bail!("-o {path} exists; give --force to replace it");
+            }
+            std::fs::write(target, text).with_context(|| format!("cannot write {path}"))?;
+            Ok(Output { text: String::new(), status })
+        }
+    }
 }
 
 const BLEACH_EXAMPLES: &str = "\
@@ -423,9 +550,10 @@ enum Format {
     Json,
 }
 
-/// Runs the parsed command and returns the text to print.
-pub fn run(cli: Cli) -> Result<String> {
-    match cli.command {
+/// Runs the parsed command and returns the text to print with the exit status.
+pub fn run(cli: Cli) -> Result<Output> {
+    let text = match cli.command {
+        Command::Assess(args) => return assess_cmd(*args),
         Command::Spectrum(args) => spectrum(*args),
         Command::Retina(args) => retina(*args),
         Command::Bleach(args) => bleach(*args),
@@ -436,7 +564,8 @@ pub fn run(cli: Cli) -> Result<String> {
         }
         Command::Limits(LimitsCommand::Check(args)) => check(*args),
         Command::Sources => Ok(render::sources()),
-    }
+    }?;
+    Ok(Output { text, status: 0 })
 }
 
 fn scale_target(a: &ScaleArgs) -> Result<Option<ScaleTarget>> {
@@ -613,6 +742,7 @@ fn retina(a: RetinaArgs) -> Result<String> {
                 adapting_luminance: a.adapting_luminance.clone(),
                 albino_iris: a.albino_iris,
                 eye_file: a.eye_file.clone(),
+                pigmentation: None,
             };
             let filters = a.place.filter_specs();
             build(&subject, &[src], &filters, None)?

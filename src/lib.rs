@@ -26,6 +26,7 @@
 #![forbid(unsafe_code)]
 
 pub mod alpha_opic;
+pub mod assessment;
 pub mod bleach;
 pub mod bleach_scenario;
 pub mod catch;
@@ -37,6 +38,7 @@ pub mod eye;
 pub mod filter;
 pub mod generate;
 pub mod geometry;
+pub mod guidance;
 pub mod kinetics;
 pub mod lens;
 pub mod limits;
@@ -53,7 +55,9 @@ pub mod schedule;
 pub mod source;
 pub mod spectrum;
 pub mod spectrum_report;
+pub mod survey;
 pub mod template;
+pub mod toml_errors;
 pub mod units;
 
 pub use error::{Error, ErrorKind, Result};

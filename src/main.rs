@@ -8,12 +8,12 @@ use std::process::ExitCode;
 fn main() -> ExitCode {
     let args = <cli::Cli as clap::Parser>::parse();
     match cli::run(args) {
-        Ok(text) => {
+        Ok(output) => {
             let mut out = std::io::stdout().lock();
-            match out.write_all(text.as_bytes()).and_then(|()| out.flush()) {
-                Ok(()) => ExitCode::SUCCESS,
+            match out.write_all(output.text.as_bytes()).and_then(|()| out.flush()) {
+                Ok(()) => ExitCode::from(output.status),
                 // A closed pipe (`retidose … | head`) is not an error.
-                Err(e) if e.kind() == std::io::ErrorKind::BrokenPipe => ExitCode::SUCCESS,
+                Err(e) if e.kind() == std::io::ErrorKind::BrokenPipe => ExitCode::from(output.status),
                 Err(e) => {
                     eprintln!("retidose: error: cannot write the output: {e}");
                     ExitCode::from(2)

@@ -38,6 +38,8 @@ use crate::units::{parse_angle, parse_length, parse_luminance, parse_time};
 #[derive(Debug, Clone, Default, PartialEq, Deserialize)]
 #[serde(deny_unknown_fields)]
 pub struct SourceSpec {
+    /// A name for the source (used by schedules and reports).
+    pub id: Option<String>,
     /// A built-in lamp, a generator or a file (relative to the scenario file).
     pub spectrum: String,
     /// Scale to a measured illuminance at the eye.
@@ -81,6 +83,8 @@ pub struct SourceSpec {
 pub struct SubjectSpec {
     /// `human`, `mouse` or `rat`.
     pub species: String,
+    /// `albino` or `pigmented` (rodents; albino animals get the Guide's phototoxicity range).
+    pub pigmentation: Option<String>,
     /// Pupil diameter or rule.
     pub pupil: Option<String>,
     /// Age (`"32 y"`).

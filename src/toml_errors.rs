@@ -1,0 +1,60 @@
+//! Turning TOML and serde errors into one-line messages that name the file and line and, for an
+//! unknown key, suggest the nearest valid one.
+
+/// Edit distance between two short strings (Levenshtein).
+fn distance(a: &str, b: &str) -> usize {
+    let b: Vec<char> = b.chars().collect();
+    let mut prev: Vec<usize> = (0..=b.len()).collect();
+    for (i, ca) in a.chars().enumerate() {
+        let mut cur = vec![i + 1];
+        for (j, cb) in b.iter().enumerate() {
+            let sub = prev[j] + usize::from(ca != *cb);
+            cur.push(sub.min(prev[j + 1] + 1).min(cur[j] + 1));
+        }
+        prev = cur;
+    }
+    prev[b.len()]
+}
+
+/// The message of a TOML deserialisation error on one line, prefixed with `origin`, with a
+/// "did you mean" suggestion when serde reports an unknown field and lists the expected ones.
+pub fn describe(e: &toml::de::Error, origin: &str) -> String {
+    let text: Vec<String> =
+        e.to_string().lines().map(|l| l.trim().to_string()).filter(|l| !l.is_empty()).collect();
+    let mut msg = format!("{origin}: {}", text.join(" "));
+    if let Some(rest) = msg.split("unknown field `").nth(1) {
+        let unknown = rest.split('`').next().unwrap_or("").to_string();
+        let expected: Vec<String> = msg
+            .split("expected one of ")
+            .nth(1)
+            .or_else(|| msg.split("expected ").nth(1))
+            .map(|l| l.split('`').skip(1).step_by(2).map(str::to_string).collect())
+            .unwrap_or_default();
+        if let Some(best) = expected.iter().min_by_key(|k| distance(&unknown, k)) {
+            msg.push_str(&format!("; did you mean `{best}`?"));
+        }
+    }
+    msg
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[derive(serde::Deserialize, Debug)]
+    #[serde(deny_unknown_fields)]
+    #[allow(dead_code, reason = "fields are only deserialised in this test")]
+    struct S {
+        species: String,
+        pupil: String,
+    }
+
+    #[test]
+    fn suggests_the_nearest_key_and_names_the_line() {
+        let e = toml::from_str::<S>("species = \"mouse\"\npupl = \"dark\"\n").unwrap_err();
+        let m = describe(&e, "x.toml");
+        assert!(m.starts_with("x.toml: "), "{m}");
+        assert!(m.contains("line 2"), "{m}");
+        assert!(m.contains("did you mean `pupil`?"), "{m}");
+    }
+}
