@@ -174,6 +174,8 @@ pub struct Scenario {
     pub survey: Option<SurveySpec>,
     /// Where relative files are looked up.
     pub base: Option<std::path::PathBuf>,
+    /// The file (or demo) it came from, for messages.
+    pub origin: String,
 }
 
 /// One step of a scenario's schedule.
@@ -463,6 +465,7 @@ pub fn parse_scenario_file(text: &str, origin: &str, base: Option<&Path>) -> Res
         guidance,
         survey,
         base: base.map(Path::to_path_buf),
+        origin: origin.to_string(),
     })
 }
 
@@ -536,6 +539,10 @@ pub struct Assessment {
 /// # Errors
 /// Any error of the chain it runs, naming the source or key.
 pub fn assess(s: &Scenario) -> Result<Assessment> {
+    assess_inner(s).map_err(|e| if e.message().starts_with(&s.origin) { e } else { e.context(&s.origin) })
+}
+
+fn assess_inner(s: &Scenario) -> Result<Assessment> {
     let base = s.base.as_deref();
     let mut provenance = Vec::new();
     let mut not_assessed = Vec::new();

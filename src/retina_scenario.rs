@@ -165,6 +165,9 @@ pub fn place(spec: &SourceSpec, base: Option<&Path>) -> Result<PlacedSource> {
     let path = rel(base, &spec.spectrum);
     let name = if path.is_file() { path.to_string_lossy().into_owned() } else { spec.spectrum.clone() };
     let mut spectrum = resolve(&name, None).map_err(|e| e.context("key 'spectrum'"))?;
+    if let Some(id) = &spec.id {
+        spectrum = spectrum.with_label(id.clone());
+    }
     if let Some((key, value)) = given.first() {
         let t = ScaleTarget::parse(key, value).map_err(|e| e.context(format!("key '{key}'")))?;
         spectrum = scale_to(&spectrum, t).map_err(|e| e.context(format!("key '{key}'")))?;
