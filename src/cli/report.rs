@@ -558,7 +558,7 @@ pub fn esc(s: &str) -> String {
 type Series<'a> = (&'a str, &'a str, Vec<(f64, f64)>);
 
 fn svg_lines(title: &str, series: &[Series<'_>], x_label: &str, y_label: &str, log_y: bool) -> String {
-    let (w, h, l, r, t, b) = (640.0, 300.0, 60.0, 150.0, 30.0, 40.0);
+    let (w, h, l, r, t, b) = (700.0, 300.0, 70.0, 190.0, 30.0, 40.0);
     let pts: Vec<(f64, f64)> = series
         .iter()
         .flat_map(|s| s.2.iter().copied())
@@ -602,6 +602,15 @@ fn svg_lines(title: &str, series: &[Series<'_>], x_label: &str, y_label: &str, l
         h / 2.0,
         esc(y_label)
     );
+    let unlog = |v: f64| if log_y { 10f64.powf(v) } else { v };
+    for (v, y) in [(unlog(y1), t + 4.0), (unlog(y0), h - b)] {
+        let _ = write!(
+            o,
+            "<text x=\"{}\" y=\"{y}\" font-size=\"10\" text-anchor=\"end\">{}</text>",
+            l - 4.0,
+            num(v)
+        );
+    }
     for (i, (name, colour, data)) in series.iter().enumerate() {
         let path: Vec<String> = data
             .iter()
@@ -672,7 +681,7 @@ fn svg_bars(title: &str, bars: &[(String, f64)]) -> String {
 
 fn svg_heatmap(s: &retidose::assessment::SurveyResult) -> String {
     let (cell, l, t) = (56.0, 70.0, 30.0);
-    let w = l + cell * s.columns as f64 + 20.0;
+    let w = (l + cell * s.columns as f64 + 20.0).max(560.0);
     let h = t + cell * s.shelves as f64 + 40.0;
     let max = s.positions.iter().map(|p| p.room_lux).fold(0.0, f64::max).max(1e-9);
     let mut o = format!(
@@ -680,14 +689,14 @@ fn svg_heatmap(s: &retidose::assessment::SurveyResult) -> String {
     );
     let _ = write!(
         o,
-        "<text x=\"10\" y=\"18\" font-size=\"13\" font-weight=\"bold\">Room lux at cage level over the rack (flagged cells outlined)</text>"
+        "<text x=\"10\" y=\"18\" font-size=\"13\" font-weight=\"bold\">Room lux at cage level (red outline: outside the light-phase guidance)</text>"
     );
     for p in &s.positions {
         let x = l + cell * (p.position.column - 1) as f64;
         let y = t + cell * (s.shelves - p.position.shelf) as f64;
         let f = p.room_lux / max;
         let (r, g, bl) = ((255.0 * f) as u8, (200.0 * f + 30.0) as u8, (80.0 * (1.0 - f) + 40.0) as u8);
-        let stroke = if p.flags.is_empty() { "#fff" } else { "#d50000" };
+        let stroke = if p.flags.iter().any(|f| f != "dark-phase") { "#d50000" } else { "#fff" };
         let _ = write!(
             o,
             "<rect x=\"{x}\" y=\"{y}\" width=\"{cell}\" height=\"{cell}\" fill=\"rgb({r},{g},{bl})\" stroke=\"{stroke}\" stroke-width=\"3\"/><text x=\"{}\" y=\"{}\" font-size=\"11\" text-anchor=\"middle\">{:.0}</text>",
