@@ -332,7 +332,14 @@ impl Eye {
 }
 
 fn convert<T>(p: &RawParam, key: &str, origin: &str, parse: impl Fn(&str) -> Result<T>) -> Result<Param<T>> {
-    let at = format!("{origin}: key '{key}'");
+    read_param(p, &format!("{origin}: key '{key}'"), parse)
+}
+
+/// Reads a `{ value, status, source }` parameter; `at` names the file and key in errors.
+///
+/// # Errors
+/// [`crate::ErrorKind::InvalidData`] for a value that does not parse or an unknown status.
+pub(crate) fn read_param<T>(p: &RawParam, at: &str, parse: impl Fn(&str) -> Result<T>) -> Result<Param<T>> {
     let value = parse(&p.value).map_err(|e| Error::data(format!("{at}: {e}")))?;
     let status = Status::parse(&p.status).ok_or_else(|| {
         Error::data(format!(
@@ -361,9 +368,10 @@ struct RawEye {
     rod_troland_factors: BTreeMap<String, RawParam>,
 }
 
+/// A `{ value, status, source }` table as written in the data files.
 #[derive(Deserialize, Clone)]
 #[serde(deny_unknown_fields)]
-struct RawParam {
+pub(crate) struct RawParam {
     value: String,
     status: String,
     source: String,

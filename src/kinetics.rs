@@ -18,7 +18,7 @@
 use serde::Deserialize;
 
 use crate::error::{Error, Result};
-use crate::eye::{Param, Species, Status};
+use crate::eye::{Param, RawParam, Species, Status};
 use crate::quantity::{Frequency, SiValue, Time};
 use crate::units::{
     parse_isomerisation_rate, parse_number, parse_rate, parse_time, parse_troland_seconds, parse_trolands,
@@ -385,14 +385,6 @@ pub struct DarkAdaptationParams {
     pub dowling_rushton_alpha: Param<f64>,
 }
 
-#[derive(Deserialize, Clone)]
-#[serde(deny_unknown_fields)]
-struct RawParam {
-    value: String,
-    status: String,
-    source: String,
-}
-
 #[derive(Deserialize)]
 #[serde(deny_unknown_fields)]
 struct RawPigment {
@@ -427,22 +419,9 @@ pub struct RodResponseParams {
     pub effective_delay: Param<Time>,
 }
 
-fn status(p: &RawParam, at: &str) -> Result<Status> {
-    match p.status.as_str() {
-        "confirmed" => Ok(Status::Confirmed),
-        "derived" => Ok(Status::Derived),
-        "from memory" => Ok(Status::FromMemory),
-        "common practice, no source" => Ok(Status::NoSource),
-        o => Err(Error::data(format!("{at}: unknown status '{o}'"))),
-    }
-}
-
+/// A parameter read from `at` ("file: key 'name'"), through the eye module's shared reader.
 fn param<T>(p: &RawParam, at: &str, parse: impl Fn(&str) -> Result<T>) -> Result<Param<T>> {
-    Ok(Param {
-        value: parse(&p.value).map_err(|e| Error::data(format!("{at}: {e}")))?,
-        status: status(p, at)?,
-        source: p.source.clone(),
-    })
+    crate::eye::read_param(p, at, parse)
 }
 
 /// The pigment parameter file, parsed.
