@@ -1,7 +1,7 @@
 //! Embedded reference tables, parsed once.
 //!
 //! The tables are CSV files under `src/data/`, each with a header naming its source,
-//! edition, transcription and status. They are compiled into the binary so the tool works
+//! edition, where it was copied from and its status. They are compiled into the binary so the tool works
 //! from any folder.
 
 use std::sync::LazyLock;

@@ -3,7 +3,7 @@
 //! Govardovskii VI, Fyhrquist N, Reuter T, Kuzmin DG, Donner K (2000) "In search of the
 //! visual pigment template", Visual Neuroscience 17:509–528, Eqs. (1) and (4) for A1 pigments.
 //! Constants as transcribed in the project's reference notes (status: confirmed through a
-//! secondary transcription of the paper's equations):
+//! secondary copy of the paper's equations):
 //!
 //! α-band, x = λmax/λ:
 //! S_α = 1 / {exp[A(a − x)] + exp[B(b − x)] + exp[C(c − x)] + D},
