@@ -156,25 +156,16 @@ pub fn assess(
     let thresholds = if is_rod { threshold_estimates(model, c, exposure_end_b) } else { Vec::new() };
     let max_level = schedule.steps.iter().map(|s| pigment.level_of_rate(s.rate_per_s)).fold(0.0, f64::max);
     let saturation = pigment.saturating_level.as_ref().map(|sat| {
-        if max_level >= sat.value {
-            format!(
-                "the brightest step ({:.4e} {}) reaches the rod saturation level ({:.4e} {}, {}): rods are saturated during it",
-                max_level,
-                pigment.level_unit.symbol(),
-                sat.value,
-                pigment.level_unit.symbol(),
-                sat.status
-            )
+        let u = pigment.level_unit.symbol();
+        let (verb, tail) = if max_level >= sat.value {
+            ("reaches", ": rods are saturated during it")
         } else {
-            format!(
-                "the brightest step ({:.4e} {}) is below the rod saturation level ({:.4e} {}, {})",
-                max_level,
-                pigment.level_unit.symbol(),
-                sat.value,
-                pigment.level_unit.symbol(),
-                sat.status
-            )
-        }
+            ("is below", "")
+        };
+        format!(
+            "the brightest step ({max_level:.4e} {u}) {verb} the rod saturation level ({:.4e} {u}, {}){tail}",
+            sat.value, sat.status
+        )
     });
     let mut notes = vec![DEFAULT_MODEL_REASON.to_string()];
     let memo = pigment.from_memory();
