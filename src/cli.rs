@@ -31,6 +31,9 @@ const ABOUT: &str = "Lighting safety and retinal exposure: from a lamp spectrum 
 
 const EXAMPLES: &str = "\
 Examples:
+  retidose assess --demo
+  retidose assess --example vivarium > room.toml
+  retidose assess room.toml --format html -o room.html
   retidose spectrum cie:D65 --illuminance \"250 lx\"
   retidose spectrum blackbody:2856K --luminance \"100 cd/m2\" --format json
   retidose spectrum warm-white-led --illuminance \"300 lx\"
@@ -38,7 +41,8 @@ Examples:
   retidose retina warm-white-led --illuminance \"350 lx\" --full-field --species mouse --pupil dark
   retidose sources
 
-Exit status: 0 on success, 2 on an error (bad input, unreadable file).
+Exit status: 0 on success, 2 on an error (bad input, unreadable file); assess also exits
+with 1 when a limit is exceeded or a guidance flag is raised.
 retidose informs; it does not replace the standards, a qualified optical-radiation
 assessment, veterinary advice or local regulations.";
 
@@ -52,15 +56,15 @@ pub struct Cli {
 
 #[derive(Debug, Subcommand)]
 enum Command {
+    /// The main job: one scenario file in, one assessment out (try --demo)
+    #[command(after_help = ASSESS_EXAMPLES)]
+    Assess(Box<AssessArgs>),
     /// Photometric, scotopic and CIE S 026 α-opic quantities of one spectrum
     #[command(after_help = SPECTRUM_EXAMPLES)]
     Spectrum(Box<SpectrumArgs>),
     /// Corneal and retinal quantities and photoreceptor catch for a human, mouse or rat eye
     #[command(after_help = RETINA_EXAMPLES)]
     Retina(Box<RetinaArgs>),
-    /// The main job: one scenario file in, one assessment out (try --demo)
-    #[command(after_help = ASSESS_EXAMPLES)]
-    Assess(Box<AssessArgs>),
     /// Pigment bleaching and recovery over an exposure schedule (rods and cones)
     #[command(after_help = BLEACH_EXAMPLES)]
     Bleach(Box<BleachArgs>),
