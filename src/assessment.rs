@@ -176,6 +176,8 @@ pub struct Scenario {
     pub base: Option<std::path::PathBuf>,
     /// The file (or demo) it came from, for messages.
     pub origin: String,
+    /// Its text, to find the line of a key named in an error.
+    pub text: String,
 }
 
 /// One step of a scenario's schedule.
@@ -250,6 +252,27 @@ fn key_err(origin: &str, key: &str, e: Error) -> Error {
 /// [`crate::ErrorKind::InvalidData`] or [`crate::ErrorKind::InvalidInput`] naming the file, the
 /// line (for syntax and unknown keys, with the nearest valid key) or the key, and the reason.
 pub fn parse_scenario_file(text: &str, origin: &str, base: Option<&Path>) -> Result<Scenario> {
+    parse_inner(text, origin, base).map_err(|e| with_line(e, text, origin))
+}
+
+/// Puts `origin:LINE` in front of an error that names a key, when the line can be found.
+fn with_line(e: Error, text: &str, origin: &str) -> Error {
+    let msg = e.message();
+    if msg.starts_with(&format!("{origin}:"))
+        && msg[origin.len() + 1..].starts_with(|c: char| c.is_ascii_digit())
+    {
+        return e;
+    }
+    match crate::toml_errors::locate(text, msg) {
+        Some(line) => {
+            let rest = msg.strip_prefix(&format!("{origin}: ")).unwrap_or(msg).to_string();
+            Error::new(e.kind(), format!("{origin}:{line}: {rest}"))
+        }
+        None => e,
+    }
+}
+
+fn parse_inner(text: &str, origin: &str, base: Option<&Path>) -> Result<Scenario> {
     let raw: RawScenario = toml::from_str(text).map_err(|e| Error::data(describe(&e, origin)))?;
     let species = Species::parse(&raw.subject.species).map_err(|e| key_err(origin, "subject.species", e))?;
     if let Some(p) = &raw.subject.pigmentation
@@ -466,6 +489,7 @@ pub fn parse_scenario_file(text: &str, origin: &str, base: Option<&Path>) -> Res
         survey,
         base: base.map(Path::to_path_buf),
         origin: origin.to_string(),
+        text: text.to_string(),
     })
 }
 
@@ -539,7 +563,10 @@ pub struct Assessment {
 /// # Errors
 /// Any error of the chain it runs, naming the source or key.
 pub fn assess(s: &Scenario) -> Result<Assessment> {
-    assess_inner(s).map_err(|e| if e.message().starts_with(&s.origin) { e } else { e.context(&s.origin) })
+    assess_inner(s).map_err(|e| {
+        let e = if e.message().starts_with(&s.origin) { e } else { e.context(&s.origin) };
+        with_line(e, &s.text, &s.origin)
+    })
 }
 
 fn assess_inner(s: &Scenario) -> Result<Assessment> {
