@@ -129,11 +129,8 @@ pub fn level_of_source(
 /// the step or key: unknown keys, a missing or wrong unit, zero-length steps, a step with both or
 /// neither of level and source, parameters outside their range, a schedule that never ends.
 pub fn parse_bleach_scenario(text: &str, origin: &str, base: Option<&Path>) -> Result<BleachScenario> {
-    let raw: RawScenario = toml::from_str(text).map_err(|e| {
-        let msg: Vec<String> =
-            e.to_string().lines().map(|l| l.trim().to_string()).filter(|l| !l.is_empty()).collect();
-        Error::data(format!("{origin}: {}", msg.join(" ")))
-    })?;
+    let raw: RawScenario =
+        toml::from_str(text).map_err(|e| Error::data(crate::toml_errors::describe(&e, origin)))?;
     let ctx = |e: Error, key: &str| e.context(format!("{origin}: key '{key}'"));
     let mut pigment = find_pigment(&raw.receptor).map_err(|e| ctx(e, "receptor"))?;
     for (k, v) in &raw.parameters {

@@ -236,7 +236,7 @@ impl Eye {
     /// without its unit, an unknown status or species.
     pub fn from_toml(text: &str, origin: &str) -> Result<Eye> {
         let raw: RawEye =
-            toml::from_str(text).map_err(|e| Error::data(format!("{origin}: {}", one_line(&e))))?;
+            toml::from_str(text).map_err(|e| Error::data(crate::toml_errors::describe(&e, origin)))?;
         let at = |key: &str| format!("{origin}: key '{key}'");
         let species =
             Species::parse(&raw.species).map_err(|e| Error::data(e.context(at("species")).to_string()))?;
@@ -348,10 +348,6 @@ pub(crate) fn read_param<T>(p: &RawParam, at: &str, parse: impl Fn(&str) -> Resu
         ))
     })?;
     Ok(Param { value, status, source: p.source.clone() })
-}
-
-fn one_line(e: &toml::de::Error) -> String {
-    e.to_string().lines().map(str::trim).filter(|l| !l.is_empty()).collect::<Vec<_>>().join(" ")
 }
 
 #[derive(Deserialize)]

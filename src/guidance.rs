@@ -126,7 +126,8 @@ fn tidy4(v: f64) -> String {
 /// [`crate::ErrorKind::InvalidData`] naming `origin`: unknown keys, a rule without bounds or
 /// with an unknown quantity.
 pub fn parse_guidance(text: &str, origin: &str) -> Result<GuidanceSet> {
-    let g: GuidanceSet = toml::from_str(text).map_err(|e| Error::data(format!("{origin}: {e}")))?;
+    let g: GuidanceSet =
+        toml::from_str(text).map_err(|e| Error::data(crate::toml_errors::describe(&e, origin)))?;
     for (i, r) in g.rule.iter().enumerate() {
         if r.min_lx.is_none() && r.max_lx.is_none() {
             return Err(Error::data(format!("{origin}: key 'rule[{i}]' ({}) needs min_lx or max_lx", r.id)));

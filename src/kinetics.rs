@@ -440,7 +440,8 @@ pub struct PigmentTable {
 /// # Errors
 /// [`crate::ErrorKind::InvalidData`] naming `origin` and the key.
 pub fn parse_pigments(text: &str, origin: &str) -> Result<PigmentTable> {
-    let raw: RawFile = toml::from_str(text).map_err(|e| Error::data(format!("{origin}: {e}")))?;
+    let raw: RawFile =
+        toml::from_str(text).map_err(|e| Error::data(crate::toml_errors::describe(&e, origin)))?;
     let mut pigments = Vec::new();
     for (i, r) in raw.receptor.iter().enumerate() {
         let at = |k: &str| format!("{origin}: key 'receptor[{i}].{k}' ({})", r.id);

@@ -342,10 +342,7 @@ pub fn build(
 /// [`crate::ErrorKind::InvalidData`] or [`crate::ErrorKind::InvalidInput`] naming the file,
 /// the line (for syntax and unknown keys) or the key, and what would be right.
 pub fn parse_scenario(text: &str, origin: &str, base: Option<&Path>) -> Result<RetinaScenario> {
-    let raw: RawScenario = toml::from_str(text).map_err(|e| {
-        let msg: Vec<String> =
-            e.to_string().lines().map(|l| l.trim().to_string()).filter(|l| !l.is_empty()).collect();
-        Error::data(format!("{origin}: {}", msg.join(" ")))
-    })?;
+    let raw: RawScenario =
+        toml::from_str(text).map_err(|e| Error::data(crate::toml_errors::describe(&e, origin)))?;
     build(&raw.subject, &raw.source, &raw.filter, base).map_err(|e| e.context(origin))
 }

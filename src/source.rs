@@ -167,7 +167,7 @@ struct RawBand {
 /// `table`.
 pub fn parse_lamp(text: &str, origin: &str, dir: Option<&Path>, grid: Option<Grid>) -> Result<Spectrum> {
     let raw: RawLamp =
-        toml::from_str(text).map_err(|e| Error::data(format!("{origin}: {}", one_line(&e))))?;
+        toml::from_str(text).map_err(|e| Error::data(crate::toml_errors::describe(&e, origin)))?;
     let at = |key: &str| format!("{origin}: key '{key}'");
     let grid_of = |from: &Option<String>,
                    to: &Option<String>,
@@ -233,8 +233,4 @@ pub fn parse_lamp(text: &str, origin: &str, dir: Option<&Path>, grid: Option<Gri
         }
     };
     Ok(spectrum.with_label(raw.name).with_provenance(format!("{}: {}", raw.title, raw.provenance)))
-}
-
-fn one_line(e: &toml::de::Error) -> String {
-    e.to_string().lines().map(str::trim).filter(|l| !l.is_empty()).collect::<Vec<_>>().join(" ")
 }

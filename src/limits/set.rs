@@ -4,7 +4,7 @@ use std::sync::LazyLock;
 
 use serde::Deserialize;
 
-use super::weighting::{find_weighting, one_line};
+use super::weighting::find_weighting;
 use crate::error::{Error, Result};
 
 /// Whether a hazard limits an irradiance (W/m², dose J/m²) or a radiance (W/m²/sr, J/m²/sr).
@@ -246,7 +246,8 @@ fn expected_unit(q: LimitQuantity, f: Form) -> &'static [&'static str] {
 /// # Errors
 /// [`crate::ErrorKind::InvalidData`] naming `origin`, the key and the reason.
 pub fn parse_set(text: &str, origin: &str) -> Result<LimitSet> {
-    let raw: RawSet = toml::from_str(text).map_err(|e| Error::data(format!("{origin}: {}", one_line(&e))))?;
+    let raw: RawSet =
+        toml::from_str(text).map_err(|e| Error::data(crate::toml_errors::describe(&e, origin)))?;
     let mut hazards = Vec::new();
     for (hi, h) in raw.hazard.iter().enumerate() {
         let at = |k: &str| format!("{origin}: key 'hazard[{hi}].{k}' ({})", h.id);

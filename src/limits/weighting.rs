@@ -75,7 +75,7 @@ struct RawFormula {
 /// negative values, an unknown interpolation or formula form, overlapping segments.
 pub fn parse_weighting(text: &str, origin: &str) -> Result<Weighting> {
     let raw: RawWeighting =
-        toml::from_str(text).map_err(|e| Error::data(format!("{origin}: {}", one_line(&e))))?;
+        toml::from_str(text).map_err(|e| Error::data(crate::toml_errors::describe(&e, origin)))?;
     let at = |k: &str| format!("{origin}: key '{k}'");
     if raw.nm.len() != raw.value.len() {
         return Err(Error::data(format!(
@@ -171,10 +171,6 @@ pub fn parse_weighting(text: &str, origin: &str) -> Result<Weighting> {
         anchor_limits: raw.nm.iter().copied().zip(raw.el_j_per_m2.iter().copied()).collect(),
         from_memory_nm: raw.from_memory_nm,
     })
-}
-
-pub(crate) fn one_line(e: &toml::de::Error) -> String {
-    e.to_string().lines().map(str::trim).filter(|l| !l.is_empty()).collect::<Vec<_>>().join(" ")
 }
 
 /// The weighting files shipped in `limits/weightings/`.
