@@ -4,14 +4,14 @@
 //!   solved exactly per step with both models;
 //! - the same year summarised (end, peak, mean) without keeping per-step results.
 
-use retidose::kinetics::{Model, find_pigment};
-use retidose::schedule::{Schedule, summarise};
+use retidose::pigment::kinetics::{Model, find_pigment};
+use retidose::pigment::schedule::{Schedule, summarise};
 
 fn main() {
     divan::main();
 }
 
-fn year_of_minutes() -> (retidose::kinetics::Constants, Schedule) {
+fn year_of_minutes() -> (retidose::pigment::kinetics::Constants, Schedule) {
     let p = find_pigment("mouse-rod").unwrap();
     let light = p.rate_of_level(5e4);
     let leak = p.rate_of_level(20.0);

@@ -2,10 +2,10 @@
 //! 100-column grid under four ceiling luminaires), from room lux to rod bleach and flags. The
 //! per-lux spectral factors are computed once per survey, in the setup, as `assess` does.
 
-use retidose::guidance::find_guidance;
-use retidose::kinetics::{Model, find_pigment};
-use retidose::retina_scenario::SubjectSpec;
-use retidose::survey::{Luminaire, Rack, SurveyInput, illuminance_at, per_lux, run_survey};
+use retidose::housing::guidance::find_guidance;
+use retidose::housing::survey::{Luminaire, Rack, SurveyInput, illuminance_at, per_lux, run_survey};
+use retidose::pigment::kinetics::{Model, find_pigment};
+use retidose::scenario::retina::SubjectSpec;
 
 fn main() {
     divan::main();

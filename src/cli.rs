@@ -7,25 +7,25 @@ use std::path::Path;
 
 use anyhow::{Context, Result, bail};
 use clap::{Args, Parser, Subcommand, ValueEnum};
-use retidose::bleach::{
+use retidose::base::quantity::SiValue;
+use retidose::base::units;
+use retidose::cornea::filter::Filter;
+use retidose::limits::report::{LimitsRequest, assess_limits};
+use retidose::limits::{LimitSet, find_set, parse_set};
+use retidose::pigment::bleach::{
     assess as bleach_assess, duration_for_target, flash_response, level_for_target, steady_at,
     steady_level_for_target,
 };
-use retidose::bleach_scenario::{BleachScenario, parse_bleach_scenario, parse_level};
-use retidose::filter::Filter;
-use retidose::generate::Grid;
-use retidose::kinetics::{Model, find_pigment};
-use retidose::limits::{LimitSet, find_set, parse_set};
-use retidose::limits_report::{LimitsRequest, assess_limits};
-use retidose::quantity::SiValue;
-use retidose::retina_report::assess_retina;
-use retidose::retina_scenario::{FilterSpec, SourceSpec, SubjectSpec, build, parse_scenario, place};
-use retidose::scale::{ScaleTarget, scale_to};
-use retidose::schedule::Schedule;
-use retidose::source::resolve;
+use retidose::pigment::kinetics::{Model, find_pigment};
+use retidose::pigment::schedule::Schedule;
+use retidose::retina::report::assess_retina;
+use retidose::scenario::bleach::{BleachScenario, parse_bleach_scenario, parse_level};
+use retidose::scenario::retina::{FilterSpec, SourceSpec, SubjectSpec, build, parse_scenario, place};
+use retidose::spectrum::generate::Grid;
+use retidose::spectrum::report::report;
+use retidose::spectrum::scale::{ScaleTarget, scale_to};
+use retidose::spectrum::source::resolve;
 use retidose::spectrum::{Basis, Measure};
-use retidose::spectrum_report::report;
-use retidose::units;
 
 const ABOUT: &str = "Lighting safety and retinal exposure: from a lamp spectrum to what reaches the eye";
 
@@ -137,7 +137,7 @@ pub struct Output {
 }
 
 fn assess_cmd(a: AssessArgs) -> Result<Output> {
-    use retidose::assessment::{DEMOS, assess, demo, parse_scenario_file};
+    use retidose::assess::{DEMOS, assess, demo, parse_scenario_file};
     if let Some(name) = &a.example {
         return Ok(Output { text: demo(name)?.to_string(), status: 0 });
     }

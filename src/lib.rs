@@ -2,18 +2,23 @@
 //! published data.
 //!
 //! The library holds the computation as pure functions over plain data; the `retidose`
-//! binary parses arguments, calls it and renders the results. The pipeline so far:
+//! binary parses arguments, calls it and renders the results. The modules follow the light:
 //!
-//! 1. a [`spectrum::Spectrum`] from a file ([`reader`]), a generator ([`generate`]) or a
-//!    built-in lamp ([`source`]), optionally scaled to a measurement ([`scale`]);
-//! 2. photometry ([`photometry`]: V(λ), V′(λ), S/P, efficacy) and CIE S 026 α-opic
-//!    quantities ([`alpha_opic`]);
-//! 3. one report structure ([`spectrum_report`]) that every renderer reads.
-//!
-//! Every table the computation uses is embedded ([`data`]) with its source and status.
+//! 1. [`base`]: quantities and units, constants, sampled curves, errors, embedded tables;
+//! 2. [`spectrum`]: a spectrum from a file, a generator or a built-in lamp, scaled to a
+//!    measurement, with photometry;
+//! 3. [`weighting`]: CIE S 026 α-opic action spectra, photopigment templates, ocular media;
+//! 4. [`cornea`]: a source placed before the eye, through every filter in the path;
+//! 5. [`retina`]: eye models, pupils, retinal irradiance, trolands and the catch per receptor;
+//! 6. [`pigment`]: bleaching and regeneration over a schedule;
+//! 7. [`limits`]: published exposure limits and risk groups;
+//! 8. [`housing`]: guidance for animal housing and surveys of cage positions;
+//! 9. [`scenario`]: scenario text resolved into typed values, once;
+//! 10. [`assess`]: a resolved scenario through the stages into one report structure.
 //!
 //! ```
-//! use retidose::{scale::{ScaleTarget, scale_to}, source::resolve, photometry::photopic, units::parse_illuminance};
+//! use retidose::base::units::parse_illuminance;
+//! use retidose::spectrum::{photometry::photopic, scale::{ScaleTarget, scale_to}, source::resolve};
 //! let a = resolve("cie:A", None)?;
 //! let e = scale_to(&a, ScaleTarget::Illuminance(parse_illuminance("300 lx")?))?;
 //! let lux = photopic(&e).value.unwrap().si_value();
@@ -25,39 +30,15 @@
 #![warn(missing_docs)]
 #![forbid(unsafe_code)]
 
-pub mod alpha_opic;
-pub mod assessment;
-pub mod bleach;
-pub mod bleach_scenario;
-pub mod catch;
-pub mod constants;
-pub mod curve;
-pub mod data;
-pub mod error;
-pub mod eye;
-pub mod filter;
-pub mod generate;
-pub mod geometry;
-pub mod guidance;
-pub mod kinetics;
-pub mod lens;
+pub mod assess;
+pub mod base;
+pub mod cornea;
+pub mod housing;
 pub mod limits;
-pub mod limits_report;
-pub mod photometry;
-pub mod pupil;
-pub mod quantity;
-pub mod reader;
+pub mod pigment;
 pub mod retina;
-pub mod retina_report;
-pub mod retina_scenario;
-pub mod scale;
-pub mod schedule;
-pub mod source;
+pub mod scenario;
 pub mod spectrum;
-pub mod spectrum_report;
-pub mod survey;
-pub mod template;
-pub mod toml_errors;
-pub mod units;
+pub mod weighting;
 
-pub use error::{Error, ErrorKind, Result};
+pub use base::error::{Error, ErrorKind, Result};

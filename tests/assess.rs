@@ -6,7 +6,7 @@ use std::path::PathBuf;
 
 use assert_cmd::Command;
 use predicates::prelude::*;
-use retidose::assessment::{assess, parse_scenario_file};
+use retidose::assess::{assess, parse_scenario_file};
 use serde_json::Value;
 
 fn retidose() -> Command {
@@ -290,7 +290,7 @@ fn a_survey_of_one_position_equals_assessing_that_position() {
     let a = assess(&s).unwrap();
     let pos = &a.survey.as_ref().unwrap().positions[0];
     let rod = a.retina.as_ref().unwrap().sources[0].retinal.as_ref().unwrap().catch[0].rate;
-    use retidose::quantity::SiValue;
+    use retidose::base::quantity::SiValue;
     assert!(rel(pos.rod_rate, rod.si()) < 1e-12, "{} vs {}", pos.rod_rate, rod.si());
     let light = a.bleach.as_ref().unwrap().phases.iter().find(|p| p.name == "light").unwrap();
     assert!((pos.light_bleach - light.steady_state).abs() < 1e-12);

@@ -1,18 +1,18 @@
 //! Reference checks for pigment kinetics. Sources are named beside each check; "derived" values
 //! are the reference notes' arithmetic on confirmed parameters.
 
-use retidose::bleach::{assess, level_for_target, steady_level_for_target};
-use retidose::bleach_scenario::parse_bleach_scenario;
-use retidose::kinetics::{
+use retidose::pigment::bleach::{assess, level_for_target, steady_level_for_target};
+use retidose::pigment::kinetics::{
     Constants, Model, advance, dark_time_to, find_pigment, integral, light_time_to, steady_state,
 };
-use retidose::schedule::{Schedule, summarise};
+use retidose::pigment::schedule::{Schedule, summarise};
+use retidose::scenario::bleach::parse_bleach_scenario;
 
 fn rel(a: f64, b: f64) -> f64 {
     (a - b).abs() / b.abs()
 }
 
-fn human_rod() -> retidose::kinetics::Pigment {
+fn human_rod() -> retidose::pigment::kinetics::Pigment {
     find_pigment("human-rod").unwrap()
 }
 

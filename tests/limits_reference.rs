@@ -2,12 +2,12 @@
 //! the reference notes (limits.md) transcribe the published limits; values marked "derived" are
 //! arithmetic on those limits, not published numbers.
 
-use retidose::curve::Curve;
+use retidose::base::curve::Curve;
+use retidose::base::quantity::{Length, SiValue, Time};
 use retidose::limits::{
     Exposure, Form, HazardResult, MovableSource, RiskGroup, TMax, Verdict, blue_light_efficacy, builtin_sets,
     classify, evaluate_set, find_set, find_weighting, parse_set,
 };
-use retidose::quantity::{Length, SiValue, Time};
 use retidose::spectrum::{Basis, Measure, Spectrum};
 
 fn rel(a: f64, b: f64) -> f64 {
@@ -192,7 +192,7 @@ fn b_is_one_at_440_nm_and_a_thousandth_from_600_to_700_nm() {
 #[test]
 fn e_thr_is_one_watt_over_the_blue_light_efficacy() {
     // E_thr = 1.0 W/m² / K_B,v (IEC TR 62778 via Trilux; CIE e-ILV 17-26-061), derived.
-    let d65 = retidose::generate::cie_d65().scaled_as(0.01, Measure::Irradiance).unwrap();
+    let d65 = retidose::spectrum::generate::cie_d65().scaled_as(0.01, Measure::Irradiance).unwrap();
     let k = blue_light_efficacy(&d65).unwrap();
     let i = d65.scaled_as(1.0, Measure::Intensity).unwrap();
     let c = classify(find_set("iec62471-2006").unwrap(), &MovableSource { spectrum: i, size: None }, false)

@@ -3,13 +3,13 @@
 //! the integration rule, and bounds of coverage and band shares. Inputs are finite only.
 
 use proptest::prelude::*;
-use retidose::alpha_opic::alpha_opic;
-use retidose::curve::Curve;
-use retidose::generate::{Grid, LedBand, multi_band_led};
-use retidose::photometry::{photopic, scotopic};
-use retidose::quantity::nm;
+use retidose::base::curve::Curve;
+use retidose::base::quantity::nm;
+use retidose::spectrum::generate::{Grid, LedBand, multi_band_led};
+use retidose::spectrum::photometry::{photopic, scotopic};
+use retidose::spectrum::report::report;
 use retidose::spectrum::{Basis, Measure, Spectrum};
-use retidose::spectrum_report::report;
+use retidose::weighting::alpha_opic::alpha_opic;
 
 /// A random non-negative spectrum on an irregular grid inside 300–900 nm.
 fn spectrum() -> impl Strategy<Value = Spectrum> {

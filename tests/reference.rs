@@ -7,18 +7,18 @@
 //! colour-science uses K_m = 683 lm/W, K′_m = 1700 lm/W, c₂ = 1.4388 × 10⁻² m·K and the trapezoid
 //! rule on the spectrum's own grid; these checks use the same constants and grids.
 
-use retidose::alpha_opic::{action_spectra, alpha_opic};
-use retidose::constants::{K_M_PHOTOPIC_LM_PER_W, K_M_SCOTOPIC_LM_PER_W};
-use retidose::curve::Curve;
-use retidose::data::tables;
-use retidose::generate::{
+use retidose::base::constants::{K_M_PHOTOPIC_LM_PER_W, K_M_SCOTOPIC_LM_PER_W};
+use retidose::base::curve::Curve;
+use retidose::base::data::tables;
+use retidose::base::quantity::{SiValue, ThermodynamicTemperature, nm};
+use retidose::base::units::{parse_illuminance, parse_irradiance};
+use retidose::spectrum::generate::{
     Grid, LedBand, cie_d65, cie_illuminant_a, multi_band_led, ohno_led, planck_radiance,
 };
-use retidose::photometry::{photopic, sp_ratio};
-use retidose::quantity::{SiValue, ThermodynamicTemperature, nm};
-use retidose::scale::{ScaleTarget, scale_to};
+use retidose::spectrum::photometry::{photopic, sp_ratio};
+use retidose::spectrum::scale::{ScaleTarget, scale_to};
 use retidose::spectrum::{Basis, Measure, Spectrum};
-use retidose::units::{parse_illuminance, parse_irradiance};
+use retidose::weighting::alpha_opic::{action_spectra, alpha_opic};
 use serde_json::Value;
 
 /// colour-science's constants (dependencies notes §3): K_m 683, K′_m 1700, c₂ 1.4388e-2 m·K.
@@ -96,7 +96,7 @@ fn ler_of_d65_matches_colour_science_on_both_grids() {
     let own_rule = COLOUR_K_M * d65.curve().product_integral(&tables().v) / d65.integral();
     assert!(rel(own_rule, fixture("ler_D65_1nm_linear_380_780")) < 1e-12, "{own_rule}");
     // The library's efficacy uses K_m = 683.002 lm/W and its own rule.
-    let lib = retidose::photometry::luminous_efficacy(&d65).unwrap().si();
+    let lib = retidose::spectrum::photometry::luminous_efficacy(&d65).unwrap().si();
     assert!(rel(lib * COLOUR_K_M / K_M_PHOTOPIC_LM_PER_W, fixture("ler_D65_1nm_linear_380_780")) < 1e-12);
 }
 
@@ -254,7 +254,7 @@ fn melanopic_reconstruction_d65_elr() {
     assert_eq!(mel.name, "melanopic");
     let dev = 100.0 * (mel.d65_elr.si() / mel.published_d65_elr.si() - 1.0);
     assert!((dev + 0.62).abs() < 0.02, "deviation {dev:.3} %");
-    assert!(retidose::data::ALPHA_OPIC_TOML.contains("−0.62 %"));
+    assert!(retidose::base::data::ALPHA_OPIC_TOML.contains("−0.62 %"));
 }
 
 #[test]

@@ -2,21 +2,21 @@
 
 use std::fmt::Write;
 
-use retidose::alpha_opic::action_spectra;
-use retidose::bleach::{BleachReport, FlashResponse};
-use retidose::catch::ReceptorCatch;
-use retidose::data::TABLE_FILES;
-use retidose::kinetics::Pigment;
+use retidose::base::data::TABLE_FILES;
+use retidose::base::quantity::SiValue;
+use retidose::base::quantity::as_td_f64;
+use retidose::limits::report::{LIMITS_CAUTION, LimitsAssessment};
 use retidose::limits::{Form, LimitQuantity, LimitSet, TMax, Verdict, builtin_sets, builtin_weightings};
-use retidose::limits_report::{LIMITS_CAUTION, LimitsAssessment};
-use retidose::photometry::{Photometric, PhotometricResult};
-use retidose::quantity::SiValue;
-use retidose::quantity::as_td_f64;
-use retidose::reader::read_table;
-use retidose::retina_report::RetinaReport;
-use retidose::source::BUILTIN_LAMPS;
+use retidose::pigment::bleach::{BleachReport, FlashResponse};
+use retidose::pigment::kinetics::Pigment;
+use retidose::retina::catch::ReceptorCatch;
+use retidose::retina::report::RetinaReport;
+use retidose::spectrum::photometry::{Photometric, PhotometricResult};
+use retidose::spectrum::reader::read_table;
+use retidose::spectrum::report::SpectrumReport;
+use retidose::spectrum::source::BUILTIN_LAMPS;
 use retidose::spectrum::{Basis, Coverage};
-use retidose::spectrum_report::SpectrumReport;
+use retidose::weighting::alpha_opic::action_spectra;
 use serde_json::{Value, json};
 use uom::si::illuminance::lux;
 use uom::si::length::millimeter;

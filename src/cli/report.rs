@@ -3,9 +3,9 @@
 
 use std::fmt::Write;
 
-use retidose::assessment::Assessment;
+use retidose::assess::Assessment;
+use retidose::base::quantity::{SiValue, as_td_f64};
 use retidose::limits::{TMax, Verdict, find_weighting};
-use retidose::quantity::{SiValue, as_td_f64};
 use serde_json::{Value, json};
 use tabled::builder::Builder;
 use tabled::settings::Style;
@@ -679,7 +679,7 @@ fn svg_bars(title: &str, bars: &[(String, f64)]) -> String {
     o
 }
 
-fn svg_heatmap(s: &retidose::assessment::SurveyResult) -> String {
+fn svg_heatmap(s: &retidose::assess::SurveyResult) -> String {
     let (cell, l, t) = (56.0, 70.0, 30.0);
     let w = (l + cell * s.columns as f64 + 20.0).max(560.0);
     let h = t + cell * s.shelves as f64 + 40.0;
@@ -754,14 +754,14 @@ pub fn html(all: &[Assessment]) -> String {
                     })
                     .unwrap_or_default()
             };
-            let mel = retidose::alpha_opic::action_spectra()
+            let mel = retidose::weighting::alpha_opic::action_spectra()
                 .iter()
                 .find(|f| f.name == "melanopic")
                 .map(|f| {
                     f.curve.wavelength_nm().iter().zip(f.curve.values()).map(|(x, v)| (*x, *v)).collect()
                 })
                 .unwrap_or_default();
-            let rod = retidose::alpha_opic::action_spectra()
+            let rod = retidose::weighting::alpha_opic::action_spectra()
                 .iter()
                 .find(|f| f.name == "rhodopic")
                 .map(|f| {

@@ -17,9 +17,9 @@ use std::f64::consts::FRAC_PI_2;
 
 use super::set::{Condition, Form, Hazard, LimitQuantity, LimitSet, Segment};
 use super::weighting::find_weighting;
-use crate::curve::Curve;
-use crate::photometry::photopic;
-use crate::quantity::{SiValue, Time};
+use crate::base::curve::Curve;
+use crate::base::quantity::{SiValue, Time};
+use crate::spectrum::photometry::photopic;
 use crate::spectrum::{Coverage, Spectrum};
 
 /// What reaches the eye, for a limits evaluation.

@@ -17,10 +17,10 @@ use uom::si::length::meter;
 use super::evaluate::{Exposure, Verdict, assess};
 use super::set::LimitSet;
 use super::weighting::find_weighting;
-use crate::error::{Error, Result};
-use crate::geometry::{Geometry, corneal, subtense};
-use crate::photometry::photopic;
-use crate::quantity::{Angle, Length, SiValue, Time};
+use crate::base::error::{Error, Result};
+use crate::base::quantity::{Angle, Length, SiValue, Time};
+use crate::cornea::geometry::{Geometry, corneal, subtense};
+use crate::spectrum::photometry::photopic;
 use crate::spectrum::{Measure, Spectrum};
 
 /// IEC 62471 risk groups, in increasing order of hazard.

@@ -5,7 +5,7 @@ use std::sync::LazyLock;
 use serde::Deserialize;
 
 use super::weighting::find_weighting;
-use crate::error::{Error, Result};
+use crate::base::error::{Error, Result};
 
 /// Whether a hazard limits an irradiance (W/m², dose J/m²) or a radiance (W/m²/sr, J/m²/sr).
 #[derive(Debug, Clone, Copy, PartialEq, Eq)]
@@ -247,7 +247,7 @@ fn expected_unit(q: LimitQuantity, f: Form) -> &'static [&'static str] {
 /// [`crate::ErrorKind::InvalidData`] naming `origin`, the key and the reason.
 pub fn parse_set(text: &str, origin: &str) -> Result<LimitSet> {
     let raw: RawSet =
-        toml::from_str(text).map_err(|e| Error::data(crate::toml_errors::describe(&e, origin)))?;
+        toml::from_str(text).map_err(|e| Error::data(crate::base::toml_errors::describe(&e, origin)))?;
     let mut hazards = Vec::new();
     for (hi, h) in raw.hazard.iter().enumerate() {
         let at = |k: &str| format!("{origin}: key 'hazard[{hi}].{k}' ({})", h.id);
@@ -338,7 +338,7 @@ pub fn parse_set(text: &str, origin: &str) -> Result<LimitSet> {
             None => None,
             Some(c) => {
                 let parse = |t: &str, key: &str| {
-                    crate::units::parse_angle(t).map_err(|e| Error::data(format!("{}: {e}", at(key))))
+                    crate::base::units::parse_angle(t).map_err(|e| Error::data(format!("{}: {e}", at(key))))
                 };
                 let (min, max) = (parse(&c.min, "c_alpha.min")?, parse(&c.max, "c_alpha.max")?);
                 let in_mrad = match c.unit.as_str() {
@@ -348,7 +348,7 @@ pub fn parse_set(text: &str, origin: &str) -> Result<LimitSet> {
                         return Err(Error::data(format!("{}: '{o}' is not rad or mrad", at("c_alpha.unit"))));
                     }
                 };
-                use crate::quantity::SiValue;
+                use crate::base::quantity::SiValue;
                 if !(min.si() > 0.0 && min.si() < max.si()) {
                     return Err(Error::data(format!("{}: need 0 < min < max", at("c_alpha"))));
                 }

@@ -9,8 +9,8 @@ use std::sync::LazyLock;
 
 use serde::Deserialize;
 
-use crate::curve::Curve;
-use crate::error::{Error, Result};
+use crate::base::curve::Curve;
+use crate::base::error::{Error, Result};
 
 /// A weighting function ready for integration.
 #[derive(Debug, Clone, PartialEq)]
@@ -75,7 +75,7 @@ struct RawFormula {
 /// negative values, an unknown interpolation or formula form, overlapping segments.
 pub fn parse_weighting(text: &str, origin: &str) -> Result<Weighting> {
     let raw: RawWeighting =
-        toml::from_str(text).map_err(|e| Error::data(crate::toml_errors::describe(&e, origin)))?;
+        toml::from_str(text).map_err(|e| Error::data(crate::base::toml_errors::describe(&e, origin)))?;
     let at = |k: &str| format!("{origin}: key '{k}'");
     if raw.nm.len() != raw.value.len() {
         return Err(Error::data(format!(

@@ -1,0 +1,422 @@
+//! Parsing quantities written with their unit, such as `"300 lx"`, `"1.2 m"` or `"2856 K"`.
+//!
+//! A value without a unit is always rejected: no unit is ever assumed. Common spellings are
+//! accepted (`µm` and `um`, `cd/m2` and `cd/m²`, `lx` and `lux`, `W/m2/sr` and `W·m⁻²·sr⁻¹`);
+//! an error lists the accepted units for the quantity asked for.
+
+use crate::base::error::{Error, Result};
+use crate::base::quantity::{
+    Angle, Area, Illuminance, Irradiance, Length, Luminance, LuminousFlux, LuminousIntensity,
+    PhotonIrradiance, Power, Radiance, SiValue, ThermodynamicTemperature, Time,
+};
+
+/// One unit: its accepted ASCII spellings (after normalisation) and its size in SI units.
+struct Unit {
+    spellings: &'static [&'static str],
+    to_si: f64,
+}
+
+/// Avogadro constant, mol⁻¹ (exact, SI 2019), for µmol photon units.
+const AVOGADRO: f64 = 6.022_140_76e23;
+
+const LENGTH: &[Unit] = &[
+    Unit { spellings: &["nm", "nanometre", "nanometer", "nanometres", "nanometers"], to_si: 1e-9 },
+    Unit { spellings: &["um", "µm", "micron", "microns", "micrometre", "micrometer"], to_si: 1e-6 },
+    Unit { spellings: &["mm", "millimetre", "millimeter", "millimetres", "millimeters"], to_si: 1e-3 },
+    Unit { spellings: &["cm", "centimetre", "centimeter"], to_si: 1e-2 },
+    Unit { spellings: &["m", "metre", "meter", "metres", "meters"], to_si: 1.0 },
+];
+
+const TEMPERATURE: &[Unit] = &[Unit { spellings: &["K", "kelvin"], to_si: 1.0 }];
+
+const ILLUMINANCE: &[Unit] = &[
+    Unit { spellings: &["lx", "lux"], to_si: 1.0 },
+    Unit { spellings: &["klx", "kilolux"], to_si: 1e3 },
+    Unit { spellings: &["mlx", "millilux"], to_si: 1e-3 },
+    Unit { spellings: &["lm/m2", "lm*m-2"], to_si: 1.0 },
+];
+
+const LUMINANCE: &[Unit] = &[
+    Unit { spellings: &["cd/m2", "cd*m-2", "cdm-2", "nit", "nits"], to_si: 1.0 },
+    Unit { spellings: &["kcd/m2", "kcd*m-2"], to_si: 1e3 },
+    Unit { spellings: &["mcd/m2", "mcd*m-2"], to_si: 1e-3 },
+    Unit { spellings: &["cd/cm2", "cd*cm-2"], to_si: 1e4 },
+];
+
+const IRRADIANCE: &[Unit] = &[
+    Unit { spellings: &["W/m2", "W*m-2", "Wm-2"], to_si: 1.0 },
+    Unit { spellings: &["mW/m2", "mW*m-2"], to_si: 1e-3 },
+    Unit { spellings: &["uW/m2", "µW/m2", "uW*m-2", "µW*m-2"], to_si: 1e-6 },
+    Unit { spellings: &["W/cm2", "W*cm-2"], to_si: 1e4 },
+    Unit { spellings: &["mW/cm2", "mW*cm-2"], to_si: 10.0 },
+    Unit { spellings: &["uW/cm2", "µW/cm2", "uW*cm-2", "µW*cm-2"], to_si: 1e-2 },
+];
+
+const RADIANCE: &[Unit] = &[
+    Unit { spellings: &["W/m2/sr", "W/(m2*sr)", "W*m-2*sr-1", "W/sr/m2"], to_si: 1.0 },
+    Unit { spellings: &["mW/m2/sr", "mW/(m2*sr)", "mW*m-2*sr-1"], to_si: 1e-3 },
+    Unit { spellings: &["W/cm2/sr", "W/(cm2*sr)", "W*cm-2*sr-1"], to_si: 1e4 },
+];
+
+const PHOTON_IRRADIANCE: &[Unit] = &[
+    Unit {
+        spellings: &["photons/m2/s", "photons/(m2*s)", "photons*m-2*s-1", "m-2*s-1", "/m2/s"],
+        to_si: 1.0,
+    },
+    Unit {
+        spellings: &["photons/cm2/s", "photons/(cm2*s)", "photons*cm-2*s-1", "cm-2*s-1", "/cm2/s"],
+        to_si: 1e4,
+    },
+    Unit { spellings: &["umol/m2/s", "µmol/m2/s", "umol*m-2*s-1", "µmol*m-2*s-1"], to_si: 1e-6 * AVOGADRO },
+];
+
+const LUMINOUS_INTENSITY: &[Unit] = &[
+    Unit { spellings: &["cd", "candela", "candelas"], to_si: 1.0 },
+    Unit { spellings: &["mcd", "millicandela", "millicandelas"], to_si: 1e-3 },
+    Unit { spellings: &["kcd", "kilocandela", "kilocandelas"], to_si: 1e3 },
+];
+
+const LUMINOUS_FLUX: &[Unit] = &[
+    Unit { spellings: &["lm", "lumen", "lumens"], to_si: 1.0 },
+    Unit { spellings: &["klm", "kilolumen", "kilolumens"], to_si: 1e3 },
+    Unit { spellings: &["mlm", "millilumen", "millilumens"], to_si: 1e-3 },
+];
+
+const POWER: &[Unit] = &[
+    Unit { spellings: &["W", "watt", "watts"], to_si: 1.0 },
+    Unit { spellings: &["mW", "milliwatt", "milliwatts"], to_si: 1e-3 },
+    Unit { spellings: &["uW", "µW", "microwatt", "microwatts"], to_si: 1e-6 },
+];
+
+const TROLAND: &[Unit] =
+    &[Unit { spellings: &["td", "Td", "troland", "trolands", "scottd", "phottd"], to_si: 1.0 }];
+
+const TROLAND_SECONDS: &[Unit] =
+    &[Unit { spellings: &["td s", "td*s", "tds", "scottds", "phottds", "scottd*s", "phottd*s"], to_si: 1.0 }];
+
+const RATE: &[Unit] = &[
+    Unit { spellings: &["/s", "pers", "s-1", "1/s"], to_si: 1.0 },
+    Unit { spellings: &["/min", "permin", "min-1", "1/min"], to_si: 1.0 / 60.0 },
+    Unit { spellings: &["/h", "perh", "h-1", "1/h"], to_si: 1.0 / 3600.0 },
+];
+
+const RATE_SQUARED: &[Unit] = &[Unit { spellings: &["/s2", "s-2", "1/s2", "pers2"], to_si: 1.0 }];
+
+const ISOMERISATION_RATE: &[Unit] =
+    &[Unit { spellings: &["R*/rod/s", "R*/s", "R*/cell/s", "R*/receptor/s", "R*/cone/s"], to_si: 1.0 }];
+
+const AREA: &[Unit] = &[
+    Unit { spellings: &["um2", "µm2", "square micrometre", "square micrometer"], to_si: 1e-12 },
+    Unit { spellings: &["mm2", "square millimetre", "square millimeter"], to_si: 1e-6 },
+    Unit { spellings: &["cm2"], to_si: 1e-4 },
+    Unit { spellings: &["m2", "square metre", "square meter"], to_si: 1.0 },
+];
+
+const ANGLE: &[Unit] = &[
+    Unit { spellings: &["rad", "radian", "radians"], to_si: 1.0 },
+    Unit { spellings: &["mrad", "milliradian", "milliradians"], to_si: 1e-3 },
+    Unit { spellings: &["deg", "°", "degree", "degrees"], to_si: std::f64::consts::PI / 180.0 },
+    Unit { spellings: &["arcmin", "'"], to_si: std::f64::consts::PI / 180.0 / 60.0 },
+];
+
+const TIME: &[Unit] = &[
+    Unit { spellings: &["s", "sec", "second", "seconds"], to_si: 1.0 },
+    Unit { spellings: &["ms", "millisecond", "milliseconds"], to_si: 1e-3 },
+    Unit { spellings: &["min", "minute", "minutes"], to_si: 60.0 },
+    Unit { spellings: &["h", "hr", "hour", "hours"], to_si: 3600.0 },
+    Unit { spellings: &["d", "day", "days"], to_si: 86_400.0 },
+    // A year of 365.25 days (the Julian year, IAU): ages are given in years.
+    Unit { spellings: &["y", "yr", "year", "years"], to_si: 31_557_600.0 },
+];
+
+/// Turns the usual typographic forms into the ASCII spellings of the tables.
+fn normalise_unit(unit: &str) -> String {
+    let mut s = String::with_capacity(unit.len());
+    for ch in unit.chars() {
+        match ch {
+            ' ' | '^' => {}
+            '·' | '⋅' | '.' => s.push('*'),
+            '²' => s.push('2'),
+            '³' => s.push('3'),
+            '⁻' => s.push('-'),
+            '¹' => s.push('1'),
+            'μ' => s.push('µ'),
+            _ => s.push(ch),
+        }
+    }
+    s
+}
+
+fn split_number(text: &str) -> Result<(f64, &str)> {
+    let t = text.trim();
+    let mut end = 0;
+    let bytes = t.as_bytes();
+    while end < bytes.len() {
+        let c = bytes[end] as char;
+        let exponent_ok = (c == 'e' || c == 'E')
+            && end > 0
+            && bytes.get(end + 1).is_some_and(|n| n.is_ascii_digit() || *n == b'-' || *n == b'+');
+        let sign_ok = (c == '-' || c == '+') && (end == 0 || matches!(bytes[end - 1], b'e' | b'E'));
+        if c.is_ascii_digit() || c == '.' || exponent_ok || sign_ok {
+            end += 1;
+        } else {
+            break;
+        }
+    }
+    let (number, unit) = t.split_at(end);
+    let value: f64 =
+        number.parse().map_err(|_| Error::input(format!("'{text}' does not start with a number")))?;
+    if !value.is_finite() {
+        return Err(Error::input(format!("'{text}' is not a finite number")));
+    }
+    Ok((value, unit.trim()))
+}
+
+fn accepted(units: &[Unit]) -> String {
+    units.iter().map(|u| u.spellings[0]).collect::<Vec<_>>().join(", ")
+}
+
+/// Parses `text` as a value with one of `units`; returns the value in SI units.
+fn parse_in(text: &str, what: &str, units: &[Unit]) -> Result<f64> {
+    let (value, unit) = split_number(text).map_err(|e| e.context(format!("{what} '{text}'")))?;
+    if unit.is_empty() {
+        return Err(Error::input(format!(
+            "{what} '{text}' has no unit; write it with one of: {}",
+            accepted(units)
+        )));
+    }
+    let norm = normalise_unit(unit);
+    let exact = units.iter().find(|u| u.spellings.contains(&norm.as_str()));
+    let found = exact.or_else(|| {
+        let lower = norm.to_lowercase();
+        let mut matches = units.iter().filter(|u| u.spellings.iter().any(|s| s.to_lowercase() == lower));
+        let first = matches.next();
+        if matches.next().is_some() { None } else { first }
+    });
+    match found {
+        Some(u) => Ok(value * u.to_si),
+        None => Err(Error::input(format!(
+            "{what} '{text}': unknown unit '{unit}'; accepted units: {}",
+            accepted(units)
+        ))),
+    }
+}
+
+/// Parses a luminous intensity such as `"120 cd"`.
+///
+/// # Errors
+/// As [`parse_length`].
+pub fn parse_luminous_intensity(text: &str) -> Result<LuminousIntensity> {
+    parse_in(text, "luminous intensity", LUMINOUS_INTENSITY).map(LuminousIntensity::from_si)
+}
+
+/// Parses a luminous flux such as `"800 lm"`.
+///
+/// # Errors
+/// As [`parse_length`].
+pub fn parse_luminous_flux(text: &str) -> Result<LuminousFlux> {
+    parse_in(text, "luminous flux", LUMINOUS_FLUX).map(LuminousFlux::from_si)
+}
+
+/// Parses a radiant flux (power) such as `"5 mW"`.
+///
+/// # Errors
+/// As [`parse_length`].
+pub fn parse_power(text: &str) -> Result<Power> {
+    parse_in(text, "radiant flux", POWER).map(Power::from_si)
+}
+
+/// A number for messages: rounded to 9 significant digits, so 9.000000000000002 reads 9.
+pub fn tidy(v: f64) -> String {
+    if v == 0.0 || !v.is_finite() {
+        return format!("{v}");
+    }
+    let digits = 8 - v.abs().log10().floor() as i32;
+    let scale = 10f64.powi(digits);
+    format!("{}", (v * scale).round() / scale)
+}
+
+/// Parses a retinal illuminance in trolands, `"20000 td"` (the receptor decides whether
+/// photopic or scotopic trolands are meant; `scot td` and `phot td` are accepted as spellings).
+///
+/// # Errors
+/// As [`parse_length`].
+pub fn parse_trolands(text: &str) -> Result<f64> {
+    parse_in(text, "retinal illuminance", TROLAND)
+}
+
+/// Parses a retinal exposure in troland-seconds, `"1e7 td s"`.
+///
+/// # Errors
+/// As [`parse_length`].
+pub fn parse_troland_seconds(text: &str) -> Result<f64> {
+    parse_in(text, "retinal exposure", TROLAND_SECONDS)
+}
+
+/// Parses a rate such as `"0.085 /min"` into s⁻¹.
+///
+/// # Errors
+/// As [`parse_length`].
+pub fn parse_rate(text: &str) -> Result<crate::base::quantity::Frequency> {
+    parse_in(text, "rate", RATE).map(crate::base::quantity::Frequency::from_si)
+}
+
+/// Parses a rate per second squared, `"4 /s2"`, in s⁻².
+///
+/// # Errors
+/// As [`parse_length`].
+pub fn parse_per_second_squared(text: &str) -> Result<f64> {
+    parse_in(text, "amplification constant", RATE_SQUARED)
+}
+
+/// Parses a photoisomerisation rate per receptor, `"1e4 R*/rod/s"`.
+///
+/// # Errors
+/// As [`parse_length`].
+pub fn parse_isomerisation_rate(text: &str) -> Result<crate::base::quantity::Frequency> {
+    parse_in(text, "photoisomerisation rate", ISOMERISATION_RATE)
+        .map(crate::base::quantity::Frequency::from_si)
+}
+
+/// Parses an area such as `"2.4 µm²"`, `"2.4 um2"` or `"12.6 mm2"`.
+///
+/// # Errors
+/// As [`parse_length`].
+pub fn parse_area(text: &str) -> Result<Area> {
+    parse_in(text, "area", AREA).map(Area::from_si)
+}
+
+/// Parses a plain number such as `"0.35"` (a ratio, a density); a unit is an error.
+///
+/// # Errors
+/// [`crate::ErrorKind::InvalidInput`] if the text is not a number alone.
+pub fn parse_number(text: &str) -> Result<f64> {
+    let (value, unit) = split_number(text)?;
+    if !unit.is_empty() {
+        return Err(Error::input(format!("'{text}' should be a plain number without a unit")));
+    }
+    Ok(value)
+}
+
+/// Parses a plane angle such as `"10 deg"`, `"10°"`, `"0.011 rad"` or `"1.7 mrad"`.
+///
+/// # Errors
+/// As [`parse_length`].
+pub fn parse_angle(text: &str) -> Result<Angle> {
+    parse_in(text, "angle", ANGLE).map(Angle::from_si)
+}
+
+/// Parses a duration or an age such as `"30 s"`, `"12 h"` or `"32 y"`.
+///
+/// # Errors
+/// As [`parse_length`].
+pub fn parse_time(text: &str) -> Result<Time> {
+    parse_in(text, "time", TIME).map(Time::from_si)
+}
+
+/// Parses a length such as `"555 nm"`, `"1.2 m"`, `"2.5 mm"`.
+///
+/// # Errors
+/// [`crate::ErrorKind::InvalidInput`] for a missing or unknown unit, listing the accepted units.
+pub fn parse_length(text: &str) -> Result<Length> {
+    parse_in(text, "length", LENGTH).map(Length::from_si)
+}
+
+/// Parses a thermodynamic temperature such as `"2856 K"`.
+///
+/// # Errors
+/// As [`parse_length`].
+pub fn parse_temperature(text: &str) -> Result<ThermodynamicTemperature> {
+    parse_in(text, "temperature", TEMPERATURE).map(ThermodynamicTemperature::from_si)
+}
+
+/// Parses an illuminance such as `"300 lx"`.
+///
+/// # Errors
+/// As [`parse_length`].
+pub fn parse_illuminance(text: &str) -> Result<Illuminance> {
+    parse_in(text, "illuminance", ILLUMINANCE).map(Illuminance::from_si)
+}
+
+/// Parses a luminance such as `"250 cd/m2"`.
+///
+/// # Errors
+/// As [`parse_length`].
+pub fn parse_luminance(text: &str) -> Result<Luminance> {
+    parse_in(text, "luminance", LUMINANCE).map(Luminance::from_si)
+}
+
+/// Parses an irradiance such as `"1.5 W/m2"` or `"80 µW/cm²"`.
+///
+/// # Errors
+/// As [`parse_length`].
+pub fn parse_irradiance(text: &str) -> Result<Irradiance> {
+    parse_in(text, "irradiance", IRRADIANCE).map(Irradiance::from_si)
+}
+
+/// Parses a radiance such as `"10 W/m2/sr"`.
+///
+/// # Errors
+/// As [`parse_length`].
+pub fn parse_radiance(text: &str) -> Result<Radiance> {
+    parse_in(text, "radiance", RADIANCE).map(Radiance::from_si)
+}
+
+/// Parses a photon irradiance such as `"1e18 photons/m2/s"` or `"5 µmol/m2/s"`.
+///
+/// # Errors
+/// As [`parse_length`].
+pub fn parse_photon_irradiance(text: &str) -> Result<PhotonIrradiance> {
+    parse_in(text, "photon irradiance", PHOTON_IRRADIANCE).map(PhotonIrradiance::from_si)
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn accepts_common_spellings() {
+        assert_eq!(parse_illuminance("300 lx").unwrap().si(), 300.0);
+        assert_eq!(parse_illuminance("300lux").unwrap().si(), 300.0);
+        assert_eq!(parse_illuminance("0.3 klx").unwrap().si(), 300.0);
+        assert_eq!(parse_luminance("250 cd/m2").unwrap().si(), 250.0);
+        assert_eq!(parse_luminance("250 cd/m²").unwrap().si(), 250.0);
+        assert_eq!(parse_luminance("250 cd·m⁻²").unwrap().si(), 250.0);
+        assert!((parse_length("2.5 um").unwrap().si() - 2.5e-6).abs() < 1e-18);
+        assert!((parse_length("2.5 µm").unwrap().si() - 2.5e-6).abs() < 1e-18);
+        assert!((parse_irradiance("80 µW/cm²").unwrap().si() - 0.8).abs() < 1e-12);
+        assert_eq!(parse_radiance("10 W/m2/sr").unwrap().si(), 10.0);
+        assert_eq!(parse_radiance("10 W·m⁻²·sr⁻¹").unwrap().si(), 10.0);
+        assert_eq!(parse_photon_irradiance("1e18 photons/m2/s").unwrap().si(), 1e18);
+        assert!((parse_photon_irradiance("1 µmol/m2/s").unwrap().si() - 6.022_140_76e17).abs() < 1e3);
+        assert_eq!(parse_temperature("2856 K").unwrap().si(), 2856.0);
+        assert_eq!(parse_irradiance("-2e-3 W/m2").unwrap().si(), -2e-3);
+        assert!((parse_angle("180 deg").unwrap().si() - std::f64::consts::PI).abs() < 1e-15);
+        assert!((parse_angle("90°").unwrap().si() - std::f64::consts::FRAC_PI_2).abs() < 1e-15);
+        assert_eq!(parse_angle("11 mrad").unwrap().si(), 0.011);
+        assert_eq!(parse_time("12 h").unwrap().si(), 43_200.0);
+        assert!((parse_area("2.4 µm²").unwrap().si() - 2.4e-12).abs() < 1e-24);
+        assert_eq!(parse_number("0.35").unwrap(), 0.35);
+        assert!(parse_number("0.35 mm").is_err());
+        assert_eq!(parse_trolands("2e4 scot td").unwrap(), 2e4);
+        assert_eq!(parse_troland_seconds("1e7 td·s").unwrap(), 1e7);
+        assert!((parse_rate("0.085 /min").unwrap().si() - 0.085 / 60.0).abs() < 1e-15);
+        assert_eq!(parse_isomerisation_rate("1e4 R*/rod/s").unwrap().si(), 1e4);
+        assert_eq!(parse_time("2 y").unwrap().si(), 63_115_200.0);
+    }
+
+    #[test]
+    fn rejects_a_missing_unit_and_lists_the_accepted_ones() {
+        let err = parse_illuminance("300").unwrap_err();
+        assert!(err.message().contains("has no unit"), "{err}");
+        assert!(err.message().contains("lx"), "{err}");
+    }
+
+    #[test]
+    fn rejects_a_wrong_unit() {
+        let err = parse_illuminance("300 cd/m2").unwrap_err();
+        assert!(err.message().contains("unknown unit 'cd/m2'"), "{err}");
+        assert!(err.message().contains("accepted units: lx"), "{err}");
+        assert!(parse_length("abc nm").is_err());
+    }
+}

@@ -1,0 +1,147 @@
+//! The assessment of one source against one limit set, as plain data for the renderers.
+
+use crate::base::error::Result;
+use crate::base::quantity::{SiValue, Time};
+use crate::cornea::filter::Filter;
+use crate::cornea::geometry::corneal;
+use crate::limits::{
+    Classification, Exposure, HazardResult, LimitSet, MovableSource, Verdict, classify, evaluate_set,
+};
+use crate::retina::report::PlacedSource;
+use crate::spectrum::Measure;
+
+/// The caution every limits output starts with.
+pub const LIMITS_CAUTION: &str = "These limits apply to humans. They are guidance values, not a certification: defer to \
+the standard's own text, a qualified optical-radiation safety officer and local regulation.";
+
+/// What to assess.
+#[derive(Debug, Clone)]
+pub struct LimitsRequest<'a> {
+    /// The source in place (its distance or field as seen by the exposed person).
+    pub source: &'a PlacedSource,
+    /// Filters in the path (spectacles, screens).
+    pub filters: &'a [Filter],
+    /// The limit set.
+    pub set: &'a LimitSet,
+    /// Exposure duration.
+    pub duration: Time,
+    /// Evaluate the opt-in hazards (aphakic eyes, infants).
+    pub aphakic: bool,
+    /// Classify into IEC 62471 risk groups (`Some(general_lighting)`).
+    pub classify: Option<bool>,
+    /// Evaluate only these hazards (ids); empty for all.
+    pub only: &'a [String],
+}
+
+/// The assessment.
+#[derive(Debug, Clone)]
+pub struct LimitsAssessment {
+    /// Set id.
+    pub set_id: String,
+    /// Document and edition.
+    pub document: String,
+    /// Edition.
+    pub edition: String,
+    /// Errata applied.
+    pub errata: String,
+    /// Exposure duration.
+    pub duration: Time,
+    /// Source name.
+    pub source: String,
+    /// Spectrum range, nm.
+    pub range_nm: (f64, f64),
+    /// Per hazard.
+    pub hazards: Vec<HazardResult>,
+    /// Risk groups, if asked for and possible.
+    pub classification: Option<std::result::Result<Classification, String>>,
+    /// Hazards not assessed or resting on from-memory values, and the set's notes.
+    pub notes: Vec<String>,
+}
+
+/// Assesses a source against a set.
+///
+/// # Errors
+/// [`crate::ErrorKind::InvalidInput`] for impossible geometry or a duration not above 0 s.
+pub fn assess_limits(r: &LimitsRequest<'_>) -> Result<LimitsAssessment> {
+    let t = r.duration.si();
+    if !(t > 0.0 && t.is_finite()) {
+        return Err(crate::Error::input(format!("exposure duration {t} s must be above 0 s")));
+    }
+    if let Some(missing) = r.only.iter().find(|id| r.set.hazard(id).is_none()) {
+        return Err(crate::Error::input(format!(
+            "the set '{}' has no hazard '{missing}'; it has: {}",
+            r.set.id,
+            r.set.hazards.iter().map(|h| h.id.as_str()).collect::<Vec<_>>().join(", ")
+        )));
+    }
+    let mut c = corneal(&r.source.spectrum, &r.source.geometry)?;
+    for f in r.filters {
+        c.irradiance = f.apply(&c.irradiance)?;
+        c.radiance = c.radiance.map(|l| f.apply(&l)).transpose()?;
+    }
+    let e = Exposure {
+        irradiance: &c.irradiance,
+        radiance: c.radiance.as_ref(),
+        subtense_rad: c.subtense.map(|a| a.si()),
+        full_field: c.full_field,
+        duration: r.duration,
+        schedule: None,
+        aphakic: r.aphakic,
+    };
+    let hazards: Vec<HazardResult> =
+        evaluate_set(r.set, &e).into_iter().filter(|h| r.only.is_empty() || r.only.contains(&h.id)).collect();
+    let mut notes = r.set.notes.clone();
+    let unassessed: Vec<&str> = hazards
+        .iter()
+        .filter(|h| matches!(h.verdict, Verdict::NotAssessed(_)))
+        .map(|h| h.name.as_str())
+        .collect();
+    if !unassessed.is_empty() {
+        notes.insert(
+            0,
+            format!(
+                "NOT ASSESSED (no verdict, not \"safe\"): {}; see each hazard's reason",
+                unassessed.join("; ")
+            ),
+        );
+    }
+    if hazards.iter().any(|h| !h.from_memory.is_empty()) {
+        notes.push(
+            "verdicts marked [from memory] rest on values not checked against the published text".to_string(),
+        );
+    }
+    if !r.filters.is_empty() {
+        notes.push(format!(
+            "filters applied: {}",
+            r.filters.iter().map(Filter::label).collect::<Vec<_>>().join(", ")
+        ));
+    }
+    let classification = r.classify.map(|general| {
+        let s = &r.source.spectrum;
+        let size = match &r.source.geometry {
+            crate::cornea::geometry::Geometry::Intensity { size, .. } | crate::cornea::geometry::Geometry::Flux { size, .. } => *size,
+            crate::cornea::geometry::Geometry::Extended { .. } | crate::cornea::geometry::Geometry::AtEye { .. } => None,
+        };
+        let movable = match s.measure() {
+            Measure::Intensity | Measure::Radiance => Ok(MovableSource { spectrum: s.clone(), size: size.or(r.source.size) }),
+            m => Err(format!(
+                "risk groups need the source as a spectral intensity (or a radiance with its size) so it can be placed at \
+                 the assessment distance; this one is a spectral {}",
+                m.name()
+            )),
+        };
+        movable.and_then(|m| classify(r.set, &m, general).map_err(|e| e.to_string()))
+    });
+    Ok(LimitsAssessment {
+        set_id: r.set.id.clone(),
+        document: r.set.document.clone(),
+        edition: r.set.edition.clone(),
+        errata: r.set.errata.clone(),
+        duration: r.duration,
+        source: r.source.spectrum.label().to_string(),
+        range_nm: c.irradiance.range_nm(),
+        hazards,
+        classification,
+        notes,
+    })
+}

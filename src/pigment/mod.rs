@@ -1,0 +1,6 @@
+//! Photopigment bleaching and regeneration: kinetic models solved exactly per step, schedules
+//! of steps, and the bleach report with recovery and threshold estimates.
+
+pub mod bleach;
+pub mod kinetics;
+pub mod schedule;

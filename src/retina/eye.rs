@@ -1,0 +1,475 @@
+//! Eye models for humans, mice and rats, read from `src/data/eyes/*.toml`.
+//!
+//! Each parameter carries its value, its status and its source; outputs that depend on a
+//! value "from memory" say so. Users may load their own eye file with the same layout.
+
+use std::collections::BTreeMap;
+use std::fmt;
+use std::sync::LazyLock;
+
+use serde::Deserialize;
+
+use crate::base::error::{Error, Result};
+use crate::base::quantity::{Area, Length, SiValue, Time, as_nm_f64};
+use crate::base::units::{parse_area, parse_length, parse_number, parse_time};
+use crate::weighting::lens::human_media_transmittance;
+
+/// The species the tool has eye models for.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum Species {
+    /// Homo sapiens.
+    Human,
+    /// Mus musculus.
+    Mouse,
+    /// Rattus norvegicus.
+    Rat,
+}
+
+impl Species {
+    /// Lower-case name as used on the command line and in files.
+    pub fn name(self) -> &'static str {
+        match self {
+            Species::Human => "human",
+            Species::Mouse => "mouse",
+            Species::Rat => "rat",
+        }
+    }
+
+    /// Parses `human`, `mouse` or `rat`.
+    ///
+    /// # Errors
+    /// [`crate::ErrorKind::InvalidInput`] naming the accepted species.
+    pub fn parse(text: &str) -> Result<Species> {
+        match text.trim().to_ascii_lowercase().as_str() {
+            "human" => Ok(Species::Human),
+            "mouse" => Ok(Species::Mouse),
+            "rat" => Ok(Species::Rat),
+            _ => Err(Error::input(format!("unknown species '{text}'; expected human, mouse or rat"))),
+        }
+    }
+}
+
+/// How far a parameter value can be trusted.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum Status {
+    /// In the cited source.
+    Confirmed,
+    /// Computed from confirmed values or data.
+    Derived,
+    /// Recalled, not checked against the source.
+    FromMemory,
+    /// A fact or assumption of the trade with no source.
+    NoSource,
+}
+
+impl Status {
+    fn parse(text: &str) -> Option<Status> {
+        Some(match text.trim() {
+            "confirmed" => Status::Confirmed,
+            "derived" => Status::Derived,
+            "from memory" => Status::FromMemory,
+            "common practice, no source" => Status::NoSource,
+            _ => return None,
+        })
+    }
+
+    /// The tag as written in data files and outputs.
+    pub fn name(self) -> &'static str {
+        match self {
+            Status::Confirmed => "confirmed",
+            Status::Derived => "derived",
+            Status::FromMemory => "from memory",
+            Status::NoSource => "common practice, no source",
+        }
+    }
+}
+
+impl fmt::Display for Status {
+    fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
+        f.write_str(self.name())
+    }
+}
+
+/// A parameter value with its status and source.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Param<T> {
+    /// The value.
+    pub value: T,
+    /// How far it can be trusted.
+    pub status: Status,
+    /// Where it comes from.
+    pub source: String,
+}
+
+/// Spectral transmittance of the ocular media.
+#[derive(Debug, Clone, PartialEq)]
+pub enum Media {
+    /// van de Kraats & van Norren (2007) age model (human), at the subject's age.
+    HumanAge {
+        /// Age used when the subject does not give one.
+        default_age: Time,
+    },
+    /// A logistic cut-off edge τ(λ) = τ_vis / (1 + exp(−(λ − λ50)/w)) (rodents).
+    CutOff {
+        /// Wavelength of 50 % of the plateau.
+        half_transmission: Param<Length>,
+        /// Edge width w.
+        edge_width: Param<Length>,
+        /// Visible transmittance τ_vis.
+        plateau: Param<f64>,
+    },
+}
+
+/// One photoreceptor class.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Receptor {
+    /// `rod`, `l-cone`, `m-cone`, `s-cone` or `uv-cone`.
+    pub name: String,
+    /// Wavelength of peak absorbance of the pigment.
+    pub lambda_max: Param<Length>,
+    /// Peak axial optical density of the outer segment (dark-adapted).
+    pub peak_optical_density: Param<f64>,
+    /// End-on aperture (collecting) area at the retina.
+    pub aperture_area: Param<Area>,
+    /// Quantum efficiency of isomerisation.
+    pub quantum_efficiency: Param<f64>,
+    /// Pigment molecules per receptor, where known.
+    pub pigment_per_cell: Option<Param<f64>>,
+}
+
+/// Pupil diameters of the species.
+#[derive(Debug, Clone, PartialEq)]
+pub struct PupilTable {
+    /// Typical dark-adapted diameter.
+    pub dark_adapted: Param<Length>,
+    /// Typical light-adapted diameter.
+    pub light_adapted: Param<Length>,
+    /// Pharmacologically dilated diameter, where given.
+    pub dilated: Option<Param<Length>>,
+    /// Largest diameter accepted.
+    pub maximum: Param<Length>,
+}
+
+/// The iris, for the albino-iris approximation.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Iris {
+    /// Visible iris diameter.
+    pub diameter: Param<Length>,
+    /// Transmittance of an unpigmented iris.
+    pub albino_transmittance: Param<f64>,
+}
+
+/// An eye model.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Eye {
+    /// Species.
+    pub species: Species,
+    /// Posterior nodal distance (the eye's equivalent focal length in air).
+    pub nodal_distance: Param<Length>,
+    /// Pupil diameters.
+    pub pupil: PupilTable,
+    /// Ocular media model.
+    pub media: Media,
+    /// Status of the media model as a whole.
+    pub media_status: Status,
+    /// Source of the media model.
+    pub media_source: String,
+    /// Photoreceptor classes.
+    pub receptors: Vec<Receptor>,
+    /// Melanopsin λmax (rodents; the human melanopic function is CIE S 026's).
+    pub melanopsin: Option<Param<Length>>,
+    /// Iris, for the albino option (rodents).
+    pub iris: Option<Iris>,
+    /// Published R*/rod/s per scotopic troland, by name (human).
+    pub rod_troland_factors: Vec<(String, Param<f64>)>,
+}
+
+impl Eye {
+    /// Ocular media transmittance at `wavelength_nm`; `age` applies to the human age model.
+    pub fn media_transmittance(&self, wavelength_nm: f64, age: Option<Time>) -> f64 {
+        match &self.media {
+            Media::HumanAge { default_age } => {
+                let years = age.unwrap_or(*default_age).si() / 31_557_600.0;
+                human_media_transmittance(wavelength_nm, years)
+            }
+            Media::CutOff { half_transmission, edge_width, plateau } => {
+                let x = (wavelength_nm - as_nm_f64(half_transmission.value)) / as_nm_f64(edge_width.value);
+                plateau.value / (1.0 + (-x).exp())
+            }
+        }
+    }
+
+    /// The receptor class called `name`.
+    pub fn receptor(&self, name: &str) -> Option<&Receptor> {
+        self.receptors.iter().find(|r| r.name == name)
+    }
+
+    /// Every parameter of this eye that is "from memory", as `key: source`, for notes.
+    pub fn from_memory(&self) -> Vec<String> {
+        let mut out = Vec::new();
+        let mut add = |key: &str, status: Status| {
+            if status == Status::FromMemory {
+                out.push(key.to_string());
+            }
+        };
+        add("nodal distance", self.nodal_distance.status);
+        add("ocular media", self.media_status);
+        if let Media::CutOff { plateau, .. } = &self.media {
+            add("media plateau transmittance", plateau.status);
+        }
+        for r in &self.receptors {
+            add(&format!("{} λmax", r.name), r.lambda_max.status);
+            add(&format!("{} optical density", r.name), r.peak_optical_density.status);
+            add(&format!("{} aperture area", r.name), r.aperture_area.status);
+            add(&format!("{} quantum efficiency", r.name), r.quantum_efficiency.status);
+        }
+        if let Some(m) = &self.melanopsin {
+            add("melanopsin λmax", m.status);
+        }
+        out
+    }
+
+    /// Parses an eye file.
+    ///
+    /// # Errors
+    /// [`crate::ErrorKind::InvalidData`] naming `origin` and the key: unknown keys, a value
+    /// without its unit, an unknown status or species.
+    pub fn from_toml(text: &str, origin: &str) -> Result<Eye> {
+        let raw: RawEye =
+            toml::from_str(text).map_err(|e| Error::data(crate::base::toml_errors::describe(&e, origin)))?;
+        let at = |key: &str| format!("{origin}: key '{key}'");
+        let species =
+            Species::parse(&raw.species).map_err(|e| Error::data(e.context(at("species")).to_string()))?;
+        let length = |p: &RawParam, key: &str| convert(p, key, origin, parse_length);
+        let number = |p: &RawParam, key: &str| convert(p, key, origin, parse_number);
+        let media_status = Status::parse(&raw.media.status).ok_or_else(|| {
+            Error::data(format!("{}: unknown status '{}'", at("media.status"), raw.media.status))
+        })?;
+        let media = match raw.media.model.as_str() {
+            "van-de-kraats-2007" => Media::HumanAge {
+                default_age: parse_time(raw.media.default_age.as_deref().unwrap_or("32 y"))
+                    .map_err(|e| Error::data(e.context(at("media.default_age")).to_string()))?,
+            },
+            "cut-off" => {
+                let need = |p: &Option<RawParam>, key: &str| {
+                    p.clone()
+                        .ok_or_else(|| Error::data(format!("{}: missing for a cut-off media model", at(key))))
+                };
+                Media::CutOff {
+                    half_transmission: length(
+                        &need(&raw.media.half_transmission, "media.half_transmission")?,
+                        "media.half_transmission",
+                    )?,
+                    edge_width: length(
+                        &need(&raw.media.edge_width, "media.edge_width")?,
+                        "media.edge_width",
+                    )?,
+                    plateau: number(&need(&raw.media.plateau, "media.plateau")?, "media.plateau")?,
+                }
+            }
+            other => {
+                return Err(Error::data(format!(
+                    "{}: unknown media model '{other}'; expected van-de-kraats-2007 or cut-off",
+                    at("media.model")
+                )));
+            }
+        };
+        let receptors = raw
+            .receptor
+            .iter()
+            .enumerate()
+            .map(|(i, r)| {
+                let k = |f: &str| format!("receptor[{i}].{f}");
+                Ok(Receptor {
+                    name: r.name.clone(),
+                    lambda_max: length(&r.lambda_max, &k("lambda_max"))?,
+                    peak_optical_density: number(&r.peak_optical_density, &k("peak_optical_density"))?,
+                    aperture_area: convert(&r.aperture_area, &k("aperture_area"), origin, parse_area)?,
+                    quantum_efficiency: number(&r.quantum_efficiency, &k("quantum_efficiency"))?,
+                    pigment_per_cell: r
+                        .pigment_per_cell
+                        .as_ref()
+                        .map(|p| number(p, &k("pigment_per_cell")))
+                        .transpose()?,
+                })
+            })
+            .collect::<Result<Vec<_>>>()?;
+        Ok(Eye {
+            species,
+            nodal_distance: length(&raw.nodal_distance, "nodal_distance")?,
+            pupil: PupilTable {
+                dark_adapted: length(&raw.pupil.dark_adapted, "pupil.dark_adapted")?,
+                light_adapted: length(&raw.pupil.light_adapted, "pupil.light_adapted")?,
+                dilated: raw.pupil.dilated.as_ref().map(|p| length(p, "pupil.dilated")).transpose()?,
+                maximum: length(&raw.pupil.maximum, "pupil.maximum")?,
+            },
+            media,
+            media_status,
+            media_source: raw.media.source,
+            receptors,
+            melanopsin: raw
+                .melanopsin
+                .as_ref()
+                .map(|m| length(&m.lambda_max, "melanopsin.lambda_max"))
+                .transpose()?,
+            iris: raw
+                .iris
+                .as_ref()
+                .map(|i| {
+                    Ok::<_, Error>(Iris {
+                        diameter: length(&i.diameter, "iris.diameter")?,
+                        albino_transmittance: number(&i.albino_transmittance, "iris.albino_transmittance")?,
+                    })
+                })
+                .transpose()?,
+            rod_troland_factors: raw
+                .rod_troland_factors
+                .iter()
+                .map(|(k, p)| Ok((k.clone(), number(p, &format!("rod_troland_factors.{k}"))?)))
+                .collect::<Result<Vec<_>>>()?,
+        })
+    }
+}
+
+fn convert<T>(p: &RawParam, key: &str, origin: &str, parse: impl Fn(&str) -> Result<T>) -> Result<Param<T>> {
+    read_param(p, &format!("{origin}: key '{key}'"), parse)
+}
+
+/// Reads a `{ value, status, source }` parameter; `at` names the file and key in errors.
+///
+/// # Errors
+/// [`crate::ErrorKind::InvalidData`] for a value that does not parse or an unknown status.
+pub(crate) fn read_param<T>(p: &RawParam, at: &str, parse: impl Fn(&str) -> Result<T>) -> Result<Param<T>> {
+    let value = parse(&p.value).map_err(|e| Error::data(format!("{at}: {e}")))?;
+    let status = Status::parse(&p.status).ok_or_else(|| {
+        Error::data(format!(
+            "{at}: unknown status '{}'; expected confirmed, derived, from memory or common practice, no source",
+            p.status
+        ))
+    })?;
+    Ok(Param { value, status, source: p.source.clone() })
+}
+
+#[derive(Deserialize)]
+#[serde(deny_unknown_fields)]
+struct RawEye {
+    species: String,
+    nodal_distance: RawParam,
+    pupil: RawPupil,
+    media: RawMedia,
+    receptor: Vec<RawReceptor>,
+    melanopsin: Option<RawMelanopsin>,
+    iris: Option<RawIris>,
+    #[serde(default)]
+    rod_troland_factors: BTreeMap<String, RawParam>,
+}
+
+/// A `{ value, status, source }` table as written in the data files.
+#[derive(Deserialize, Clone)]
+#[serde(deny_unknown_fields)]
+pub(crate) struct RawParam {
+    value: String,
+    status: String,
+    source: String,
+}
+
+#[derive(Deserialize)]
+#[serde(deny_unknown_fields)]
+struct RawPupil {
+    dark_adapted: RawParam,
+    light_adapted: RawParam,
+    dilated: Option<RawParam>,
+    maximum: RawParam,
+}
+
+#[derive(Deserialize)]
+#[serde(deny_unknown_fields)]
+struct RawMedia {
+    model: String,
+    status: String,
+    source: String,
+    default_age: Option<String>,
+    half_transmission: Option<RawParam>,
+    edge_width: Option<RawParam>,
+    plateau: Option<RawParam>,
+}
+
+#[derive(Deserialize)]
+#[serde(deny_unknown_fields)]
+struct RawReceptor {
+    name: String,
+    lambda_max: RawParam,
+    peak_optical_density: RawParam,
+    aperture_area: RawParam,
+    quantum_efficiency: RawParam,
+    pigment_per_cell: Option<RawParam>,
+}
+
+#[derive(Deserialize)]
+#[serde(deny_unknown_fields)]
+struct RawMelanopsin {
+    lambda_max: RawParam,
+}
+
+#[derive(Deserialize)]
+#[serde(deny_unknown_fields)]
+struct RawIris {
+    diameter: RawParam,
+    albino_transmittance: RawParam,
+}
+
+const EYE_FILES: [(&str, &str); 3] = [
+    ("human.toml", include_str!("../data/eyes/human.toml")),
+    ("mouse.toml", include_str!("../data/eyes/mouse.toml")),
+    ("rat.toml", include_str!("../data/eyes/rat.toml")),
+];
+
+static EYES: LazyLock<Vec<Eye>> = LazyLock::new(|| {
+    EYE_FILES
+        .iter()
+        .map(|(name, text)| Eye::from_toml(text, name).unwrap_or_else(|e| panic!("embedded eye file: {e}")))
+        .collect()
+});
+
+/// The built-in eye model of `species`.
+pub fn builtin_eye(species: Species) -> &'static Eye {
+    EYES.iter()
+        .find(|e| e.species == species)
+        .unwrap_or_else(|| panic!("no built-in eye for {}", species.name()))
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn every_builtin_eye_loads_with_sources() {
+        for s in [Species::Human, Species::Mouse, Species::Rat] {
+            let e = builtin_eye(s);
+            assert!(!e.receptors.is_empty());
+            assert!(e.receptors.iter().all(|r| !r.lambda_max.source.is_empty()));
+            assert!(e.receptor("rod").is_some(), "{}", s.name());
+        }
+        assert!((as_nm_f64(builtin_eye(Species::Human).nodal_distance.value) - 16.7e6).abs() < 1e-3);
+    }
+
+    #[test]
+    fn rodent_media_pass_near_uv_and_human_media_do_not() {
+        let m = builtin_eye(Species::Mouse);
+        let h = builtin_eye(Species::Human);
+        assert!((m.media_transmittance(310.0, None) - 0.4).abs() < 1e-12);
+        assert!(m.media_transmittance(360.0, None) > 0.79);
+        assert!(h.media_transmittance(360.0, None) < 0.01);
+    }
+
+    #[test]
+    fn bad_eye_files_name_the_key() {
+        let text = include_str!("../data/eyes/mouse.toml").replace("\"1.95 mm\"", "\"1.95\"");
+        let err = Eye::from_toml(&text, "m.toml").unwrap_err();
+        assert!(err.message().contains("m.toml: key 'nodal_distance'"), "{err}");
+        assert!(err.message().contains("has no unit"), "{err}");
+        let text =
+            include_str!("../data/eyes/mouse.toml").replace("status = \"confirmed\"", "status = \"sure\"");
+        assert!(Eye::from_toml(&text, "m.toml").unwrap_err().message().contains("unknown status 'sure'"));
+    }
+}

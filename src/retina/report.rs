@@ -1,0 +1,273 @@
+//! The assessment of what one viewing situation delivers to the eye: corneal quantities,
+//! retinal quantities and the catch per receptor, as plain data for the renderers.
+
+use crate::base::error::{Error, Result};
+use crate::base::quantity::{Angle, Length, Luminance, SiValue, Time, as_td_f64};
+use crate::cornea::filter::Filter;
+use crate::cornea::geometry::{Corneal, Geometry, corneal};
+use crate::retina::catch::{ReceptorCatch, SpeciesOpic, receptor_catch, species_alpha_opic};
+use crate::retina::eye::{Eye, Species, Status};
+use crate::retina::optics::{Trolands, collecting_area_mm2, image_size, retinal_irradiance, trolands_of};
+use crate::retina::pupil::{Adaptation, Pupil, PupilRule, choose};
+use crate::spectrum::photometry::{PhotometricResult, photopic};
+use crate::spectrum::{PhotonTotal, Radiometric, Spectrum};
+use crate::weighting::alpha_opic::{AlphaOpicValue, alpha_opic};
+
+/// One source in place.
+#[derive(Debug, Clone, PartialEq)]
+pub struct PlacedSource {
+    /// Its spectrum, with an absolute scale.
+    pub spectrum: Spectrum,
+    /// Where it is and how it radiates.
+    pub geometry: Geometry,
+    /// Its diameter, when given (lets an extended source be placed at another distance).
+    pub size: Option<Length>,
+}
+
+/// Everything needed to assess one viewing situation.
+#[derive(Debug, Clone, PartialEq)]
+pub struct RetinaScenario {
+    /// The eye model (a built-in one or a user's).
+    pub eye: Eye,
+    /// One or more sources; their corneal irradiances add.
+    pub sources: Vec<PlacedSource>,
+    /// Filters in the path, applied to every source.
+    pub filters: Vec<Filter>,
+    /// How the pupil is chosen.
+    pub pupil: PupilRule,
+    /// Age (human media and pupil formulas).
+    pub age: Option<Time>,
+    /// Eyes viewing (pupil formulas): 1 or 2.
+    pub eyes: u8,
+    /// Full angle of the adapting field (Watson & Yellott pupil), if not the source's.
+    pub field: Option<Angle>,
+    /// Adapting luminance (pupil formulas), if not the source's.
+    pub adapting_luminance: Option<Luminance>,
+    /// Add light through an unpigmented (albino) iris (rodents; an approximation).
+    pub albino_iris: bool,
+}
+
+/// What the eye receives from one source.
+#[derive(Debug, Clone, PartialEq)]
+pub struct SourceAtEye {
+    /// Source name.
+    pub label: String,
+    /// Corneal irradiance (radiant total).
+    pub irradiance: Radiometric,
+    /// Corneal photon irradiance.
+    pub photon_irradiance: PhotonTotal,
+    /// Corneal illuminance.
+    pub illuminance: PhotometricResult,
+    /// Seen radiance (radiant total), if known.
+    pub radiance: Option<Radiometric>,
+    /// Seen luminance, if known.
+    pub luminance: Option<PhotometricResult>,
+    /// True when the radiance was derived from an irradiance.
+    pub radiance_derived: bool,
+    /// Full angle of the source, if known.
+    pub subtense: Option<Angle>,
+    /// Retinal quantities, if the radiance is known.
+    pub retinal: Option<Retinal>,
+    /// How the radiance was obtained or why it is unknown.
+    pub notes: Vec<String>,
+}
+
+/// Retinal quantities of one source.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Retinal {
+    /// Retinal spectral irradiance.
+    pub spectral_irradiance: Spectrum,
+    /// Retinal irradiance (radiant total).
+    pub irradiance: Radiometric,
+    /// Retinal photon irradiance.
+    pub photon_irradiance: PhotonTotal,
+    /// Retinal illuminance in trolands.
+    pub trolands: Trolands,
+    /// Retinal image size (diameter), if the source's subtense is known.
+    pub image_size: Option<Length>,
+    /// Photoisomerisation rate per receptor class.
+    pub catch: Vec<ReceptorCatch>,
+}
+
+/// The whole assessment.
+#[derive(Debug, Clone)]
+pub struct RetinaReport {
+    /// Species of the eye.
+    pub species: Species,
+    /// Posterior nodal distance used.
+    pub nodal_distance: Length,
+    /// The pupil used.
+    pub pupil: Pupil,
+    /// Light-collecting area in mm² (pupil, plus the albino-iris term if asked for).
+    pub collecting_area_mm2: f64,
+    /// Filters applied, by name.
+    pub filters: Vec<String>,
+    /// Per source.
+    pub sources: Vec<SourceAtEye>,
+    /// Sum of all sources at the cornea (spectral irradiance).
+    pub total_corneal: Spectrum,
+    /// Total corneal illuminance.
+    pub total_illuminance: PhotometricResult,
+    /// CIE S 026 α-opic quantities of the total corneal irradiance (human eyes).
+    pub human_alpha_opic: Vec<AlphaOpicValue>,
+    /// Species α-opic quantities of the total corneal irradiance (rodent eyes).
+    pub species_opic: Vec<SpeciesOpic>,
+    /// Cautions and provenance a reader must see.
+    pub notes: Vec<String>,
+}
+
+/// Assesses a scenario.
+///
+/// # Errors
+/// [`crate::ErrorKind::InvalidInput`] for no sources, impossible geometry, a spectrum whose
+/// measure does not fit its geometry, or a pupil outside the species' range.
+pub fn assess_retina(s: &RetinaScenario) -> Result<RetinaReport> {
+    if s.sources.is_empty() {
+        return Err(Error::input("a retinal assessment needs at least one source"));
+    }
+    let eye = &s.eye;
+    let mut cornea: Vec<Corneal> = Vec::new();
+    for src in &s.sources {
+        let mut c = corneal(&src.spectrum, &src.geometry)?;
+        for f in &s.filters {
+            c.irradiance = f.apply(&c.irradiance)?;
+            c.radiance = c.radiance.map(|l| f.apply(&l)).transpose()?;
+        }
+        cornea.push(c);
+    }
+    // The adapting luminance and field for pupil formulas: given, or the brightest seen source.
+    let brightest = cornea
+        .iter()
+        .filter_map(|c| c.radiance.as_ref().map(|l| (photopic(l).raw, c.subtense)))
+        .fold(None, |best: Option<(f64, Option<Angle>)>, x| match best {
+            Some(b) if b.0 >= x.0 => Some(b),
+            _ => Some(x),
+        });
+    let adaptation = Adaptation {
+        luminance: s
+            .adapting_luminance
+            .or(brightest.map(|b| Luminance::new::<uom::si::luminance::candela_per_square_meter>(b.0))),
+        field: s.field.or(brightest.and_then(|b| b.1)),
+        age: s.age,
+        eyes: s.eyes,
+    };
+    let pupil = choose(eye, s.pupil, &adaptation)?;
+    let area = collecting_area_mm2(eye, &pupil, s.albino_iris);
+    let human = eye.species == Species::Human;
+    let mut notes = Vec::new();
+    let mut sources = Vec::new();
+    for (src, c) in s.sources.iter().zip(&cornea) {
+        let retinal = match &c.radiance {
+            Some(l) => {
+                let spectral = retinal_irradiance(l, eye, area, s.age)?;
+                let td = trolands_of(l, &pupil);
+                let catch = receptor_catch(l, eye, area, s.age, as_td_f64(td.scotopic));
+                Some(Retinal {
+                    irradiance: spectral
+                        .radiometric_total()
+                        .ok_or_else(|| Error::input("retinal spectrum has no scale"))?,
+                    photon_irradiance: spectral
+                        .photon_total()
+                        .ok_or_else(|| Error::input("retinal spectrum has no scale"))?,
+                    spectral_irradiance: spectral,
+                    trolands: td,
+                    image_size: c.subtense.map(|a| image_size(eye, a.si())),
+                    catch,
+                })
+            }
+            None => None,
+        };
+        sources.push(SourceAtEye {
+            label: src.spectrum.label().to_string(),
+            irradiance: c
+                .irradiance
+                .radiometric_total()
+                .ok_or_else(|| Error::input("corneal spectrum has no scale"))?,
+            photon_irradiance: c
+                .irradiance
+                .photon_total()
+                .ok_or_else(|| Error::input("corneal spectrum has no scale"))?,
+            illuminance: photopic(&c.irradiance),
+            radiance: c.radiance.as_ref().and_then(Spectrum::radiometric_total),
+            luminance: c.radiance.as_ref().map(photopic),
+            radiance_derived: c.radiance_derived,
+            subtense: c.subtense,
+            retinal,
+            notes: c.notes.clone(),
+        });
+    }
+    let total = Spectrum::sum(&cornea.iter().map(|c| c.irradiance.clone()).collect::<Vec<_>>())?;
+    let ranges: Vec<(f64, f64)> = cornea.iter().map(|c| c.irradiance.range_nm()).collect();
+    if ranges.windows(2).any(|w| w[0] != w[1]) {
+        notes.push(format!(
+            "the sources' spectra cover different ranges ({}); the total takes each source as emitting nothing outside \
+             its own range",
+            cornea
+                .iter()
+                .map(|c| format!("{} {}–{} nm", c.irradiance.label(), c.irradiance.range_nm().0, c.irradiance.range_nm().1))
+                .collect::<Vec<_>>()
+                .join("; ")
+        ));
+    }
+    if s.sources.len() > 1 {
+        notes.push(
+            "corneal quantities add over the sources; retinal quantities are per source, because the images \
+             of different sources fall on different parts of the retina"
+                .to_string(),
+        );
+    }
+    if sources.iter().any(|x| x.retinal.is_some()) {
+        notes.push(
+            "R* rates are for dark-adapted, unbleached pigment; bleaching lowers them at high levels and is not \
+             modelled here"
+                .to_string(),
+        );
+    }
+    let saturating =
+        sources.iter().filter_map(|x| x.retinal.as_ref()).any(|r| as_td_f64(r.trolands.scotopic) > 1000.0);
+    if human && saturating {
+        notes.push(
+            "above about 3 log scotopic trolands human rods saturate (common practice, no source): the rod rate is \
+             a photon count, not a signal"
+                .to_string(),
+        );
+    }
+    let memory = eye.from_memory();
+    if !memory.is_empty() {
+        notes.push(format!(
+            "these {} eye parameters are from memory and affect the results: {}",
+            eye.species.name(),
+            memory.join(", ")
+        ));
+    }
+    if pupil.status == Status::FromMemory {
+        notes.push(format!("the pupil ({}) is from memory", pupil.basis));
+    }
+    if s.albino_iris {
+        notes.push(
+            "albino iris: light through the unpigmented iris is added as T_iris × (iris area − pupil area), \
+             an approximation with a from-memory iris transmittance"
+                .to_string(),
+        );
+    }
+    if !human {
+        notes.push(
+            "rodent α-opic quantities are retidose's method (lens-filtered Govardovskii templates, peak 1, photon \
+             basis, equivalent daylight relative to CIE D65 by analogy with CIE S 026): not a CIE quantity"
+                .to_string(),
+        );
+    }
+    Ok(RetinaReport {
+        species: eye.species,
+        nodal_distance: eye.nodal_distance.value,
+        pupil,
+        collecting_area_mm2: area,
+        filters: s.filters.iter().map(|f| f.label().to_string()).collect(),
+        total_illuminance: photopic(&total),
+        human_alpha_opic: if human { alpha_opic(&total) } else { Vec::new() },
+        species_opic: if human { Vec::new() } else { species_alpha_opic(&total, eye) },
+        total_corneal: total,
+        sources,
+        notes,
+    })
+}

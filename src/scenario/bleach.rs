@@ -1,0 +1,176 @@
+//! Bleaching schedules written as TOML: the receptor, the model, optional parameter overrides,
+//! and steps with a duration and either a level (with its unit) or a source seen by a subject.
+//!
+//! ```toml
+//! receptor = "mouse-rod"        # human-rod, human-cone, mouse-rod, rat-rod
+//! model = "rate-limited"        # or rushton (default rate-limited)
+//! repeat = 7                    # the steps, 7 times over
+//! [parameters]                  # optional overrides, units in values
+//! tau0 = "600 s"
+//! [subject]                     # needed for steps with a source (as in a retina scenario)
+//! species = "mouse"
+//! pupil = "dark"
+//! [[step]]
+//! name = "light"
+//! duration = "12 h"
+//! source = { spectrum = "warm-white-led", illuminance = "300 lx", full_field = true }
+//! [[step]]
+//! name = "dark"
+//! duration = "12 h"
+//! level = "0 R*/rod/s"
+//! ```
+
+use std::collections::BTreeMap;
+use std::path::Path;
+
+use serde::Deserialize;
+
+use crate::base::error::{Error, Result};
+use crate::base::quantity::SiValue;
+use crate::base::units::{parse_isomerisation_rate, parse_time, parse_trolands};
+use crate::pigment::kinetics::{LevelUnit, Model, Pigment, find_pigment};
+use crate::pigment::schedule::Schedule;
+use crate::retina::report::assess_retina;
+use crate::scenario::retina::{SourceSpec, SubjectSpec, build};
+
+/// A parsed bleaching scenario.
+#[derive(Debug, Clone, PartialEq)]
+pub struct BleachScenario {
+    /// The receptor with any overrides applied.
+    pub pigment: Pigment,
+    /// The model.
+    pub model: Model,
+    /// The schedule, levels converted to bleaching rates.
+    pub schedule: Schedule,
+    /// Starting bleached fraction.
+    pub start: f64,
+}
+
+#[derive(Deserialize)]
+#[serde(deny_unknown_fields)]
+struct RawScenario {
+    receptor: String,
+    model: Option<String>,
+    repeat: Option<u64>,
+    start_bleached: Option<f64>,
+    #[serde(default)]
+    parameters: BTreeMap<String, String>,
+    subject: Option<SubjectSpec>,
+    step: Vec<RawStep>,
+}
+
+#[derive(Deserialize)]
+#[serde(deny_unknown_fields)]
+struct RawStep {
+    name: Option<String>,
+    duration: String,
+    level: Option<String>,
+    source: Option<SourceSpec>,
+}
+
+/// Parses a light level written with the receptor's unit (`"300 td"`, `"1e4 R*/rod/s"`).
+///
+/// # Errors
+/// [`crate::ErrorKind::InvalidInput`] for a missing or wrong unit or a negative level.
+pub fn parse_level(pigment: &Pigment, text: &str) -> Result<f64> {
+    let v = match pigment.level_unit {
+        LevelUnit::IsomerisationsPerSecond => parse_isomerisation_rate(text)?.si(),
+        LevelUnit::ScotopicTrolands | LevelUnit::PhotopicTrolands => parse_trolands(text)?,
+    };
+    if !(v >= 0.0 && v.is_finite()) {
+        return Err(Error::input(format!("light level '{text}' must be a finite number ≥ 0")));
+    }
+    Ok(v)
+}
+
+/// The level a source gives for `pigment`, through the retina chain for `subject`.
+///
+/// # Errors
+/// As the retina chain, or if the radiance the eye sees is not known.
+pub fn level_of_source(
+    pigment: &Pigment,
+    subject: &SubjectSpec,
+    source: &SourceSpec,
+    base: Option<&Path>,
+) -> Result<f64> {
+    let scenario = build(subject, std::slice::from_ref(source), &[], base)?;
+    if scenario.eye.species != pigment.species {
+        return Err(Error::input(format!(
+            "the subject is a {} but the receptor {} belongs to a {}",
+            scenario.eye.species.name(),
+            pigment.id,
+            pigment.species.name()
+        )));
+    }
+    let report = assess_retina(&scenario)?;
+    let retinal = report.sources[0].retinal.as_ref().ok_or_else(|| {
+        Error::input(format!(
+            "source '{}': the radiance the eye sees is not known; give full_field, subtense, or size and distance",
+            source.spectrum
+        ))
+    })?;
+    Ok(match pigment.level_unit {
+        LevelUnit::ScotopicTrolands => crate::base::quantity::as_td_f64(retinal.trolands.scotopic),
+        LevelUnit::PhotopicTrolands => crate::base::quantity::as_td_f64(retinal.trolands.photopic),
+        LevelUnit::IsomerisationsPerSecond => retinal
+            .catch
+            .iter()
+            .find(|c| c.receptor == "rod")
+            .map(|c| c.rate.si())
+            .ok_or_else(|| Error::input("the eye model has no rod"))?,
+    })
+}
+
+/// Parses a bleaching scenario; `origin` names it in errors and `base` is where relative files
+/// are looked up.
+///
+/// # Errors
+/// [`crate::ErrorKind::InvalidData`] or [`crate::ErrorKind::InvalidInput`] naming the file and
+/// the step or key: unknown keys, a missing or wrong unit, zero-length steps, a step with both or
+/// neither of level and source, parameters outside their range, a schedule that never ends.
+pub fn parse_bleach_scenario(text: &str, origin: &str, base: Option<&Path>) -> Result<BleachScenario> {
+    let raw: RawScenario =
+        toml::from_str(text).map_err(|e| Error::data(crate::base::toml_errors::describe(&e, origin)))?;
+    let ctx = |e: Error, key: &str| e.context(format!("{origin}: key '{key}'"));
+    let mut pigment = find_pigment(&raw.receptor).map_err(|e| ctx(e, "receptor"))?;
+    for (k, v) in &raw.parameters {
+        pigment.override_param(k, v).map_err(|e| ctx(e, &format!("parameters.{k}")))?;
+    }
+    let model = match &raw.model {
+        Some(m) => Model::parse(m).map_err(|e| ctx(e, "model"))?,
+        None => Model::RateLimited,
+    };
+    let mut schedule = Schedule::default();
+    let mut source_levels: Vec<(SourceSpec, f64)> = Vec::new();
+    for (i, s) in raw.step.iter().enumerate() {
+        let key = format!("step[{i}]");
+        let name = s.name.clone().unwrap_or_else(|| format!("step {}", i + 1));
+        let d = parse_time(&s.duration).map_err(|e| ctx(e, &format!("{key}.duration")))?.si();
+        let level = match (&s.level, &s.source) {
+            (Some(l), None) => parse_level(&pigment, l).map_err(|e| ctx(e, &format!("{key}.level")))?,
+            (None, Some(src)) => match source_levels.iter().find(|(spec, _)| spec == src) {
+                Some((_, lv)) => *lv,
+                None => {
+                    let subject = raw.subject.as_ref().ok_or_else(|| {
+                        ctx(
+                            Error::input("a step with a source needs a [subject] table (species, pupil)"),
+                            &key,
+                        )
+                    })?;
+                    let lv = level_of_source(&pigment, subject, src, base)
+                        .map_err(|e| ctx(e, &format!("{key}.source")))?;
+                    source_levels.push((src.clone(), lv));
+                    lv
+                }
+            },
+            _ => return Err(ctx(Error::input("give either 'level' or 'source'"), &key)),
+        };
+        schedule.push(&name, d, pigment.rate_of_level(level)).map_err(|e| ctx(e, &key))?;
+    }
+    schedule.repeat(raw.repeat.unwrap_or(1)).map_err(|e| ctx(e, "repeat"))?;
+    let start = raw.start_bleached.unwrap_or(0.0);
+    if !(0.0..=1.0).contains(&start) {
+        return Err(ctx(Error::input(format!("{start} must be between 0 and 1")), "start_bleached"));
+    }
+    Ok(BleachScenario { pigment, model, schedule, start })
+}

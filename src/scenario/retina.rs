@@ -1,0 +1,348 @@
+//! Describing a viewing situation in words and units: the `[subject]`, `[[source]]` and
+//! `[[filter]]` tables of a retina scenario file, or the same fields from the command line,
+//! turned into a [`RetinaScenario`].
+//!
+//! ```toml
+//! [subject]
+//! species = "mouse"          # human, mouse or rat
+//! pupil = "dark"             # "2 mm", dark, light, dilated, watson-yellott, de-groot-gebhard, moon-spencer
+//!
+//! [[source]]
+//! spectrum = "warm-white-led"
+//! illuminance = "350 lx"     # or luminance, irradiance, photon_irradiance, radiance,
+//!                            # luminous_intensity, luminous_flux, radiant_flux
+//! full_field = true          # light from the whole field; or subtense = "10 deg"
+//!
+//! [[filter]]
+//! name = "cage wall"
+//! transmittance = "0.65"     # or file = "wall.csv"
+//! ```
+
+use std::path::{Path, PathBuf};
+
+use serde::Deserialize;
+
+use crate::base::error::{Error, Result};
+use crate::base::quantity::{Angle, SiValue};
+use crate::base::units::{parse_angle, parse_length, parse_luminance, parse_time};
+use crate::cornea::filter::Filter;
+use crate::cornea::geometry::{Emission, Field, Geometry, subtense};
+use crate::retina::eye::{Eye, Species, builtin_eye};
+use crate::retina::pupil::PupilRule;
+use crate::retina::report::{PlacedSource, RetinaScenario};
+use crate::spectrum::Measure;
+use crate::spectrum::scale::{SCALE_KEYS, ScaleTarget, scale_to};
+use crate::spectrum::source::resolve;
+
+/// One source as written: every value a string with its unit.
+#[derive(Debug, Clone, Default, PartialEq, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct SourceSpec {
+    /// A name for the source (used by schedules and reports).
+    pub id: Option<String>,
+    /// A built-in lamp, a generator or a file (relative to the scenario file).
+    pub spectrum: String,
+    /// Scale to a measured illuminance at the eye.
+    pub illuminance: Option<String>,
+    /// Scale to a measured luminance of the source.
+    pub luminance: Option<String>,
+    /// Scale to an irradiance at the eye.
+    pub irradiance: Option<String>,
+    /// Scale to a photon irradiance at the eye.
+    pub photon_irradiance: Option<String>,
+    /// Scale to a radiance of the source.
+    pub radiance: Option<String>,
+    /// Scale to a luminous intensity of a small source.
+    pub luminous_intensity: Option<String>,
+    /// Scale to a luminous flux of a lamp.
+    pub luminous_flux: Option<String>,
+    /// Scale to a radiant flux of a lamp.
+    pub radiant_flux: Option<String>,
+    /// `at-eye`, `extended`, `intensity` or `flux`; inferred from the spectrum when absent.
+    pub geometry: Option<String>,
+    /// Distance from the source to the eye.
+    pub distance: Option<String>,
+    /// Source diameter.
+    pub size: Option<String>,
+    /// Full angle the source subtends.
+    pub subtense: Option<String>,
+    /// The light fills the field of view evenly.
+    #[serde(default)]
+    pub full_field: bool,
+    /// `isotropic` or `lambertian` (flux geometry).
+    pub emission: Option<String>,
+    /// Angle from a Lambertian emitter's axis.
+    pub emission_angle: Option<String>,
+    /// Angle of incidence at the eye.
+    pub incidence: Option<String>,
+}
+
+/// The subject as written.
+#[derive(Debug, Clone, Default, PartialEq, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct SubjectSpec {
+    /// `human`, `mouse` or `rat`.
+    pub species: String,
+    /// `albino` or `pigmented` (rodents; albino animals get the Guide's phototoxicity range).
+    pub pigmentation: Option<String>,
+    /// Pupil diameter or rule.
+    pub pupil: Option<String>,
+    /// Age (`"32 y"`).
+    pub age: Option<String>,
+    /// Eyes viewing, 1 or 2 (pupil formulas).
+    pub eyes: Option<u8>,
+    /// Adapting field (full angle) for the Watson & Yellott pupil.
+    pub field: Option<String>,
+    /// Adapting luminance for pupil formulas.
+    pub adapting_luminance: Option<String>,
+    /// Add light through an unpigmented iris (albino rodents).
+    #[serde(default)]
+    pub albino_iris: bool,
+    /// A user eye-model file instead of the built-in one.
+    pub eye_file: Option<String>,
+}
+
+/// A filter as written.
+#[derive(Debug, Clone, Default, PartialEq, Deserialize)]
+#[serde(deny_unknown_fields)]
+pub struct FilterSpec {
+    /// Name for reports.
+    pub name: Option<String>,
+    /// A flat transmittance, 0–1.
+    pub transmittance: Option<String>,
+    /// A transmittance file (relative to the scenario file).
+    pub file: Option<String>,
+}
+
+#[derive(Deserialize)]
+#[serde(deny_unknown_fields)]
+struct RawScenario {
+    subject: SubjectSpec,
+    source: Vec<SourceSpec>,
+    #[serde(default)]
+    filter: Vec<FilterSpec>,
+}
+
+fn rel(base: Option<&Path>, p: &str) -> PathBuf {
+    match base {
+        Some(b) if Path::new(p).is_relative() => b.join(p),
+        _ => PathBuf::from(p),
+    }
+}
+
+fn opt<T>(v: &Option<String>, key: &str, parse: impl Fn(&str) -> Result<T>) -> Result<Option<T>> {
+    v.as_deref().map(|t| parse(t).map_err(|e| e.context(format!("key '{key}'")))).transpose()
+}
+
+/// Resolves, scales and places one source.
+///
+/// # Errors
+/// [`crate::ErrorKind::InvalidInput`] naming the key: more than one measured value, a
+/// missing distance or size for the geometry, an unknown geometry or emission, a bad unit.
+pub fn place(spec: &SourceSpec, base: Option<&Path>) -> Result<PlacedSource> {
+    let given: Vec<(&str, &String)> = SCALE_KEYS
+        .iter()
+        .zip([
+            &spec.illuminance,
+            &spec.luminance,
+            &spec.irradiance,
+            &spec.photon_irradiance,
+            &spec.radiance,
+            &spec.luminous_intensity,
+            &spec.luminous_flux,
+            &spec.radiant_flux,
+        ])
+        .filter_map(|(k, v)| v.as_ref().map(|v| (*k, v)))
+        .collect();
+    if given.len() > 1 {
+        return Err(Error::input(format!(
+            "source '{}' gives {} measured values ({}); give one",
+            spec.spectrum,
+            given.len(),
+            given.iter().map(|g| g.0).collect::<Vec<_>>().join(", ")
+        )));
+    }
+    let path = rel(base, &spec.spectrum);
+    let name = if path.is_file() { path.to_string_lossy().into_owned() } else { spec.spectrum.clone() };
+    let mut spectrum = resolve(&name, None).map_err(|e| e.context("key 'spectrum'"))?;
+    if let Some(id) = &spec.id {
+        spectrum = spectrum.with_label(id.clone());
+    }
+    if let Some((key, value)) = given.first() {
+        let t = ScaleTarget::parse(key, value).map_err(|e| e.context(format!("key '{key}'")))?;
+        spectrum = scale_to(&spectrum, t).map_err(|e| e.context(format!("key '{key}'")))?;
+    }
+    let distance = opt(&spec.distance, "distance", parse_length)?;
+    let size = opt(&spec.size, "size", parse_length)?;
+    let sub = opt(&spec.subtense, "subtense", parse_angle)?;
+    let zero = Angle::from_si(0.0);
+    let incidence = opt(&spec.incidence, "incidence", parse_angle)?.unwrap_or(zero);
+    let kind = match spec.geometry.as_deref() {
+        Some(g) => g.to_string(),
+        None => match spectrum.measure() {
+            Measure::Irradiance => "at-eye".to_string(),
+            Measure::Radiance => "extended".to_string(),
+            Measure::Intensity => "intensity".to_string(),
+            Measure::Flux => "flux".to_string(),
+            Measure::Relative => {
+                return Err(Error::input(format!(
+                    "source '{}' is a relative spectrum: give one measured value ({})",
+                    spec.spectrum,
+                    SCALE_KEYS.join(", ")
+                )));
+            }
+        },
+    };
+    let missing =
+        |key: &str| Error::input(format!("source '{}' with {kind} geometry needs '{key}'", spec.spectrum));
+    let geometry = match kind.as_str() {
+        "at-eye" => {
+            let field = match (spec.full_field, sub, size, distance) {
+                (true, None, None, _) => Some(Field::FullField),
+                (true, _, _, _) => {
+                    return Err(Error::input(
+                        "give either full_field or a subtense (or size and distance), not both",
+                    ));
+                }
+                (false, Some(a), None, _) => Some(Field::Subtense(a)),
+                (false, None, Some(s), Some(d)) => Some(Field::Subtense(subtense(s, d)?)),
+                (false, None, Some(_), None) => {
+                    return Err(Error::input("a source size needs its 'distance'"));
+                }
+                (false, Some(_), Some(_), _) => {
+                    return Err(Error::input("give either 'subtense' or 'size', not both"));
+                }
+                (false, None, None, _) => None,
+            };
+            Geometry::AtEye { field }
+        }
+        "extended" => {
+            let a = match (sub, size, distance) {
+                (Some(a), None, _) => a,
+                (None, Some(s), Some(d)) => subtense(s, d)?,
+                _ => {
+                    return Err(Error::input(format!(
+                        "source '{}' with extended geometry needs 'subtense', or 'size' and 'distance'",
+                        spec.spectrum
+                    )));
+                }
+            };
+            Geometry::Extended { subtense: a }
+        }
+        "intensity" => {
+            Geometry::Intensity { distance: distance.ok_or_else(|| missing("distance"))?, incidence, size }
+        }
+        "flux" => {
+            let emission = match spec.emission.as_deref().ok_or_else(|| missing("emission"))? {
+                "isotropic" => Emission::Isotropic,
+                "lambertian" => Emission::Lambertian,
+                other => {
+                    return Err(Error::input(format!(
+                        "key 'emission': '{other}' is not an emission; expected isotropic or lambertian"
+                    )));
+                }
+            };
+            Geometry::Flux {
+                emission,
+                distance: distance.ok_or_else(|| missing("distance"))?,
+                emission_angle: opt(&spec.emission_angle, "emission_angle", parse_angle)?.unwrap_or(zero),
+                incidence,
+                size,
+            }
+        }
+        other => {
+            return Err(Error::input(format!(
+                "key 'geometry': '{other}' is not a geometry; expected at-eye, extended, intensity or flux"
+            )));
+        }
+    };
+    Ok(PlacedSource { spectrum, geometry, size })
+}
+
+/// Builds a scenario from its parts.
+///
+/// # Errors
+/// As [`place`]; an unknown species, pupil, age or filter; a user eye file that cannot be read.
+pub fn build(
+    subject: &SubjectSpec,
+    sources: &[SourceSpec],
+    filters: &[FilterSpec],
+    base: Option<&Path>,
+) -> Result<RetinaScenario> {
+    let species = Species::parse(&subject.species).map_err(|e| e.context("key 'species'"))?;
+    let eye = match &subject.eye_file {
+        Some(f) => {
+            let p = rel(base, f);
+            let text = std::fs::read_to_string(&p)
+                .map_err(|e| Error::input(format!("key 'eye_file': cannot read {}: {e}", p.display())))?;
+            let eye = Eye::from_toml(&text, &p.display().to_string())?;
+            if eye.species != species {
+                return Err(Error::input(format!(
+                    "key 'eye_file': {} describes a {} eye, the subject is a {}",
+                    p.display(),
+                    eye.species.name(),
+                    species.name()
+                )));
+            }
+            eye
+        }
+        None => builtin_eye(species).clone(),
+    };
+    let pupil = match &subject.pupil {
+        Some(p) => PupilRule::parse(p).map_err(|e| e.context("key 'pupil'"))?,
+        None => {
+            return Err(Error::input(
+                "key 'pupil' is missing: give a diameter (\"3 mm\") or a rule (dark, light, dilated, \
+                 watson-yellott, de-groot-gebhard, moon-spencer)",
+            ));
+        }
+    };
+    let eyes = subject.eyes.unwrap_or(2);
+    if !(1..=2).contains(&eyes) {
+        return Err(Error::input(format!("key 'eyes': {eyes} must be 1 or 2")));
+    }
+    let sources = sources
+        .iter()
+        .enumerate()
+        .map(|(i, s)| place(s, base).map_err(|e| e.context(format!("source {}", i + 1))))
+        .collect::<Result<Vec<_>>>()?;
+    let filters = filters
+        .iter()
+        .enumerate()
+        .map(|(i, f)| {
+            let at = |e: Error| e.context(format!("filter {}", i + 1));
+            let mut filter = match (&f.transmittance, &f.file) {
+                (Some(t), None) => Filter::parse(t).map_err(at)?,
+                (None, Some(file)) => Filter::parse(&rel(base, file).to_string_lossy()).map_err(at)?,
+                _ => return Err(at(Error::input("give either 'transmittance' or 'file'"))),
+            };
+            if let Some(n) = &f.name {
+                filter = filter.with_label(n);
+            }
+            Ok(filter)
+        })
+        .collect::<Result<Vec<_>>>()?;
+    Ok(RetinaScenario {
+        eye,
+        sources,
+        filters,
+        pupil,
+        age: opt(&subject.age, "age", parse_time)?,
+        eyes,
+        field: opt(&subject.field, "field", parse_angle)?,
+        adapting_luminance: opt(&subject.adapting_luminance, "adapting_luminance", parse_luminance)?,
+        albino_iris: subject.albino_iris,
+    })
+}
+
+/// Parses a retina scenario file; `origin` names it in errors and `base` is where relative
+/// files are looked up.
+///
+/// # Errors
+/// [`crate::ErrorKind::InvalidData`] or [`crate::ErrorKind::InvalidInput`] naming the file,
+/// the line (for syntax and unknown keys) or the key, and what would be right.
+pub fn parse_scenario(text: &str, origin: &str, base: Option<&Path>) -> Result<RetinaScenario> {
+    let raw: RawScenario =
+        toml::from_str(text).map_err(|e| Error::data(crate::base::toml_errors::describe(&e, origin)))?;
+    build(&raw.subject, &raw.source, &raw.filter, base).map_err(|e| e.context(origin))
+}

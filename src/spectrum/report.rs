@@ -1,0 +1,157 @@
+//! The assessment of one spectrum: everything `retidose spectrum` shows, as plain data.
+//!
+//! Renderers (terminal table, JSON) read this structure and nothing else.
+
+use crate::base::quantity::LuminousEfficacy;
+use crate::spectrum::photometry::{PhotometricResult, luminous_efficacy, photopic, scotopic, sp_ratio};
+use crate::spectrum::scale::ScaleTarget;
+use crate::spectrum::{Basis, Coverage, Measure, PhotonTotal, Radiometric, Spectrum};
+use crate::weighting::alpha_opic::{AlphaOpicValue, action_spectra, alpha_opic};
+
+/// A wavelength band and the share of the spectrum's radiant power in it.
+#[derive(Debug, Clone)]
+pub struct BandShare {
+    /// Short name of the band.
+    pub name: &'static str,
+    /// The band, nm.
+    pub band_nm: (f64, f64),
+    /// Share of the radiant power within the spectrum's sampled range that falls in the band.
+    pub share: Option<f64>,
+    /// How much of the band the spectrum covers.
+    pub coverage: Coverage,
+}
+
+/// The bands reported: UV (CIE: 100–400 nm), 400–500 nm (the blue region), visible
+/// (380–780 nm, the CIE 018 span of V(λ) tables), IR (CIE: 780 nm–1 mm).
+pub const BANDS: [(&str, (f64, f64)); 4] = [
+    ("uv", (100.0, 400.0)),
+    ("blue-400-500", (400.0, 500.0)),
+    ("visible", (380.0, 780.0)),
+    ("ir", (780.0, 1.0e6)),
+];
+
+/// Everything known about one spectrum.
+#[derive(Debug, Clone)]
+pub struct SpectrumReport {
+    /// Name of the spectrum.
+    pub label: String,
+    /// Where it came from, if known.
+    pub provenance: Option<String>,
+    /// What it measures.
+    pub measure: Measure,
+    /// Basis of the input values.
+    pub basis: Basis,
+    /// Sampled range, nm.
+    pub range_nm: (f64, f64),
+    /// Number of samples.
+    pub samples: usize,
+    /// The measured quantity it was scaled to, if any.
+    pub scaled_to: Option<ScaleTarget>,
+    /// Radiant total over the sampled range.
+    pub radiometric: Option<Radiometric>,
+    /// Photon total over the sampled range.
+    pub photon: Option<PhotonTotal>,
+    /// Photopic luminous quantity.
+    pub photopic: PhotometricResult,
+    /// Scotopic luminous quantity.
+    pub scotopic: PhotometricResult,
+    /// S/P ratio.
+    pub sp_ratio: Option<f64>,
+    /// Luminous efficacy of radiation over the sampled range.
+    pub luminous_efficacy: Option<LuminousEfficacy>,
+    /// The five CIE S 026 α-opic quantities.
+    pub alpha_opic: Vec<AlphaOpicValue>,
+    /// Wavelength of the largest spectral value (energy basis), nm.
+    pub peak_nm: f64,
+    /// Shares of radiant power per band.
+    pub bands: Vec<BandShare>,
+    /// Cautions a reader must see next to the numbers.
+    pub notes: Vec<String>,
+}
+
+/// Builds the report of `spectrum`; `scaled_to` records how it was scaled, if it was.
+pub fn report(spectrum: &Spectrum, scaled_to: Option<ScaleTarget>) -> SpectrumReport {
+    let energy = spectrum.to_energy();
+    let total = energy.integral();
+    let bands = BANDS
+        .iter()
+        .map(|&(name, band)| {
+            let (v, coverage) = energy.band_integral(band);
+            BandShare { name, band_nm: band, share: (total > 0.0).then(|| v / total), coverage }
+        })
+        .collect::<Vec<_>>();
+    let photopic = photopic(&energy);
+    let scotopic = scotopic(&energy);
+    let alpha = alpha_opic(&energy);
+    let mut notes = Vec::new();
+    if spectrum.measure() == Measure::Relative {
+        notes.push(
+            "relative spectrum: only ratios (S/P, efficacy, ELR, DER, band shares) are meaningful; \
+             give a measured value (--illuminance, --luminance, --irradiance, --photon-irradiance, --radiance) \
+             for absolute quantities"
+                .to_string(),
+        );
+    }
+    let (lo, hi) = spectrum.range_nm();
+    for (what, cov) in [("photopic V(λ)", photopic.coverage), ("scotopic V′(λ)", scotopic.coverage)] {
+        if !cov.is_complete() {
+            notes.push(format!(
+                "{what} needs {}–{} nm; the spectrum covers {lo}–{hi} nm, so {:.3} % of the function's weight is missing \
+                 and the value is a lower bound",
+                cov.needed_nm.0,
+                cov.needed_nm.1,
+                100.0 * cov.uncovered_weight_share
+            ));
+        }
+    }
+    for a in &alpha {
+        if !a.coverage.is_complete() {
+            notes.push(format!(
+                "{} needs {}–{} nm; the spectrum covers {lo}–{hi} nm ({:.3} % of the weight missing): a lower bound",
+                a.name,
+                a.coverage.needed_nm.0,
+                a.coverage.needed_nm.1,
+                100.0 * a.coverage.uncovered_weight_share
+            ));
+        }
+    }
+    for b in &bands {
+        if !b.coverage.is_complete() && b.name != "ir" {
+            notes.push(format!(
+                "band {} ({}–{} nm) is only partly covered by the spectrum ({lo}–{hi} nm): its share counts the covered part only",
+                b.name, b.band_nm.0, b.band_nm.1
+            ));
+        }
+    }
+    notes.push(format!(
+        "band shares are of the power within the sampled {lo}–{hi} nm; power the lamp emits outside that range is not included"
+    ));
+    if let Some(mel) = action_spectra().iter().find(|f| f.reconstructed) {
+        let dev = 100.0 * (mel.d65_elr.value / mel.published_d65_elr.value - 1.0);
+        notes.push(format!(
+            "the {} function is a reconstruction, not the normative CIE S 026 table (its D65 ELR differs from the \
+             published {:.4} mW/lm, itself from memory, by {dev:+.2} %; the lens model it uses is from memory)",
+            mel.name,
+            mel.published_d65_elr.value * 1e3
+        ));
+    }
+    SpectrumReport {
+        label: spectrum.label().to_string(),
+        provenance: spectrum.provenance().map(str::to_string),
+        measure: spectrum.measure(),
+        basis: spectrum.basis(),
+        range_nm: (lo, hi),
+        samples: spectrum.curve().wavelength_nm().len(),
+        scaled_to,
+        radiometric: spectrum.radiometric_total(),
+        photon: spectrum.photon_total(),
+        photopic,
+        scotopic,
+        sp_ratio: sp_ratio(&energy),
+        luminous_efficacy: luminous_efficacy(&energy),
+        alpha_opic: alpha,
+        peak_nm: energy.peak_nm(),
+        bands,
+        notes,
+    }
+}
