@@ -27,8 +27,6 @@
 //! ```
 
 #![warn(clippy::print_stdout, clippy::print_stderr)]
-#![warn(missing_docs)]
-#![forbid(unsafe_code)]
 
 pub mod assess;
 pub mod base;

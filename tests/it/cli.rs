@@ -474,7 +474,7 @@ fn limits_check_rejects_bad_input() {
             .to_vec(),
         "below π rad",
     );
-    let set = include_str!("../limits/icnirp_2004_uv.toml")
+    let set = include_str!("../../limits/icnirp_2004_uv.toml")
         .replace("from_s = 1000\nto_s = 28800", "from_s = 500\nto_s = 28800");
     let p = temp_file("overlap.toml", &set);
     fails(
@@ -482,7 +482,7 @@ fn limits_check_rejects_bad_input() {
         "pieces must follow each other without gap or overlap",
     );
     let bad_unit =
-        include_str!("../limits/icnirp_2004_uv.toml").replace("unit = \"W/m2\"", "unit = \"W/m3\"");
+        include_str!("../../limits/icnirp_2004_uv.toml").replace("unit = \"W/m2\"", "unit = \"W/m3\"");
     let p = temp_file("unit.toml", &bad_unit);
     fails(with(&["--for", "1 h", "--set-file", p.to_str().unwrap()]), "unit 'W/m3' does not fit");
     fails(with(&["--for", "1 h", "--set", "icnirp-1899"]), "unknown limit set 'icnirp-1899'");

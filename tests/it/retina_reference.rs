@@ -35,7 +35,7 @@ fn pupil(eye: &Eye, text: &str) -> retidose::retina::pupil::Pupil {
 
 /// The human eye with flat media of transmittance `tau` (a cut-off far below the spectrum).
 fn human_with_flat_media(tau: f64) -> Eye {
-    let text = include_str!("../src/data/eyes/human.toml").replace(
+    let text = include_str!("../../src/data/eyes/human.toml").replace(
         "model = \"van-de-kraats-2007\"",
         &format!(
             "model = \"cut-off\"\nhalf_transmission = {{ value = \"10 nm\", status = \"derived\", source = \"test\" }}\n\

@@ -27,7 +27,7 @@ const COLOUR_K_PRIME_M: f64 = 1700.0;
 const COLOUR_C2: f64 = 1.4388e-2;
 
 fn fixture(key: &str) -> f64 {
-    static TEXT: &str = include_str!("fixtures/colour_reference.json");
+    static TEXT: &str = include_str!("../fixtures/colour_reference.json");
     let doc: Value = serde_json::from_str(TEXT).expect("fixture is valid JSON");
     doc[key]["value"].as_f64().unwrap_or_else(|| panic!("fixture has no numeric '{key}'"))
 }

@@ -287,7 +287,7 @@ fn risk_groups_at_200_mm_and_threshold_distance() {
 
 #[test]
 fn malformed_sets_are_rejected_with_file_key_and_reason() {
-    let good = include_str!("../limits/iec62471_2006.toml");
+    let good = include_str!("../../limits/iec62471_2006.toml");
     let cases = [
         (
             good.replacen("from_s = 1000\nto_s = 30000", "from_s = 900\nto_s = 30000", 1),

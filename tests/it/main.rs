@@ -1,0 +1,10 @@
+//! The one integration-test binary: every file beside this one is a module of it, so the
+//! library and the test dependencies are linked once.
+
+mod assess;
+mod bleach_reference;
+mod cli;
+mod limits_reference;
+mod properties;
+mod reference;
+mod retina_reference;
