@@ -2,10 +2,13 @@
 //! 100-column grid under four ceiling luminaires), from room lux to rod bleach and flags. The
 //! per-lux spectral factors are computed once per survey, in the setup, as `assess` does.
 
+use retidose::cornea::filter::Filter;
 use retidose::housing::guidance::find_guidance;
 use retidose::housing::survey::{Luminaire, Rack, SurveyInput, illuminance_at, per_lux, run_survey};
 use retidose::pigment::kinetics::{Model, find_pigment};
-use retidose::scenario::retina::SubjectSpec;
+use retidose::retina::pupil::PupilRule;
+use retidose::scenario::retina::{SubjectSpec, build};
+use retidose::spectrum::source::resolve;
 
 fn main() {
     divan::main();
@@ -16,9 +19,12 @@ fn survey_100_000_positions(bencher: divan::Bencher) {
     let pigment = find_pigment("mouse-rod").unwrap();
     let subject =
         SubjectSpec { species: "mouse".into(), pupil: Some("light".into()), ..SubjectSpec::default() };
-    let dark_subject = SubjectSpec { pupil: Some("dark".into()), ..subject.clone() };
-    let light = per_lux(&pigment, &subject, "neutral-white-led").unwrap();
-    let dark = per_lux(&pigment, &dark_subject, "warm-white-led").unwrap();
+    let view = build(&subject, &[], &[], None).unwrap();
+    let wall = Filter::flat(0.8, "cage wall").unwrap();
+    let light =
+        per_lux(&view, &resolve("neutral-white-led", None).unwrap(), &wall, PupilRule::LightAdapted).unwrap();
+    let dark =
+        per_lux(&view, &resolve("warm-white-led", None).unwrap(), &wall, PupilRule::DarkAdapted).unwrap();
     let nrc = find_guidance("nrc-guide-2011").unwrap();
     let rack = Rack {
         shelves: 1000,

@@ -2,31 +2,38 @@
 //!
 //! A scenario names a subject, sources (each placed as in a retina scenario), filters, an
 //! exposure schedule whose steps switch sources on, the limit sets and guidance sets to check,
-//! and optionally a housing survey of a rack. [`assess`] turns it into an [`Assessment`], the one
-//! structure every report reads.
+//! and optionally a housing survey of a rack. [`crate::scenario::file`] resolves it once;
+//! [`assess`] runs the resolved values through the stages into an [`Assessment`], the one
+//! structure every report reads. Each source's light path (placing, filters, the pupil of the
+//! step's phase) is computed once and every section reads it.
 
-use std::path::Path;
-
-use serde::Deserialize;
+use uom::si::f64::{Frequency, Illuminance};
+use uom::si::frequency::hertz;
+use uom::si::illuminance::lux;
 
 use crate::base::error::{Error, Result};
-use crate::base::quantity::SiValue;
-use crate::base::toml_errors::describe;
-use crate::base::units::{parse_length, parse_luminous_intensity, parse_number, parse_time};
-use crate::housing::guidance::{Evidence, Flag, GuidanceSet, find_guidance};
+use crate::base::quantity::{SiValue, Time};
+use crate::cornea::at_cornea;
+use crate::cornea::filter::Filter;
+use crate::housing::guidance::{AppliesTo, Evidence, Flag, GuidanceQuantity, GuidanceSet, Rule};
 use crate::housing::survey::{
-    Luminaire, PositionResult, Rack, SurveyInput, illuminance_at, per_lux, read_measurements, run_survey,
+    PositionResult, SurveyInput, illuminance_at, per_lux, read_measurements, run_survey,
 };
+use crate::limits::Verdict;
 use crate::limits::report::{LIMITS_CAUTION, LimitsAssessment, LimitsRequest, assess_limits};
-use crate::limits::{LimitSet, find_set};
 use crate::pigment::bleach::{BleachReport, assess as bleach_assess};
-use crate::pigment::kinetics::{Model, Pigment, find_pigment};
+use crate::pigment::kinetics::{LevelUnit, Model, Pigment, find_pigment};
 use crate::pigment::schedule::Schedule;
 use crate::retina::eye::Species;
-use crate::retina::report::{RetinaReport, assess_retina};
-use crate::scenario::bleach::level_of_source;
-use crate::scenario::retina::{FilterSpec, SourceSpec, SubjectSpec, build, place};
+use crate::retina::pupil::Pupil;
+use crate::retina::report::{RetinaReport, SourceAtEye, assess_retina};
+use crate::scenario::file::{DarkPupilBasis, LimitsSpec, Scenario, ScheduleSpec, Step, SurveySpec};
+use crate::scenario::{Phase, Pigmentation};
 use crate::spectrum::Spectrum;
+use crate::spectrum::photometry::photopic;
+use crate::weighting::alpha_opic::alpha_opic;
+
+pub use crate::scenario::file::parse_scenario_file;
 
 /// The built-in demo scenarios (invented, set in the fictional Fenwick Institute of Comparative
 /// Vision), by name.
@@ -59,440 +66,6 @@ pub const CAUTIONS: [&str; 3] = [
     "retidose informs; it does not replace the standards bodies' texts, a qualified optical-radiation safety officer, the attending veterinarian, the institution's committee (IACUC, IRB) or local regulation.",
 ];
 
-#[derive(Deserialize)]
-#[serde(deny_unknown_fields)]
-struct RawScenario {
-    scenario: RawMeta,
-    subject: SubjectSpec,
-    #[serde(default)]
-    source: Vec<SourceSpec>,
-    #[serde(default)]
-    filter: Vec<FilterSpec>,
-    schedule: Option<RawSchedule>,
-    limits: Option<RawLimits>,
-    guidance: Option<RawGuidance>,
-    survey: Option<RawSurvey>,
-}
-
-#[derive(Deserialize)]
-#[serde(deny_unknown_fields)]
-struct RawMeta {
-    name: String,
-    title: String,
-    description: Option<String>,
-}
-
-#[derive(Deserialize)]
-#[serde(deny_unknown_fields)]
-struct RawSchedule {
-    receptor: Option<String>,
-    model: Option<String>,
-    repeat: Option<u64>,
-    step: Vec<RawStep>,
-}
-
-#[derive(Deserialize)]
-#[serde(deny_unknown_fields)]
-struct RawStep {
-    name: String,
-    duration: String,
-    #[serde(default)]
-    on: Vec<String>,
-}
-
-#[derive(Deserialize)]
-#[serde(deny_unknown_fields)]
-struct RawLimits {
-    sets: Vec<String>,
-    duration: String,
-    sources: Option<Vec<String>>,
-    #[serde(default)]
-    classify: bool,
-    #[serde(default)]
-    general_lighting: bool,
-    #[serde(default)]
-    aphakic: bool,
-}
-
-#[derive(Deserialize)]
-#[serde(deny_unknown_fields)]
-struct RawGuidance {
-    sets: Vec<String>,
-}
-
-#[derive(Deserialize)]
-#[serde(deny_unknown_fields)]
-struct RawSurvey {
-    shelves: usize,
-    columns: usize,
-    first_column_x: String,
-    column_spacing: String,
-    rack_y: String,
-    bottom_shelf: String,
-    shelf_spacing: String,
-    cage_transmittance: String,
-    shelf_shading: Option<String>,
-    light_spectrum: String,
-    dark_spectrum: Option<String>,
-    dark_lux: Option<String>,
-    measurements: Option<String>,
-    #[serde(default)]
-    luminaire: Vec<RawLuminaire>,
-}
-
-#[derive(Deserialize)]
-#[serde(deny_unknown_fields)]
-struct RawLuminaire {
-    x: String,
-    y: String,
-    z: String,
-    intensity: String,
-}
-
-/// A scenario, parsed and checked (sources are resolved when assessed).
-#[derive(Debug, Clone)]
-pub struct Scenario {
-    /// Short name.
-    pub name: String,
-    /// Title.
-    pub title: String,
-    /// Description.
-    pub description: Option<String>,
-    /// The subject.
-    pub subject: SubjectSpec,
-    /// Sources by id.
-    pub sources: Vec<SourceSpec>,
-    /// Filters.
-    pub filters: Vec<FilterSpec>,
-    /// The exposure schedule.
-    pub schedule: Option<ScheduleSpec>,
-    /// The limit checks.
-    pub limits: Option<LimitsSpec>,
-    /// Guidance sets.
-    pub guidance: Vec<&'static GuidanceSet>,
-    /// Housing survey.
-    pub survey: Option<SurveySpec>,
-    /// Where relative files are looked up.
-    pub base: Option<std::path::PathBuf>,
-    /// The file (or demo) it came from, for messages.
-    pub origin: String,
-    /// Its text, to find the line of a key named in an error.
-    pub text: String,
-}
-
-/// One step of a scenario's schedule.
-#[derive(Debug, Clone, PartialEq)]
-pub struct StepSpec {
-    /// Phase name (matched against guidance phases: light, dark, day, evening, night).
-    pub name: String,
-    /// Duration, s.
-    pub duration_s: f64,
-    /// Ids of the sources lit in this step.
-    pub on: Vec<String>,
-}
-
-/// A scenario's schedule.
-#[derive(Debug, Clone, PartialEq)]
-pub struct ScheduleSpec {
-    /// The receptor.
-    pub pigment: Pigment,
-    /// The model.
-    pub model: Model,
-    /// The steps.
-    pub steps: Vec<StepSpec>,
-    /// Repeats of the steps.
-    pub repeat: u64,
-}
-
-/// A scenario's limit checks.
-#[derive(Debug, Clone)]
-pub struct LimitsSpec {
-    /// The sets.
-    pub sets: Vec<&'static LimitSet>,
-    /// Exposure duration, s.
-    pub duration_s: f64,
-    /// Which sources (all when `None`).
-    pub sources: Option<Vec<String>>,
-    /// Classify into risk groups.
-    pub classify: bool,
-    /// General-lighting assessment distance.
-    pub general_lighting: bool,
-    /// Evaluate the opt-in aphakic hazard.
-    pub aphakic: bool,
-}
-
-/// A housing survey, resolved.
-#[derive(Debug, Clone)]
-pub struct SurveySpec {
-    /// The rack.
-    pub rack: Rack,
-    /// Ceiling luminaires (geometry mode).
-    pub luminaires: Vec<Luminaire>,
-    /// Measured lux readings text and its name (measured mode).
-    pub measurements: Option<(String, String)>,
-    /// Cage transmittance.
-    pub cage_transmittance: f64,
-    /// Shading per shelf above.
-    pub shelf_shading: f64,
-    /// Spectrum of the room light.
-    pub light_spectrum: String,
-    /// Spectrum of the dark-phase leak.
-    pub dark_spectrum: String,
-    /// Uniform dark-phase leak at cage level, lx (if no measured dark readings).
-    pub dark_lux: f64,
-}
-
-fn key_err(origin: &str, key: &str, e: Error) -> Error {
-    e.context(format!("{origin}: key '{key}'"))
-}
-
-/// Parses a scenario file.
-///
-/// # Errors
-/// [`crate::ErrorKind::InvalidData`] or [`crate::ErrorKind::InvalidInput`] naming the file, the
-/// line (for syntax and unknown keys, with the nearest valid key) or the key, and the reason.
-pub fn parse_scenario_file(text: &str, origin: &str, base: Option<&Path>) -> Result<Scenario> {
-    parse_inner(text, origin, base).map_err(|e| with_line(e, text, origin))
-}
-
-/// Puts `origin:LINE` in front of an error that names a key, when the line can be found.
-fn with_line(e: Error, text: &str, origin: &str) -> Error {
-    let msg = e.message();
-    if msg.starts_with(&format!("{origin}:"))
-        && msg[origin.len() + 1..].starts_with(|c: char| c.is_ascii_digit())
-    {
-        return e;
-    }
-    match crate::base::toml_errors::locate(text, msg) {
-        Some(line) => {
-            let rest = msg.strip_prefix(&format!("{origin}: ")).unwrap_or(msg).to_string();
-            Error::new(e.kind(), format!("{origin}:{line}: {rest}"))
-        }
-        None => e,
-    }
-}
-
-fn parse_inner(text: &str, origin: &str, base: Option<&Path>) -> Result<Scenario> {
-    let raw: RawScenario = toml::from_str(text).map_err(|e| Error::data(describe(&e, origin)))?;
-    let species = Species::parse(&raw.subject.species).map_err(|e| key_err(origin, "subject.species", e))?;
-    if let Some(p) = &raw.subject.pigmentation
-        && p != "albino"
-        && p != "pigmented"
-    {
-        return Err(key_err(
-            origin,
-            "subject.pigmentation",
-            Error::input(format!("'{p}' is not albino or pigmented")),
-        ));
-    }
-    let mut ids = Vec::new();
-    for (i, s) in raw.source.iter().enumerate() {
-        let id = s.id.clone().ok_or_else(|| {
-            key_err(origin, &format!("source[{i}].id"), Error::input("every source needs an id"))
-        })?;
-        if ids.contains(&id) {
-            return Err(key_err(
-                origin,
-                &format!("source[{i}].id"),
-                Error::input(format!("'{id}' is used twice")),
-            ));
-        }
-        ids.push(id);
-    }
-    let schedule = match raw.schedule {
-        None => None,
-        Some(s) => {
-            let receptor = s.receptor.unwrap_or_else(|| format!("{}-rod", species.name()));
-            let pigment = find_pigment(&receptor).map_err(|e| key_err(origin, "schedule.receptor", e))?;
-            if pigment.species != species {
-                return Err(key_err(
-                    origin,
-                    "schedule.receptor",
-                    Error::input(format!("{receptor} does not belong to a {}", species.name())),
-                ));
-            }
-            let model = s
-                .model
-                .as_deref()
-                .map(Model::parse)
-                .transpose()
-                .map_err(|e| key_err(origin, "schedule.model", e))?;
-            let mut steps = Vec::new();
-            for (i, st) in s.step.iter().enumerate() {
-                let d = parse_time(&st.duration)
-                    .map_err(|e| key_err(origin, &format!("schedule.step[{i}].duration"), e))?
-                    .si();
-                if d.is_nan() || d <= 0.0 {
-                    return Err(key_err(
-                        origin,
-                        &format!("schedule.step[{i}].duration"),
-                        Error::input("must be above 0 s"),
-                    ));
-                }
-                for on in &st.on {
-                    if !ids.contains(on) {
-                        return Err(key_err(
-                            origin,
-                            &format!("schedule.step[{i}].on"),
-                            Error::input(format!("no source with id '{on}'; sources: {}", ids.join(", "))),
-                        ));
-                    }
-                }
-                steps.push(StepSpec { name: st.name.clone(), duration_s: d, on: st.on.clone() });
-            }
-            if steps.is_empty() {
-                return Err(key_err(
-                    origin,
-                    "schedule.step",
-                    Error::input("a schedule needs at least one step"),
-                ));
-            }
-            Some(ScheduleSpec {
-                pigment,
-                model: model.unwrap_or(Model::RateLimited),
-                steps,
-                repeat: s.repeat.unwrap_or(1),
-            })
-        }
-    };
-    let limits = match raw.limits {
-        None => None,
-        Some(l) => {
-            let sets = l
-                .sets
-                .iter()
-                .map(|s| find_set(s).map_err(|e| key_err(origin, "limits.sets", e)))
-                .collect::<Result<Vec<_>>>()?;
-            let d = parse_time(&l.duration).map_err(|e| key_err(origin, "limits.duration", e))?.si();
-            if let Some(list) = &l.sources
-                && let Some(bad) = list.iter().find(|s| !ids.contains(s))
-            {
-                return Err(key_err(
-                    origin,
-                    "limits.sources",
-                    Error::input(format!("no source with id '{bad}'")),
-                ));
-            }
-            Some(LimitsSpec {
-                sets,
-                duration_s: d,
-                sources: l.sources,
-                classify: l.classify,
-                general_lighting: l.general_lighting,
-                aphakic: l.aphakic,
-            })
-        }
-    };
-    let guidance = match raw.guidance {
-        None => Vec::new(),
-        Some(g) => g
-            .sets
-            .iter()
-            .map(|s| find_guidance(s).map_err(|e| key_err(origin, "guidance.sets", e)))
-            .collect::<Result<Vec<_>>>()?,
-    };
-    let survey = match raw.survey {
-        None => None,
-        Some(s) => {
-            let len = |t: &str, k: &str| {
-                parse_length(t).map(|l| l.si()).map_err(|e| key_err(origin, &format!("survey.{k}"), e))
-            };
-            let num =
-                |t: &str, k: &str| parse_number(t).map_err(|e| key_err(origin, &format!("survey.{k}"), e));
-            let rack = Rack {
-                shelves: s.shelves,
-                columns: s.columns,
-                x0_m: len(&s.first_column_x, "first_column_x")?,
-                column_spacing_m: len(&s.column_spacing, "column_spacing")?,
-                y_m: len(&s.rack_y, "rack_y")?,
-                bottom_m: len(&s.bottom_shelf, "bottom_shelf")?,
-                shelf_spacing_m: len(&s.shelf_spacing, "shelf_spacing")?,
-            };
-            let luminaires = s
-                .luminaire
-                .iter()
-                .enumerate()
-                .map(|(i, l)| {
-                    Ok(Luminaire {
-                        x_m: len(&l.x, &format!("luminaire[{i}].x"))?,
-                        y_m: len(&l.y, &format!("luminaire[{i}].y"))?,
-                        z_m: len(&l.z, &format!("luminaire[{i}].z"))?,
-                        intensity_cd: parse_luminous_intensity(&l.intensity)
-                            .map_err(|e| key_err(origin, &format!("survey.luminaire[{i}].intensity"), e))?
-                            .si(),
-                    })
-                })
-                .collect::<Result<Vec<_>>>()?;
-            let measurements = match &s.measurements {
-                None => None,
-                Some(f) => {
-                    let p = base.map_or_else(|| Path::new(f).to_path_buf(), |b| b.join(f));
-                    let text = std::fs::read_to_string(&p).map_err(|e| {
-                        key_err(
-                            origin,
-                            "survey.measurements",
-                            Error::input(format!("cannot read {}: {e}", p.display())),
-                        )
-                    })?;
-                    Some((text, p.display().to_string()))
-                }
-            };
-            if luminaires.is_empty() == measurements.is_none() {
-                return Err(key_err(
-                    origin,
-                    "survey",
-                    Error::input(
-                        "give either [[survey.luminaire]] tables or a measurements file, not both or neither",
-                    ),
-                ));
-            }
-            let t = num(&s.cage_transmittance, "cage_transmittance")?;
-            let shade =
-                s.shelf_shading.as_deref().map(|x| num(x, "shelf_shading")).transpose()?.unwrap_or(1.0);
-            for (v, k) in [(t, "cage_transmittance"), (shade, "shelf_shading")] {
-                if !(0.0..=1.0).contains(&v) {
-                    return Err(key_err(
-                        origin,
-                        &format!("survey.{k}"),
-                        Error::input(format!("{v} must be between 0 and 1")),
-                    ));
-                }
-            }
-            let dark_lux = match &s.dark_lux {
-                Some(t) => crate::base::units::parse_illuminance(t)
-                    .map_err(|e| key_err(origin, "survey.dark_lux", e))?
-                    .si(),
-                None => 0.0,
-            };
-            Some(SurveySpec {
-                rack,
-                luminaires,
-                measurements,
-                cage_transmittance: t,
-                shelf_shading: shade,
-                light_spectrum: s.light_spectrum.clone(),
-                dark_spectrum: s.dark_spectrum.clone().unwrap_or(s.light_spectrum),
-                dark_lux,
-            })
-        }
-    };
-    Ok(Scenario {
-        name: raw.scenario.name,
-        title: raw.scenario.title,
-        description: raw.scenario.description,
-        subject: raw.subject,
-        sources: raw.source,
-        filters: raw.filter,
-        schedule,
-        limits,
-        guidance,
-        survey,
-        base: base.map(Path::to_path_buf),
-        origin: origin.to_string(),
-        text: text.to_string(),
-    })
-}
-
 /// A cited document used by the assessment.
 #[derive(Debug, Clone, PartialEq)]
 pub struct Provenance {
@@ -523,6 +96,68 @@ pub struct SurveyResult {
     pub mode: String,
 }
 
+/// What is lit in one step of the schedule (one cycle), from the one light path.
+#[derive(Debug, Clone, PartialEq)]
+pub struct StepLight {
+    /// Free-text name.
+    pub name: String,
+    /// Its phase, when given or when the name is a phase.
+    pub phase: Option<Phase>,
+    /// Duration.
+    pub duration: Time,
+    /// Ids of the sources lit.
+    pub on: Vec<String>,
+    /// The pupil used in this step.
+    pub pupil: Pupil,
+    /// Illuminance of the lit sources before the filters (for housing: the room light at cage
+    /// level, the NRC Guide's quantity).
+    pub room_illuminance: Illuminance,
+    /// Illuminance at the eye after every filter.
+    pub illuminance: Illuminance,
+    /// CIE S 026 melanopic EDI at the eye after every filter (people).
+    pub melanopic_edi: Option<Illuminance>,
+    /// Rod R* per rod per second (the sum over the lit sources).
+    pub rod_rate: Option<Frequency>,
+    /// The level the pigment model receives, in its unit (the sum over the lit sources).
+    pub level: f64,
+}
+
+/// Where a guidance comparison was made.
+#[derive(Debug, Clone, PartialEq)]
+pub enum GuidanceBasis {
+    /// One schedule step.
+    Step(String),
+    /// Every cage position of the survey: how many were outside, of how many.
+    Survey {
+        /// Positions outside the rule.
+        outside: usize,
+        /// Positions.
+        positions: usize,
+    },
+}
+
+/// One guidance comparison.
+#[derive(Debug, Clone, PartialEq)]
+pub struct GuidanceRow {
+    /// Step or survey.
+    pub basis: GuidanceBasis,
+    /// The rule's phase.
+    pub phase: Phase,
+    /// The comparison (for a survey, at the position furthest outside, or the brightest).
+    pub flag: Flag,
+}
+
+/// The pupils used, and why.
+#[derive(Debug, Clone, PartialEq)]
+pub struct PupilUse {
+    /// Light-phase (and unphased) steps, the retina section and the limits.
+    pub light: Pupil,
+    /// Dark-phase steps, when the schedule has any.
+    pub dark: Option<Pupil>,
+    /// How the dark-phase rule was chosen.
+    pub dark_basis: DarkPupilBasis,
+}
+
 /// The one assessment structure.
 #[derive(Debug, Clone)]
 pub struct Assessment {
@@ -532,20 +167,26 @@ pub struct Assessment {
     pub title: String,
     /// Description.
     pub description: Option<String>,
+    /// Species of the subject.
+    pub species: Species,
     /// Cautions (always shown first).
     pub cautions: Vec<String>,
     /// Documents used.
     pub provenance: Vec<Provenance>,
-    /// What the eye receives from each source.
+    /// The pupils used.
+    pub pupils: Option<PupilUse>,
+    /// What the eye receives from each source (light-phase pupil).
     pub retina: Option<RetinaReport>,
-    /// Corneal spectral irradiance of each source (for plots), by id.
+    /// Corneal spectral irradiance of each source after every filter (for plots), by id.
     pub spectra: Vec<(String, Spectrum)>,
+    /// What is lit in each step of one cycle.
+    pub steps: Vec<StepLight>,
     /// Pigment over the schedule.
     pub bleach: Option<BleachReport>,
     /// Limit checks, per source id and set.
     pub limits: Vec<(String, LimitsAssessment)>,
-    /// Guidance flags per schedule phase.
-    pub guidance: Vec<(String, Flag)>,
+    /// Guidance comparisons.
+    pub guidance: Vec<GuidanceRow>,
     /// Evidence to show beside the guidance.
     pub evidence: Vec<Evidence>,
     /// Housing survey.
@@ -558,189 +199,106 @@ pub struct Assessment {
     pub flag_raised: bool,
 }
 
-/// Assesses a scenario.
+/// Assesses a resolved scenario.
 ///
 /// # Errors
-/// Any error of the chain it runs, naming the source or key.
+/// Any error of the chain it runs, naming the scenario file.
 pub fn assess(s: &Scenario) -> Result<Assessment> {
-    assess_inner(s).map_err(|e| {
-        let e = if e.message().starts_with(&s.origin) { e } else { e.context(&s.origin) };
-        with_line(e, &s.text, &s.origin)
-    })
+    assess_inner(s).map_err(|e| e.in_file(&s.origin, None))
+}
+
+/// The light path of each phase: one retina assessment per pupil rule in use.
+struct Paths {
+    light: Option<RetinaReport>,
+    dark: Option<RetinaReport>,
+}
+
+impl Paths {
+    fn of(s: &Scenario) -> Result<Paths> {
+        if s.view.sources.is_empty() {
+            return Ok(Paths { light: None, dark: None });
+        }
+        let light = assess_retina(&s.view)?;
+        let needs_dark = s
+            .schedule
+            .as_ref()
+            .is_some_and(|sc| sc.steps.iter().any(|st| st.phase.is_some_and(Phase::is_dark)));
+        let dark = if needs_dark && s.dark_pupil != s.view.pupil {
+            Some(assess_retina(&s.view_for(Some(Phase::Dark)))?)
+        } else {
+            None
+        };
+        Ok(Paths { light: Some(light), dark })
+    }
+
+    fn for_phase(&self, phase: Option<Phase>) -> Option<&RetinaReport> {
+        match (&self.dark, phase) {
+            (Some(d), Some(p)) if p.is_dark() => Some(d),
+            _ => self.light.as_ref(),
+        }
+    }
 }
 
 fn assess_inner(s: &Scenario) -> Result<Assessment> {
-    let base = s.base.as_deref();
+    let paths = Paths::of(s)?;
     let mut provenance = Vec::new();
     let mut not_assessed = Vec::new();
-    let label = |src: &SourceSpec| src.id.clone().unwrap_or_else(|| src.spectrum.clone());
-    let retina = if s.sources.is_empty() {
-        None
-    } else {
-        let sc = build(&s.subject, &s.sources, &s.filters, base)?;
-        Some(assess_retina(&sc)?)
+    let steps = match (&s.schedule, &paths.light) {
+        (Some(sc), Some(_)) => {
+            sc.steps.iter().map(|st| step_light(s, &paths, sc, st)).collect::<Result<Vec<_>>>()?
+        }
+        (Some(sc), None) => sc.steps.iter().map(|st| dark_step(s, sc, st)).collect::<Result<Vec<_>>>()?,
+        _ => Vec::new(),
     };
-    let spectra = s
-        .sources
-        .iter()
-        .map(|src| {
-            let p = place(src, base)?;
-            Ok((label(src), crate::cornea::geometry::corneal(&p.spectrum, &p.geometry)?.irradiance))
-        })
-        .collect::<Result<Vec<_>>>()?;
-    let mut bleach = None;
-    let mut guidance = Vec::new();
-    if let Some(ScheduleSpec { pigment, model, steps, repeat }) = &s.schedule {
-        let mut levels = Vec::new();
-        for src in &s.sources {
-            levels.push((label(src), level_of_source(pigment, &s.subject, src, base)?));
+    let bleach = match &s.schedule {
+        Some(sc) => {
+            provenance.push(pigment_provenance(&sc.pigment));
+            Some(run_bleach(sc, &steps)?)
         }
-        let mut schedule = Schedule::default();
-        for st in steps {
-            let level: f64 =
-                st.on.iter().map(|id| levels.iter().find(|(i, _)| i == id).map_or(0.0, |l| l.1)).sum();
-            schedule.push(&st.name, st.duration_s, pigment.rate_of_level(level))?;
-        }
-        schedule.repeat(*repeat)?;
-        bleach = Some(bleach_assess(pigment, *model, &schedule, 0.0, Some(240))?);
-        provenance.push(Provenance {
-            role: format!("pigment kinetics ({})", pigment.id),
-            document: "src/data/pigments.toml (Rushton 1961; Lamb & Pugh 2004; Cameron, Mahroo & Lamb 2006; others per value)".into(),
-            edition: "as listed per parameter".into(),
-            status: if pigment.from_memory().is_empty() { "confirmed or derived".into() } else { format!("from memory: {}", pigment.from_memory().join(", ")) },
-        });
-        // Guidance per phase: the corneal illuminance (and melanopic EDI) of the sources on.
-        let albino = s.subject.pigmentation.as_deref() == Some("albino");
-        for g in &s.guidance {
-            for r in &g.rule {
-                let applies = match r.applies_to.as_str() {
-                    "albino" => albino,
-                    "human" => pigment.species == Species::Human,
-                    _ => true,
-                };
-                let Some(StepSpec { name, on, .. }) = steps.iter().find(|st| st.name == r.phase) else {
-                    continue;
-                };
-                if !applies {
-                    continue;
-                }
-                let mut v = 0.0;
-                for id in on {
-                    if let Some((_, spec)) = spectra.iter().find(|(i, _)| i == id) {
-                        v += match r.quantity.as_str() {
-                            "melanopic-edi" => crate::weighting::alpha_opic::alpha_opic(spec)
-                                .iter()
-                                .find(|a| a.name == "melanopic")
-                                .and_then(|a| a.edi)
-                                .map_or(0.0, |e| e.si_value()),
-                            _ => crate::spectrum::photometry::photopic(spec).raw,
-                        };
-                    }
-                }
-                guidance.push((name.clone(), r.check(&g.id, v)));
-            }
-        }
-    } else if !s.guidance.is_empty() && s.survey.is_none() {
-        not_assessed.push("guidance: no schedule, so no light or dark phase to compare".to_string());
-    }
-    for g in &s.guidance {
-        provenance.push(Provenance {
-            role: format!("guidance ({})", g.refers_to),
-            document: g.document.clone(),
-            edition: g.edition.clone(),
-            status: g.rule.iter().map(|r| format!("{}: {}", r.id, r.status)).collect::<Vec<_>>().join("; "),
-        });
-    }
-    let mut limits = Vec::new();
-    if let Some(LimitsSpec {
-        sets,
-        duration_s: d,
-        sources: only,
-        classify,
-        general_lighting: general,
-        aphakic,
-    }) = &s.limits
-    {
-        if s.subject.species != "human" {
-            not_assessed.push(
-                "exposure limits: the limits are for humans; they are evaluated for the light as placed, not for the animals"
-                    .to_string(),
-            );
-        }
-        for set in sets {
-            provenance.push(Provenance {
-                role: "exposure limits".into(),
-                document: set.document.clone(),
-                edition: format!("{}; errata: {}", set.edition, set.errata),
-                status: set
-                    .status_counts()
-                    .iter()
-                    .map(|(k, n)| format!("{n} {k}"))
-                    .collect::<Vec<_>>()
-                    .join(", "),
-            });
-            for src in s.sources.iter().filter(|x| only.as_ref().is_none_or(|o| o.contains(&label(x)))) {
-                let placed = place(src, base)?;
-                let filters = s
-                    .filters
-                    .iter()
-                    .map(|f| match (&f.transmittance, &f.file) {
-                        (Some(t), _) => crate::cornea::filter::Filter::parse(t),
-                        (_, Some(p)) => crate::cornea::filter::Filter::parse(
-                            &base.map_or_else(|| p.clone(), |b| b.join(p).display().to_string()),
-                        ),
-                        _ => Err(Error::input("a filter needs transmittance or file")),
-                    })
-                    .collect::<Result<Vec<_>>>()?;
-                let r = assess_limits(&LimitsRequest {
-                    source: &placed,
-                    filters: &filters,
-                    set,
-                    duration: crate::base::quantity::Time::from_si(*d),
-                    aphakic: *aphakic,
-                    classify: classify.then_some(*general),
-                    only: &[],
-                })?;
-                for h in &r.hazards {
-                    if let crate::limits::Verdict::NotAssessed(why) = &h.verdict {
-                        not_assessed.push(format!("{} / {} / {}: {why}", label(src), set.id, h.name));
-                    }
-                }
-                limits.push((label(src), r));
-            }
-        }
-    }
-    let survey = match &s.survey {
         None => None,
-        Some(sv) => Some(run_housing_survey(s, sv)?),
     };
-    let evidence: Vec<Evidence> = s.guidance.iter().flat_map(|g| g.evidence.clone()).collect();
-    let limit_exceeded =
-        limits.iter().any(|(_, l)| l.hazards.iter().any(|h| h.verdict == crate::limits::Verdict::Exceeds));
-    let flag_raised =
-        guidance.iter().any(|(_, f)| f.raised) || survey.as_ref().is_some_and(|sv| sv.flagged > 0);
-    if let Some(r) = &retina {
-        for src in &r.sources {
-            if src.retinal.is_none() {
-                not_assessed.push(format!(
-                    "{}: retinal quantities (the radiance the eye sees is not known)",
-                    src.label
-                ));
-            }
+    let survey = s.survey.as_ref().map(|sv| run_housing_survey(s, sv)).transpose()?;
+    let guidance = guidance_rows(s, &steps, survey.as_ref(), &mut not_assessed);
+    for g in &s.guidance {
+        provenance.push(guidance_provenance(g));
+    }
+    let limits = match &s.limits {
+        Some(l) => run_limits(s, l, &mut provenance, &mut not_assessed)?,
+        None => Vec::new(),
+    };
+    if let Some(r) = &paths.light {
+        for src in r.sources.iter().filter(|x| x.retinal.is_none()) {
+            not_assessed
+                .push(format!("{}: retinal quantities (the radiance the eye sees is not known)", src.label));
         }
     }
+    let limit_exceeded = limits.iter().any(|(_, l)| l.hazards.iter().any(|h| h.verdict == Verdict::Exceeds));
+    let flag_raised =
+        guidance.iter().any(|g| g.flag.raised) || survey.as_ref().is_some_and(|sv| sv.flagged > 0);
     Ok(Assessment {
         name: s.name.clone(),
         title: s.title.clone(),
         description: s.description.clone(),
+        species: s.species,
         cautions: CAUTIONS.iter().map(|c| c.to_string()).collect(),
         provenance,
-        retina,
-        spectra,
+        pupils: paths.light.as_ref().map(|l| PupilUse {
+            light: l.pupil.clone(),
+            dark: paths.dark.as_ref().map_or_else(
+                || steps.iter().any(|st| st.phase.is_some_and(Phase::is_dark)).then(|| l.pupil.clone()),
+                |d| Some(d.pupil.clone()),
+            ),
+            dark_basis: s.dark_pupil_basis,
+        }),
+        spectra: paths.light.as_ref().map_or_else(Vec::new, |r| {
+            s.source_ids.iter().cloned().zip(r.sources.iter().map(|x| x.corneal_irradiance.clone())).collect()
+        }),
+        retina: paths.light,
+        steps,
         bleach,
         limits,
         guidance,
-        evidence,
+        evidence: s.guidance.iter().flat_map(|g| g.evidence.clone()).collect(),
         survey,
         not_assessed,
         limit_exceeded,
@@ -748,18 +306,260 @@ fn assess_inner(s: &Scenario) -> Result<Assessment> {
     })
 }
 
-/// Runs the housing survey of a scenario.
+/// What is lit in one step: sums over the lit sources of the light path of the step's phase.
+fn step_light(s: &Scenario, paths: &Paths, sc: &ScheduleSpec, st: &Step) -> Result<StepLight> {
+    let report = paths.for_phase(st.phase).ok_or_else(|| Error::input("no sources"))?;
+    let lit: Vec<&SourceAtEye> = st.on.iter().map(|&i| &report.sources[i]).collect();
+    let mut level = 0.0;
+    for (src, &i) in lit.iter().zip(&st.on) {
+        level += src.level(sc.pigment.level_unit).ok_or_else(|| {
+            Error::input(format!(
+                "source '{}' is lit in step '{}' but the radiance the eye sees is not known; give full_field, \
+                 subtense, or size and distance",
+                s.source_ids[i], st.name
+            ))
+        })?;
+    }
+    let at_eye: Vec<Spectrum> = lit.iter().map(|x| x.corneal_irradiance.clone()).collect();
+    let room: Vec<Spectrum> = st
+        .on
+        .iter()
+        .map(|&i| at_cornea(&s.view.sources[i], &[]).map(|c| c.irradiance))
+        .collect::<Result<_>>()?;
+    let sum_lux = |list: &[Spectrum]| -> Result<f64> {
+        if list.is_empty() { Ok(0.0) } else { Ok(photopic(&Spectrum::sum(list)?).raw) }
+    };
+    let melanopic = if s.species == Species::Human && !at_eye.is_empty() {
+        alpha_opic(&Spectrum::sum(&at_eye)?)
+            .iter()
+            .find(|a| a.name == "melanopic")
+            .and_then(|a| a.edi)
+            .map(|e| e.si_value())
+    } else if s.species == Species::Human {
+        Some(0.0)
+    } else {
+        None
+    };
+    let rod: Option<f64> = lit.iter().map(|x| x.level(LevelUnit::IsomerisationsPerSecond)).sum();
+    Ok(StepLight {
+        name: st.name.clone(),
+        phase: st.phase,
+        duration: st.duration,
+        on: st.on.iter().map(|&i| s.source_ids[i].clone()).collect(),
+        pupil: report.pupil.clone(),
+        room_illuminance: Illuminance::new::<lux>(sum_lux(&room)?),
+        illuminance: Illuminance::new::<lux>(sum_lux(&at_eye)?),
+        melanopic_edi: melanopic.map(Illuminance::new::<lux>),
+        rod_rate: rod.map(Frequency::new::<hertz>),
+        level,
+    })
+}
+
+/// A step of a scenario without sources: darkness.
+fn dark_step(s: &Scenario, _sc: &ScheduleSpec, st: &Step) -> Result<StepLight> {
+    let pupil = crate::retina::pupil::choose(
+        &s.view.eye,
+        if st.phase.is_some_and(Phase::is_dark) { s.dark_pupil } else { s.view.pupil },
+        &crate::retina::pupil::Adaptation {
+            luminance: None,
+            field: None,
+            age: s.view.age,
+            eyes: s.view.eyes,
+        },
+    )?;
+    Ok(StepLight {
+        name: st.name.clone(),
+        phase: st.phase,
+        duration: st.duration,
+        on: Vec::new(),
+        pupil,
+        room_illuminance: Illuminance::new::<lux>(0.0),
+        illuminance: Illuminance::new::<lux>(0.0),
+        melanopic_edi: (s.species == Species::Human).then(|| Illuminance::new::<lux>(0.0)),
+        rod_rate: Some(Frequency::new::<hertz>(0.0)),
+        level: 0.0,
+    })
+}
+
+fn run_bleach(sc: &ScheduleSpec, steps: &[StepLight]) -> Result<BleachReport> {
+    let mut schedule = Schedule::default();
+    for st in steps {
+        schedule.push(&st.name, st.duration.si(), sc.pigment.rate_of_level(st.level))?;
+    }
+    schedule.repeat(sc.repeat)?;
+    bleach_assess(&sc.pigment, sc.model, &schedule, 0.0, Some(240))
+}
+
+fn pigment_provenance(pigment: &Pigment) -> Provenance {
+    Provenance {
+        role: format!("pigment kinetics ({})", pigment.id),
+        document: "src/data/pigments.toml (Rushton 1961; Lamb & Pugh 2004; Cameron, Mahroo & Lamb 2006; others per value)".into(),
+        edition: "as listed per parameter".into(),
+        status: if pigment.from_memory().is_empty() {
+            "confirmed or derived".into()
+        } else {
+            format!("from memory: {}", pigment.from_memory().join(", "))
+        },
+    }
+}
+
+fn guidance_provenance(g: &GuidanceSet) -> Provenance {
+    Provenance {
+        role: format!("guidance ({})", g.refers_to),
+        document: g.document.clone(),
+        edition: g.edition.clone(),
+        status: g.rule.iter().map(|r| format!("{}: {}", r.id, r.status)).collect::<Vec<_>>().join("; "),
+    }
+}
+
+fn applies(rule: &Rule, s: &Scenario) -> bool {
+    match rule.applies_to {
+        AppliesTo::Human => s.species == Species::Human,
+        AppliesTo::All => s.species != Species::Human,
+        AppliesTo::Albino => s.species != Species::Human && s.pigmentation == Some(Pigmentation::Albino),
+    }
+}
+
+/// The value a rule compares in a step: housing rules take the room light before the filters
+/// (the Guide's "room at cage level"), people's rules the light at the eye after them.
+fn step_value(rule: &Rule, st: &StepLight) -> f64 {
+    match (rule.quantity, rule.applies_to) {
+        (GuidanceQuantity::MelanopicEdi, _) => st.melanopic_edi.map_or(0.0, |e| e.get::<lux>()),
+        (GuidanceQuantity::Illuminance, AppliesTo::Human) => st.illuminance.get::<lux>(),
+        (GuidanceQuantity::Illuminance, _) => st.room_illuminance.get::<lux>(),
+    }
+}
+
+/// Every step is compared with the rules of its phase; with a survey, housing illuminance rules
+/// are compared at every cage position instead of at the scenario's nominal sources, so the
+/// table and the survey agree. A rule whose phase no step has is reported as not assessed.
+fn guidance_rows(
+    s: &Scenario,
+    steps: &[StepLight],
+    survey: Option<&SurveyResult>,
+    not_assessed: &mut Vec<String>,
+) -> Vec<GuidanceRow> {
+    let mut rows = Vec::new();
+    for g in &s.guidance {
+        for r in g.rule.iter().filter(|r| applies(r, s)) {
+            let housing = r.quantity == GuidanceQuantity::Illuminance && r.applies_to != AppliesTo::Human;
+            if let (true, Some(sv)) = (housing, survey) {
+                rows.push(survey_row(g, r, sv));
+                if r.phase == Phase::Light {
+                    continue;
+                }
+            }
+            let matching: Vec<&StepLight> = steps.iter().filter(|st| st.phase == Some(r.phase)).collect();
+            for st in &matching {
+                rows.push(GuidanceRow {
+                    basis: GuidanceBasis::Step(st.name.clone()),
+                    phase: r.phase,
+                    flag: r.check(&g.id, step_value(r, st)),
+                });
+            }
+            if matching.is_empty() && !(housing && survey.is_some()) {
+                not_assessed.push(format!(
+                    "guidance {} / {}: no schedule step has phase = \"{}\"; give each step a phase",
+                    g.id,
+                    r.id,
+                    r.phase.name()
+                ));
+            }
+        }
+    }
+    let unphased: Vec<&str> =
+        steps.iter().filter(|st| st.phase.is_none()).map(|st| st.name.as_str()).collect();
+    if !s.guidance.is_empty() && !unphased.is_empty() {
+        not_assessed.push(format!(
+            "guidance: steps without a phase are not compared with any rule: {}",
+            unphased.join(", ")
+        ));
+    }
+    if !s.guidance.is_empty() && s.schedule.is_none() && survey.is_none() {
+        not_assessed.push("guidance: no schedule, so no phase to compare".to_string());
+    }
+    rows
+}
+
+fn survey_row(g: &GuidanceSet, r: &Rule, sv: &SurveyResult) -> GuidanceRow {
+    let value = |p: &PositionResult| if r.phase.is_dark() { p.dark_room_lux } else { p.room_lux };
+    let outside = sv.positions.iter().filter(|p| r.check(&g.id, value(p)).raised).count();
+    let worst = sv
+        .positions
+        .iter()
+        .map(value)
+        .fold(None, |w: Option<f64>, v| match (w, r.min_lx.is_some() && r.max_lx.is_none()) {
+            (None, _) => Some(v),
+            (Some(w), true) => Some(w.min(v)),
+            (Some(w), false) => Some(w.max(v)),
+        })
+        .unwrap_or(0.0);
+    GuidanceRow {
+        basis: GuidanceBasis::Survey { outside, positions: sv.positions.len() },
+        phase: r.phase,
+        flag: r.check(&g.id, worst),
+    }
+}
+
+fn run_limits(
+    s: &Scenario,
+    l: &LimitsSpec,
+    provenance: &mut Vec<Provenance>,
+    not_assessed: &mut Vec<String>,
+) -> Result<Vec<(String, LimitsAssessment)>> {
+    if s.species != Species::Human {
+        not_assessed.push(
+            "exposure limits: the limits are for humans; they are evaluated for the light as placed, not for the animals"
+                .to_string(),
+        );
+    }
+    let mut out = Vec::new();
+    for set in &l.sets {
+        provenance.push(Provenance {
+            role: "exposure limits".into(),
+            document: set.document.clone(),
+            edition: format!("{}; errata: {}", set.edition, set.errata),
+            status: set
+                .status_counts()
+                .iter()
+                .map(|(k, n)| format!("{n} {k}"))
+                .collect::<Vec<_>>()
+                .join(", "),
+        });
+        for &i in &l.sources {
+            let id = &s.source_ids[i];
+            let r = assess_limits(&LimitsRequest {
+                source: &s.view.sources[i],
+                filters: &s.view.filters,
+                set,
+                duration: l.duration,
+                aphakic: l.aphakic,
+                classify: l.classify.then_some(l.general_lighting),
+                only: &[],
+            })?;
+            for h in &r.hazards {
+                if let Verdict::NotAssessed(why) = &h.verdict {
+                    not_assessed.push(format!("{id} / {} / {}: {why}", set.id, h.name));
+                }
+            }
+            out.push((id.clone(), r));
+        }
+    }
+    Ok(out)
+}
+
+/// Runs the housing survey of a scenario: per-lux factors through the same light path as the
+/// sources (the subject's eye, the cage wall as a filter, the pupil of each phase).
 ///
 /// # Errors
 /// As the survey and the retina chain.
 pub fn run_housing_survey(s: &Scenario, sv: &SurveySpec) -> Result<SurveyResult> {
-    let species = Species::parse(&s.subject.species)?;
-    if species == Species::Human {
-        return Err(Error::input("a housing survey needs a rodent subject (mouse or rat)"));
+    if s.species == Species::Human {
+        return Err(Error::input("a housing survey needs a rodent subject (mouse or rat)").key("survey"));
     }
     let pigment = match &s.schedule {
         Some(sch) => sch.pigment.clone(),
-        None => find_pigment(&format!("{}-rod", species.name()))?,
+        None => find_pigment(&format!("{}-rod", s.species.name()))?,
     };
     let model = s.schedule.as_ref().map_or(Model::RateLimited, |x| x.model);
     let positions = sv.rack.positions()?;
@@ -779,10 +579,9 @@ pub fn run_housing_survey(s: &Scenario, sv: &SurveySpec) -> Result<SurveyResult>
         ),
     };
     let dark_room_lux = dark_measured.unwrap_or_else(|| vec![sv.dark_lux; positions.len()]);
-    let light = per_lux(&pigment, &s.subject, &sv.light_spectrum)?;
-    let mut dark_subject = s.subject.clone();
-    dark_subject.pupil = Some("dark".to_string());
-    let dark = per_lux(&pigment, &dark_subject, &sv.dark_spectrum)?;
+    let wall = Filter::flat(sv.cage_transmittance, "cage wall (survey)")?;
+    let light = per_lux(&s.view, &sv.light_spectrum, &wall, s.view.pupil)?;
+    let dark = per_lux(&s.view, &sv.dark_spectrum, &wall, s.dark_pupil)?;
     let guidance: Vec<&GuidanceSet> = s.guidance.to_vec();
     let results = run_survey(&SurveyInput {
         positions,
@@ -793,7 +592,7 @@ pub fn run_housing_survey(s: &Scenario, sv: &SurveySpec) -> Result<SurveyResult>
         dark,
         pigment: &pigment,
         model,
-        albino: s.subject.pigmentation.as_deref() == Some("albino"),
+        albino: s.pigmentation == Some(Pigmentation::Albino),
         guidance: &guidance,
     })?;
     let max = results.iter().map(|r| r.room_lux).fold(0.0, f64::max);

@@ -200,11 +200,13 @@ fn assess_cmd(a: AssessArgs) -> Result<Output> {
 
 const BLEACH_EXAMPLES: &str = "\
 Receptors: human-rod (levels in scot td), human-cone (phot td), mouse-rod, rat-rod (R*/rod/s).
+Trolands must say which: \"20000 scot td\" (scotopic, rods) or \"20000 phot td\" (photopic, cones).
 The default model is rate-limited; --model rushton gives first-order kinetics.
 
 Examples:
-  retidose bleach --receptor human-rod --retinal \"20000 td\" --for \"30 s\"
-  retidose bleach --receptor human-rod --retinal \"1e6 td\" --for \"60 s\" --then-dark \"40 min\" --time-course bleach.csv
+  retidose bleach --receptor human-rod --retinal \"20000 scot td\" --for \"30 s\"
+  retidose bleach --receptor human-cone --retinal \"20000 phot td\" --for \"30 s\"
+  retidose bleach --receptor human-rod --retinal \"1e6 scot td\" --for \"60 s\" --then-dark \"40 min\" --time-course bleach.csv
   retidose bleach --receptor mouse-rod --rate \"2e5 R*/rod/s\" --for \"12 h\" --then-dark \"12 h\" --repeat 7
   retidose bleach --receptor human-rod --solve level --target 0.5 --for \"60 s\"
   retidose bleach --receptor human-rod --flash 100
@@ -221,7 +223,7 @@ struct BleachArgs {
     /// rate-limited (default) or rushton
     #[arg(long, value_name = "MODEL")]
     model: Option<String>,
-    /// Retinal illuminance of the light step, e.g. "20000 td" (human receptors)
+    /// Retinal illuminance of the light step, saying which trolands: "20000 scot td" (human-rod) or "20000 phot td" (human-cone)
     #[arg(long, value_name = "TROLANDS", conflicts_with = "rate")]
     retinal: Option<String>,
     /// Photoisomerisation rate of the light step, e.g. "1e4 R*/rod/s" (rodent rods)
@@ -746,6 +748,7 @@ fn retina(a: RetinaArgs) -> Result<String> {
                 adapting_luminance: a.adapting_luminance.clone(),
                 albino_iris: a.albino_iris,
                 eye_file: a.eye_file.clone(),
+                dark_pupil: None,
                 pigmentation: None,
             };
             let filters = a.place.filter_specs();

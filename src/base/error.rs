@@ -21,17 +21,31 @@ pub enum ErrorKind {
     Io,
 }
 
-/// An error with a kind and a complete, human-readable message.
+/// Where in an input an error was found: the file, the key path inside it (`source[1].distance`)
+/// and the line, when known. Held as fields, so no caller has to search a message for them.
+#[derive(Debug, Clone, Default, PartialEq, Eq)]
+pub struct Location {
+    /// The file (or demo name) the input came from.
+    pub file: Option<String>,
+    /// The key path inside the file, tables and array entries separated by `.` and `[i]`.
+    pub key: Option<String>,
+    /// The 1-based line of that key, from the TOML parser's spans.
+    pub line: Option<usize>,
+}
+
+/// An error with a kind, a complete, human-readable message and, for input files, where it
+/// was found.
 #[derive(Debug, Clone, PartialEq, Eq)]
 pub struct Error {
     kind: ErrorKind,
     message: String,
+    location: Option<Box<Location>>,
 }
 
 impl Error {
     /// Builds an error of the given kind.
     pub fn new(kind: ErrorKind, message: impl Into<String>) -> Self {
-        Error { kind, message: message.into() }
+        Error { kind, message: message.into(), location: None }
     }
 
     /// Shorthand for [`ErrorKind::InvalidData`].
@@ -62,12 +76,55 @@ impl Error {
     /// Prefixes the message with a location or context, e.g. a file name.
     #[must_use]
     pub fn context(self, prefix: impl fmt::Display) -> Self {
-        Error { kind: self.kind, message: format!("{prefix}: {}", self.message) }
+        Error { message: format!("{prefix}: {}", self.message), ..self }
+    }
+
+    /// Where the error was found, when known.
+    pub fn location(&self) -> Option<&Location> {
+        self.location.as_deref()
+    }
+
+    /// Records that the error concerns `key`, inside any key recorded before (so an outer
+    /// table's name goes first: `.key("distance").key("source[1]")` is `source[1].distance`).
+    #[must_use]
+    pub fn key(mut self, key: &str) -> Self {
+        let loc = self.location.get_or_insert_with(Box::default);
+        loc.key = Some(match loc.key.take() {
+            Some(inner) if inner.starts_with('[') => format!("{key}{inner}"),
+            Some(inner) => format!("{key}.{inner}"),
+            None => key.to_string(),
+        });
+        self
+    }
+
+    /// Records the file the error was found in and, from the file's `text`, the line of the
+    /// recorded key (or of its nearest enclosing table). Keeps a file recorded before.
+    #[must_use]
+    pub fn in_file(mut self, file: &str, text: Option<&str>) -> Self {
+        let loc = self.location.get_or_insert_with(Box::default);
+        if loc.file.is_some() {
+            return self;
+        }
+        loc.file = Some(file.to_string());
+        if let (Some(text), Some(key), None) = (text, loc.key.as_deref(), loc.line) {
+            loc.line = crate::base::toml_errors::line_of_key(text, key);
+        }
+        self
     }
 }
 
 impl fmt::Display for Error {
     fn fmt(&self, f: &mut fmt::Formatter<'_>) -> fmt::Result {
+        if let Some(loc) = &self.location {
+            match (&loc.file, loc.line) {
+                (Some(file), Some(line)) => write!(f, "{file}:{line}: ")?,
+                (Some(file), None) => write!(f, "{file}: ")?,
+                _ => {}
+            }
+            if let Some(key) = &loc.key {
+                write!(f, "key '{key}': ")?;
+            }
+        }
         f.write_str(&self.message)
     }
 }

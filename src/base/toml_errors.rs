@@ -37,60 +37,40 @@ pub fn describe(e: &toml::de::Error, origin: &str) -> String {
     msg
 }
 
-/// Best-effort line number (1-based) of the key named in an error `message` about the TOML
-/// `text`: the last `key '…'` in the message, looked up inside the table the message points to
-/// (`source N`, `filter N`, `schedule.step[i]`, `survey.luminaire[i]`, or the key path's first
-/// table), else anywhere if it occurs once.
-pub fn locate(text: &str, message: &str) -> Option<usize> {
-    let key = message.rsplit("key '").next().filter(|_| message.contains("key '"))?.split('\'').next()?;
-    let leaf = key.rsplit('.').next()?.split('[').next()?.to_string();
-    let lines: Vec<&str> = text.lines().collect();
-    let is_key_line = |l: &str| {
-        let t = l.trim_start();
-        t.strip_prefix(leaf.as_str()).is_some_and(|rest| rest.trim_start().starts_with('='))
-    };
-    // Which table block: (header, index).
-    let numbered = |word: &str| -> Option<usize> {
-        message
-            .split(&format!("{word} "))
-            .nth(1)?
-            .split(|c: char| !c.is_ascii_digit())
-            .next()?
-            .parse::<usize>()
-            .ok()
-    };
-    let indexed = |path: &str| -> Option<usize> {
-        key.strip_prefix(path)?.strip_prefix('[')?.split(']').next()?.parse::<usize>().ok().map(|i| i + 1)
-    };
-    let block = if let Some(n) = numbered("source") {
-        Some(("[[source]]", n))
-    } else if let Some(n) = numbered("filter") {
-        Some(("[[filter]]", n))
-    } else if let Some(n) = indexed("schedule.step") {
-        Some(("[[schedule.step]]", n))
-    } else if let Some(n) = indexed("survey.luminaire") {
-        Some(("[[survey.luminaire]]", n))
-    } else if key.contains('.') {
-        key.split('.').next().map(|t| (t, 1))
-    } else {
-        None
-    };
-    if let Some((header, n)) = block {
-        let want = if header.starts_with('[') { header.to_string() } else { format!("[{header}]") };
-        let start = lines.iter().enumerate().filter(|(_, l)| l.trim() == want).nth(n - 1).map(|(i, _)| i)?;
-        for (i, l) in lines.iter().enumerate().skip(start + 1) {
-            if l.trim_start().starts_with('[') {
-                break;
+/// The 1-based line of the key at `path` (`survey.luminaire[1].intensity`) in the TOML `text`,
+/// found by walking the parsed document and reading the key's span. When the full path is not
+/// in the document (a key that is missing), the line of the deepest enclosing key that is.
+pub fn line_of_key(text: &str, path: &str) -> Option<usize> {
+    use toml::de::{DeTable, DeValue};
+    let doc = DeTable::parse(text).ok()?;
+    let mut table = doc.get_ref();
+    let mut found: Option<usize> = None;
+    let segments: Vec<&str> = path.split('.').collect();
+    for (n, seg) in segments.iter().enumerate() {
+        let (name, index) = match seg.split_once('[') {
+            Some((k, rest)) => (k, rest.trim_end_matches(']').parse::<usize>().ok()),
+            None => (*seg, None),
+        };
+        let Some((key, value)) = table.iter().find(|(k, _)| k.get_ref().as_ref() == name) else {
+            break;
+        };
+        found = Some(key.span().start);
+        let value = match (value.get_ref(), index) {
+            (DeValue::Array(items), Some(i)) => {
+                let Some(item) = items.get(i) else {
+                    break;
+                };
+                found = Some(item.span().start);
+                item.get_ref()
             }
-            if is_key_line(l) {
-                return Some(i + 1);
-            }
+            (v, _) => v,
+        };
+        match value {
+            DeValue::Table(inner) if n + 1 < segments.len() => table = inner,
+            _ => break,
         }
-        return Some(start + 1);
     }
-    let hits: Vec<usize> =
-        lines.iter().enumerate().filter(|(_, l)| is_key_line(l)).map(|(i, _)| i + 1).collect();
-    (hits.len() == 1).then(|| hits[0])
+    found.map(|offset| text[..offset.min(text.len())].matches('\n').count() + 1)
 }
 
 #[cfg(test)]
@@ -108,9 +88,14 @@ mod tests {
     #[test]
     fn locates_keys_inside_their_table() {
         let text = "[subject]\nspecies = \"human\"\n[[source]]\nid = \"a\"\ndistance = \"1 m\"\n[[source]]\nid = \"b\"\ndistance = \"2\"\n";
-        assert_eq!(locate(text, "x.toml: source 2: key 'distance': no unit"), Some(8));
-        assert_eq!(locate(text, "x.toml: key 'subject.species': bad"), Some(2));
-        assert_eq!(locate(text, "no key here"), None);
+        assert_eq!(line_of_key(text, "source[1].distance"), Some(8));
+        assert_eq!(line_of_key(text, "source[0].distance"), Some(5));
+        assert_eq!(line_of_key(text, "subject.species"), Some(2));
+        // A missing key: the line of its table.
+        assert_eq!(line_of_key(text, "subject.pupil"), Some(1));
+        assert_eq!(line_of_key(text, "nothing"), None);
+        let inline = "[[step]]\nsource = { spectrum = \"x\", distance = \"1\" }\n";
+        assert_eq!(line_of_key(inline, "step[0].source.distance"), Some(2));
     }
 
     #[test]

@@ -236,8 +236,104 @@ pub fn tidy(v: f64) -> String {
     format!("{}", (v * scale).round() / scale)
 }
 
-/// Parses a retinal illuminance in trolands, `"20000 td"` (the receptor decides whether
-/// photopic or scotopic trolands are meant; `scot td` and `phot td` are accepted as spellings).
+/// Which troland a retinal illuminance is counted in (CIE e-ILV 17-22-038: luminance × pupil
+/// area). The two differ by the spectral weighting of the luminance, so the same light gives
+/// different numbers: a level must say which it is.
+#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+pub enum TrolandKind {
+    /// Photopic trolands, `phot td`: photopic luminance (V(λ)) × pupil area; for cones.
+    Photopic,
+    /// Scotopic trolands, `scot td`: scotopic luminance (V′(λ)) × pupil area; for rods.
+    Scotopic,
+}
+
+impl TrolandKind {
+    /// The unit symbol, `"phot td"` or `"scot td"`.
+    pub fn symbol(self) -> &'static str {
+        match self {
+            TrolandKind::Photopic => "phot td",
+            TrolandKind::Scotopic => "scot td",
+        }
+    }
+
+    /// The adjective, `"photopic"` or `"scotopic"`.
+    pub fn name(self) -> &'static str {
+        match self {
+            TrolandKind::Photopic => "photopic",
+            TrolandKind::Scotopic => "scotopic",
+        }
+    }
+
+    /// `text`'s number, as typed, followed by this kind's symbol: for messages that say what
+    /// to write instead (`Scotopic.respell("5000 phot td")` is `"5000 scot td"`).
+    pub fn respell(self, text: &str) -> String {
+        format!("{} {}", number_text(text), self.symbol())
+    }
+}
+
+/// The leading number of `text` as typed (all of `text`, trimmed, if it does not start with one).
+fn number_text(text: &str) -> &str {
+    let t = text.trim();
+    match split_number(t) {
+        Ok((_, unit)) => t[..t.len() - unit.len()].trim_end(),
+        Err(_) => t,
+    }
+}
+
+/// The spellings of typed troland units, after [`normalise_unit`] and lowercasing.
+const TYPED_TROLAND: &[(TrolandKind, &[&str])] = &[
+    (
+        TrolandKind::Photopic,
+        &["phottd", "photopictd", "phottroland", "phottrolands", "photopictroland", "photopictrolands"],
+    ),
+    (
+        TrolandKind::Scotopic,
+        &["scottd", "scotopictd", "scottroland", "scottrolands", "scotopictroland", "scotopictrolands"],
+    ),
+];
+
+/// Parses a retinal illuminance in trolands that says which trolands it is: `"20000 phot td"`
+/// or `"20000 photopic td"` (photopic), `"20000 scot td"` or `"20000 scotopic td"` (scotopic);
+/// case and spaces do not matter. Returns the value in trolands and its kind.
+///
+/// # Errors
+/// [`crate::ErrorKind::InvalidInput`] for a missing number, a negative or non-finite value, a
+/// missing or unknown unit, and a bare `td` (`troland`, `trolands`), which could be either
+/// kind: the message shows both ways of writing the level.
+pub fn parse_typed_trolands(text: &str) -> Result<(f64, TrolandKind)> {
+    let what = "retinal illuminance";
+    let (value, unit) = split_number(text).map_err(|e| e.context(format!("{what} '{text}'")))?;
+    let both = || {
+        format!(
+            "say which trolands: '{}' (photopic, cones) or '{}' (scotopic, rods)",
+            TrolandKind::Photopic.respell(text),
+            TrolandKind::Scotopic.respell(text)
+        )
+    };
+    if unit.is_empty() {
+        return Err(Error::input(format!("{what} '{text}' has no unit; {}", both())));
+    }
+    let norm = normalise_unit(unit).to_lowercase();
+    if matches!(norm.as_str(), "td" | "troland" | "trolands") {
+        return Err(Error::input(format!("{what} '{text}': {}", both())));
+    }
+    let kind =
+        TYPED_TROLAND.iter().find(|(_, spellings)| spellings.contains(&norm.as_str())).map(|(k, _)| *k);
+    let Some(kind) = kind else {
+        return Err(Error::input(format!(
+            "{what} '{text}': unknown unit '{unit}'; accepted units: phot td (photopic td), scot td (scotopic td)"
+        )));
+    };
+    if value < 0.0 {
+        return Err(Error::input(format!("{what} '{text}' must be ≥ 0 {}", kind.symbol())));
+    }
+    Ok((value, kind))
+}
+
+/// Parses a troland value in the built-in pigment table, `"20000 td"`, where the receptor's
+/// `level_unit` already says which trolands are meant (`scot td` and `phot td` are accepted as
+/// spellings too, but their kind is not checked). Levels given by users go through
+/// [`parse_typed_trolands`], which requires the kind.
 ///
 /// # Errors
 /// As [`parse_length`].
@@ -403,6 +499,65 @@ mod tests {
         assert!((parse_rate("0.085 /min").unwrap().si() - 0.085 / 60.0).abs() < 1e-15);
         assert_eq!(parse_isomerisation_rate("1e4 R*/rod/s").unwrap().si(), 1e4);
         assert_eq!(parse_time("2 y").unwrap().si(), 63_115_200.0);
+    }
+
+    #[test]
+    fn typed_trolands_accept_each_spelling() {
+        let photopic = [
+            "100531 phot td",
+            "100531 photopic td",
+            "100531 PHOT TD",
+            "100531   Photopic   td",
+            "100531phot td",
+        ];
+        for t in photopic {
+            assert_eq!(parse_typed_trolands(t).unwrap(), (100_531.0, TrolandKind::Photopic), "{t}");
+        }
+        let scotopic =
+            ["2e4 scot td", "2e4 scotopic td", "2e4 SCOT Td", " 2e4  scotopic  td ", "2e4 scot trolands"];
+        for t in scotopic {
+            assert_eq!(parse_typed_trolands(t).unwrap(), (2e4, TrolandKind::Scotopic), "{t}");
+        }
+        assert_eq!(parse_typed_trolands("0 scot td").unwrap(), (0.0, TrolandKind::Scotopic));
+    }
+
+    #[test]
+    fn typed_trolands_reject_a_bare_td_naming_both_kinds() {
+        for t in ["100531 td", "100531 Td", "100531 troland", "100531 trolands"] {
+            let err = parse_typed_trolands(t).unwrap_err();
+            assert_eq!(err.kind(), crate::base::error::ErrorKind::InvalidInput);
+            let m = err.message();
+            assert!(m.contains(&format!("'{t}'")), "{m}");
+            assert!(m.contains("say which trolands"), "{m}");
+            assert!(m.contains("'100531 phot td' (photopic, cones)"), "{m}");
+            assert!(m.contains("'100531 scot td' (scotopic, rods)"), "{m}");
+        }
+        let m = parse_typed_trolands("1e6").unwrap_err().to_string();
+        assert!(
+            m.contains("has no unit") && m.contains("'1e6 phot td'") && m.contains("'1e6 scot td'"),
+            "{m}"
+        );
+    }
+
+    #[test]
+    fn typed_trolands_reject_a_negative_missing_or_wrong_value() {
+        let m = parse_typed_trolands("-5 scot td").unwrap_err().to_string();
+        assert!(m.contains("'-5 scot td' must be ≥ 0"), "{m}");
+        let m = parse_typed_trolands("scot td").unwrap_err().to_string();
+        assert!(m.contains("does not start with a number"), "{m}");
+        assert!(parse_typed_trolands("").is_err());
+        let m = parse_typed_trolands("5000 cd/m2").unwrap_err().to_string();
+        assert!(m.contains("unknown unit 'cd/m2'") && m.contains("phot td") && m.contains("scot td"), "{m}");
+        assert!(parse_typed_trolands("5000 mesopic td").is_err());
+        assert!(parse_typed_trolands("5000 scot td s").is_err());
+    }
+
+    #[test]
+    fn troland_kind_respells_a_level() {
+        assert_eq!(TrolandKind::Scotopic.respell("5000 phot td"), "5000 scot td");
+        assert_eq!(TrolandKind::Photopic.respell(" 1e6 td"), "1e6 phot td");
+        assert_eq!(TrolandKind::Photopic.symbol(), "phot td");
+        assert_eq!(TrolandKind::Scotopic.name(), "scotopic");
     }
 
     #[test]

@@ -874,17 +874,30 @@ pub fn bleach_table(r: &BleachReport) -> String {
         duration_text(s.peak_s),
         100.0 * s.mean
     );
-    let rec = &r.recovery;
-    let t = |x: f64| if x.is_finite() { duration_text(x) } else { "—".to_string() };
-    let _ = writeln!(
-        o,
-        "Recovery in darkness from the end of exposure (t = {}, {:.4} % bleached): 90 % regenerated after {}, 95 % after {}, 99 % after {}",
-        duration_text(rec.from_s),
-        100.0 * rec.bleached_at_start,
-        t(rec.to_90_s),
-        t(rec.to_95_s),
-        t(rec.to_99_s)
-    );
+    let t = |x: Option<f64>| {
+        x.map_or_else(|| "not reached before the light rose again".to_string(), duration_text)
+    };
+    if r.recoveries.is_empty() {
+        let _ = writeln!(o, "Recovery: no lights-off in the schedule (no step is followed by a dimmer one)");
+    }
+    for (i, rec) in r.recoveries.iter().enumerate() {
+        let which = match (i, r.lights_off) {
+            (_, 1) => "the lights-off",
+            (0, _) => "the first lights-off",
+            _ => "the last lights-off",
+        };
+        let _ = writeln!(
+            o,
+            "Recovery after {which} (end of '{}', t = {}, {:.4} % bleached), under the conditions that follow: 90 % regenerated after {}, 95 % after {}, 99 % after {}{}",
+            rec.after_step,
+            duration_text(rec.from_s),
+            100.0 * rec.bleached_at_start,
+            t(rec.to_90_s),
+            t(rec.to_95_s),
+            t(rec.to_99_s),
+            if rec.past_end { " (past the end of the schedule)" } else { "" }
+        );
+    }
     if let Some(sat) = &r.saturation {
         let _ = writeln!(o, "Saturation: {sat}");
     }
@@ -936,13 +949,9 @@ pub fn bleach_json(r: &BleachReport) -> String {
         "peak_bleached": r.summary.peak,
         "peak_time_s": r.summary.peak_s,
         "mean_bleached": r.summary.mean,
-        "recovery_s": {
-            "from_s": r.recovery.from_s,
-            "bleached_at_start": r.recovery.bleached_at_start,
-            "to_90_percent": finite(r.recovery.to_90_s),
-            "to_95_percent": finite(r.recovery.to_95_s),
-            "to_99_percent": finite(r.recovery.to_99_s),
-        },
+        "lights_off": r.lights_off,
+        "recoveries_s": r.recoveries.iter().map(recovery_json).collect::<Vec<_>>(),
+        "recovery_s": r.recoveries.last().map(recovery_json),
         "saturation": r.saturation,
         "thresholds": r.thresholds.iter().map(|t| json!({
             "basis": t.basis,
@@ -955,8 +964,17 @@ pub fn bleach_json(r: &BleachReport) -> String {
     pretty(&doc)
 }
 
-fn finite(x: f64) -> Value {
-    if x.is_finite() { json!(x) } else { Value::Null }
+/// One recovery as JSON (seconds; null when not reached).
+pub fn recovery_json(r: &retidose::pigment::bleach::Recovery) -> Value {
+    json!({
+        "after_step": r.after_step,
+        "from_s": r.from_s,
+        "bleached_at_start": r.bleached_at_start,
+        "to_90_percent": r.to_90_s,
+        "to_95_percent": r.to_95_s,
+        "to_99_percent": r.to_99_s,
+        "past_end": r.past_end,
+    })
 }
 
 /// The sampled time course as CSV.

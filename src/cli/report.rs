@@ -3,7 +3,7 @@
 
 use std::fmt::Write;
 
-use retidose::assess::Assessment;
+use retidose::assess::{Assessment, GuidanceBasis, GuidanceRow};
 use retidose::base::quantity::{SiValue, as_td_f64};
 use retidose::limits::{TMax, Verdict, find_weighting};
 use serde_json::{Value, json};
@@ -150,11 +150,10 @@ pub fn terminal(all: &[Assessment], colour: bool) -> String {
             let _ = writeln!(o, "{}", table(&["phase", "level", "bleached at end", "steady state"], rows));
             let _ = writeln!(
                 o,
-                "peak {:.3} %, mean {:.3} %; after exposure 90 % regenerated in {}, 99 % in {}",
+                "peak {:.3} %, mean {:.3} %; {}",
                 100.0 * b.summary.peak,
                 100.0 * b.summary.mean,
-                dur(b.recovery.to_90_s),
-                dur(b.recovery.to_99_s)
+                recovery_text(b)
             );
             if let Some(th) = b.thresholds.first() {
                 let _ = writeln!(
@@ -212,7 +211,8 @@ pub fn terminal(all: &[Assessment], colour: bool) -> String {
             let rows = a
                 .guidance
                 .iter()
-                .map(|(phase, f)| {
+                .map(|g| {
+                    let (phase, f) = (basis_text(g), &g.flag);
                     vec![
                         f.set.clone(),
                         phase.clone(),
@@ -292,6 +292,31 @@ pub fn terminal(all: &[Assessment], colour: bool) -> String {
     o
 }
 
+/// Where a guidance comparison was made, in words.
+fn basis_text(g: &GuidanceRow) -> String {
+    match &g.basis {
+        GuidanceBasis::Step(s) => format!("{} (step '{s}')", g.phase.name()),
+        GuidanceBasis::Survey { outside, positions } => {
+            format!("{}: survey, {outside} of {positions} positions outside", g.phase.name())
+        }
+    }
+}
+
+/// Recovery after the last lights-off, in words.
+fn recovery_text(b: &retidose::pigment::bleach::BleachReport) -> String {
+    let t = |x: Option<f64>| x.map_or_else(|| "not reached before the light rose again".to_string(), dur);
+    match b.recoveries.last() {
+        Some(r) => format!(
+            "after lights-off (end of '{}', {:.3} % bleached) 90 % regenerated in {}, 99 % in {}",
+            r.after_step,
+            100.0 * r.bleached_at_start,
+            t(r.to_90_s),
+            t(r.to_99_s)
+        ),
+        None => "no lights-off in the schedule".to_string(),
+    }
+}
+
 fn dur(s: f64) -> String {
     if !s.is_finite() {
         "—".into()
@@ -334,7 +359,8 @@ fn one_json(a: &Assessment) -> Value {
             "receptor": b.receptor, "model": b.model.name(),
             "phases": b.phases.iter().map(|p| json!({"name": p.name, "level": p.level, "end_bleached": p.end, "steady_state_bleached": p.steady_state})).collect::<Vec<_>>(),
             "peak_bleached": b.summary.peak, "mean_bleached": b.summary.mean, "end_bleached": b.summary.end,
-            "recovery_90_s": finite(b.recovery.to_90_s), "recovery_99_s": finite(b.recovery.to_99_s),
+            "recovery_90_s": b.recoveries.last().and_then(|r| r.to_90_s), "recovery_99_s": b.recoveries.last().and_then(|r| r.to_99_s),
+            "lights_off": b.lights_off, "recoveries": b.recoveries.iter().map(crate::cli::render::recovery_json).collect::<Vec<_>>(),
             "threshold_within_0_1_log_min": b.thresholds.first().and_then(|t| t.to_within_0_1_log_min),
         })),
         "limits": a.limits.iter().map(|(src, l)| json!({
@@ -346,7 +372,7 @@ fn one_json(a: &Assessment) -> Value {
             })).collect::<Vec<_>>(),
             "risk_group": match &l.classification { Some(Ok(c)) => json!({"overall": c.overall.map(|g| g.name()), "distance_m": c.distance.si(), "e_thr_lx": c.e_thr_lx, "lower_bound": !c.not_assessed.is_empty()}), Some(Err(e)) => json!({"not_assessed": e}), None => Value::Null },
         })).collect::<Vec<_>>(),
-        "guidance": a.guidance.iter().map(|(phase, f)| json!({"set": f.set, "rule": f.rule, "phase": phase, "value_lx": f.value_lx, "raised": f.raised, "message": f.message})).collect::<Vec<_>>(),
+        "guidance": a.guidance.iter().map(|g| { let f = &g.flag; json!({"set": f.set, "rule": f.rule, "phase": g.phase.name(), "step": match &g.basis { GuidanceBasis::Step(s) => Some(s), GuidanceBasis::Survey { .. } => None }, "survey_positions_outside": match g.basis { GuidanceBasis::Survey { outside, .. } => Some(outside), GuidanceBasis::Step(_) => None }, "value_lx": f.value_lx, "raised": f.raised, "message": f.message}) }).collect::<Vec<_>>(),
         "evidence": a.evidence.iter().map(|e| json!({"name": e.name, "value": e.value, "source": e.source})).collect::<Vec<_>>(),
         "survey": a.survey.as_ref().map(|s| json!({
             "shelves": s.shelves, "columns": s.columns, "mode": s.mode, "max_over_min": finite(s.max_over_min), "flagged": s.flagged,
@@ -461,12 +487,7 @@ pub fn markdown(all: &[Assessment]) -> String {
                     100.0 * p.steady_state
                 );
             }
-            let _ = writeln!(
-                o,
-                "\nPeak {:.3} %, 90 % regenerated {} after exposure.\n",
-                100.0 * b.summary.peak,
-                dur(b.recovery.to_90_s)
-            );
+            let _ = writeln!(o, "\nPeak {:.3} %; {}.\n", 100.0 * b.summary.peak, recovery_text(b));
         }
         for (src, l) in &a.limits {
             let _ = writeln!(
@@ -494,12 +515,13 @@ pub fn markdown(all: &[Assessment]) -> String {
                 o,
                 "## Guidance\n\n| set | phase | rule | flag | comparison |\n|---|---|---|---|---|"
             );
-            for (phase, f) in &a.guidance {
+            for g in &a.guidance {
+                let (phase, f) = (basis_text(g), &g.flag);
                 let _ = writeln!(
                     o,
                     "| {} | {} | {} | {} | {} |",
                     f.set,
-                    md(phase),
+                    md(&phase),
                     md(&f.name),
                     if f.raised { "**flag**" } else { "ok" },
                     md(&f.message)
@@ -871,12 +893,13 @@ pub fn html(all: &[Assessment]) -> String {
         }
         if !a.guidance.is_empty() {
             o.push_str("<h2>Guidance</h2><table><tr><th>set</th><th>phase</th><th>rule</th><th>flag</th><th>comparison</th></tr>");
-            for (phase, f) in &a.guidance {
+            for g in &a.guidance {
+                let (phase, f) = (basis_text(g), &g.flag);
                 let _ = write!(
                     o,
                     "<tr><td>{}</td><td>{}</td><td>{}</td><td{}>{}</td><td>{}</td></tr>",
                     esc(&f.set),
-                    esc(phase),
+                    esc(&phase),
                     esc(&f.name),
                     if f.raised { " class=\"flag\"" } else { "" },
                     if f.raised { "flag" } else { "ok" },

@@ -8,6 +8,7 @@ use std::sync::LazyLock;
 use serde::Deserialize;
 
 use crate::base::error::{Error, Result};
+use crate::scenario::Phase;
 
 /// One guidance rule.
 #[derive(Debug, Clone, PartialEq, Deserialize)]
@@ -18,19 +19,41 @@ pub struct Rule {
     /// Name.
     pub name: String,
     /// Phase it applies to: light, dark (housing); day, evening, night (humans).
-    pub phase: String,
-    /// `illuminance` (lx) or `melanopic-edi` (lx).
-    pub quantity: String,
+    pub phase: Phase,
+    /// What it compares.
+    pub quantity: GuidanceQuantity,
     /// Lower bound, lx.
     pub min_lx: Option<f64>,
     /// Upper bound, lx.
     pub max_lx: Option<f64>,
-    /// `albino`, `all` or `human`.
-    pub applies_to: String,
+    /// Whom it applies to.
+    pub applies_to: AppliesTo,
     /// Status.
     pub status: String,
     /// Source, with the quoted wording where available.
     pub source: String,
+}
+
+/// The quantity a rule compares.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Deserialize, serde::Serialize)]
+#[serde(rename_all = "kebab-case")]
+pub enum GuidanceQuantity {
+    /// Illuminance, lx (for housing: room illuminance at cage level).
+    Illuminance,
+    /// CIE S 026 melanopic equivalent daylight illuminance at the eye, lx.
+    MelanopicEdi,
+}
+
+/// Whom a rule applies to.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, Deserialize, serde::Serialize)]
+#[serde(rename_all = "kebab-case")]
+pub enum AppliesTo {
+    /// Every animal subject.
+    All,
+    /// Albino animals (susceptible to phototoxic retinopathy).
+    Albino,
+    /// People.
+    Human,
 }
 
 /// Evidence shown beside the rules (not a limit).
@@ -93,7 +116,7 @@ impl Rule {
                 format!(
                     "{} lx during the {} phase: the guidance asks that it be minimized or avoided",
                     tidy4(value_lx),
-                    self.phase
+                    self.phase.name()
                 ),
             ),
             (_, Some(max)) if value_lx > max => (true, format!("{} lx is above {max} lx", tidy4(value_lx))),
@@ -131,12 +154,6 @@ pub fn parse_guidance(text: &str, origin: &str) -> Result<GuidanceSet> {
     for (i, r) in g.rule.iter().enumerate() {
         if r.min_lx.is_none() && r.max_lx.is_none() {
             return Err(Error::data(format!("{origin}: key 'rule[{i}]' ({}) needs min_lx or max_lx", r.id)));
-        }
-        if r.quantity != "illuminance" && r.quantity != "melanopic-edi" {
-            return Err(Error::data(format!(
-                "{origin}: key 'rule[{i}].quantity': '{}' is not illuminance or melanopic-edi",
-                r.quantity
-            )));
         }
     }
     Ok(g)

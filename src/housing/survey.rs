@@ -12,10 +12,20 @@
 //! cage wall or filter-top transmittance. Measured mode: lux readings at cage level per position.
 
 use crate::base::error::{Error, Result};
-use crate::housing::guidance::{GuidanceSet, Rule};
+use crate::housing::guidance::{AppliesTo, GuidanceQuantity, GuidanceSet, Rule};
 use crate::pigment::kinetics::{Model, Pigment, dark_time_to, light_time_to, steady_state};
-use crate::scenario::bleach::level_of_source;
-use crate::scenario::retina::{SourceSpec, SubjectSpec};
+use uom::si::f64::Illuminance;
+use uom::si::illuminance::lux as lx;
+
+use crate::base::quantity::SiValue;
+use crate::cornea::PlacedSource;
+use crate::cornea::filter::Filter;
+use crate::cornea::geometry::{Field, Geometry};
+use crate::pigment::kinetics::LevelUnit;
+use crate::retina::pupil::PupilRule;
+use crate::retina::report::{RetinaScenario, assess_retina};
+use crate::spectrum::Spectrum;
+use crate::spectrum::scale::{ScaleTarget, scale_to};
 
 /// A downward-facing Lambertian ceiling luminaire.
 #[derive(Debug, Clone, Copy, PartialEq)]
@@ -118,27 +128,37 @@ pub struct PerLux {
     pub opic: [f64; 4],
 }
 
-/// Computes [`PerLux`] for a light spectrum (`spectrum` name as in a source) seen full-field.
+/// Computes [`PerLux`] for light of `spectrum`'s shape at 1 lx of room light, seen full-field
+/// through the cage `wall` by the eye of `view` with the pupil `pupil`: the same light path as
+/// every other source of the scenario, so a position at N lx gets exactly N times these.
 ///
 /// # Errors
 /// As the retina chain.
-pub fn per_lux(pigment: &Pigment, subject: &SubjectSpec, spectrum: &str) -> Result<PerLux> {
-    let source = SourceSpec {
-        spectrum: spectrum.to_string(),
-        illuminance: Some("1 lx".into()),
-        full_field: true,
-        ..SourceSpec::default()
+pub fn per_lux(
+    view: &RetinaScenario,
+    spectrum: &Spectrum,
+    wall: &Filter,
+    pupil: PupilRule,
+) -> Result<PerLux> {
+    let one_lux = scale_to(spectrum, ScaleTarget::Illuminance(Illuminance::new::<lx>(1.0)))?;
+    let source = PlacedSource {
+        spectrum: one_lux,
+        geometry: Geometry::AtEye { field: Some(Field::FullField) },
+        size: None,
     };
-    let rod_rate = level_of_source(pigment, subject, &source, None)?;
-    let scenario = crate::scenario::retina::build(subject, std::slice::from_ref(&source), &[], None)?;
-    let report = crate::retina::report::assess_retina(&scenario)?;
+    let scenario =
+        RetinaScenario { sources: vec![source], filters: vec![wall.clone()], pupil, ..view.clone() };
+    let report = assess_retina(&scenario)?;
+    let rod_rate = report.sources[0]
+        .level(LevelUnit::IsomerisationsPerSecond)
+        .ok_or_else(|| Error::input("the eye model has no rod"))?;
     let mut opic = [0.0; 4];
     for (i, ch) in ["rod", "m-cone", "uv-cone", "melanopsin"].iter().enumerate() {
         opic[i] = report
             .species_opic
             .iter()
             .find(|c| c.channel == *ch)
-            .map(|c| crate::base::quantity::SiValue::si(&c.photon_irradiance))
+            .map(|c| c.photon_irradiance.si())
             .unwrap_or(f64::NAN);
     }
     Ok(PerLux { rod_rate, opic })
@@ -186,9 +206,9 @@ pub struct SurveyInput<'a> {
     pub dark_room_lux: Vec<f64>,
     /// Cage wall / filter-top transmittance (0–1).
     pub cage_transmittance: f64,
-    /// Per-lux factors of the light-phase spectrum.
+    /// Per-lux (of room light) factors of the light-phase spectrum, through the cage wall.
     pub light: PerLux,
-    /// Per-lux factors of the dark-phase (leak) spectrum.
+    /// Per-lux (of room light) factors of the dark-phase (leak) spectrum, through the cage wall.
     pub dark: PerLux,
     /// The rod pigment.
     pub pigment: &'a Pigment,
@@ -201,10 +221,10 @@ pub struct SurveyInput<'a> {
 }
 
 fn applies(rule: &Rule, albino: bool) -> bool {
-    match rule.applies_to.as_str() {
-        "albino" => albino,
-        "all" => true,
-        _ => false,
+    match rule.applies_to {
+        AppliesTo::Albino => albino,
+        AppliesTo::All => true,
+        AppliesTo::Human => false,
     }
 }
 
@@ -231,14 +251,14 @@ pub fn run_survey(input: &SurveyInput<'_>) -> Result<Vec<PositionResult>> {
         .guidance
         .iter()
         .flat_map(|g| g.rule.iter().map(move |r| (g.id.as_str(), r)))
-        .filter(|(_, r)| r.quantity == "illuminance" && applies(r, input.albino))
+        .filter(|(_, r)| r.quantity == GuidanceQuantity::Illuminance && applies(r, input.albino))
         .collect();
     let mut out = Vec::with_capacity(n);
     for i in 0..n {
         let (room, dark_room) = (input.room_lux[i], input.dark_room_lux[i]);
         let (cage, dark_cage) = (room * input.cage_transmittance, dark_room * input.cage_transmittance);
-        let rod_rate = cage * input.light.rod_rate;
-        let dark_rod_rate = dark_cage * input.dark.rod_rate;
+        let rod_rate = room * input.light.rod_rate;
+        let dark_rod_rate = dark_room * input.dark.rod_rate;
         let k_light = input.pigment.rate_of_level(rod_rate);
         let k_dark = input.pigment.rate_of_level(dark_rod_rate);
         let light_bleach = steady_state(input.model, c, k_light);
@@ -251,7 +271,7 @@ pub fn run_survey(input: &SurveyInput<'_>) -> Result<Vec<PositionResult>> {
         let flags = rules
             .iter()
             .filter(|(set, r)| {
-                let v = if r.phase == "dark" { dark_room } else { room };
+                let v = if r.phase.is_dark() { dark_room } else { room };
                 r.check(set, v).raised
             })
             .map(|(_, r)| r.id.clone())
@@ -263,9 +283,9 @@ pub fn run_survey(input: &SurveyInput<'_>) -> Result<Vec<PositionResult>> {
             dark_room_lux: dark_room,
             dark_cage_lux: dark_cage,
             rod_rate,
-            opic: input.light.opic.map(|f| f * cage),
+            opic: input.light.opic.map(|f| f * room),
             dark_rod_rate,
-            dark_melanopsin: input.dark.opic[3] * dark_cage,
+            dark_melanopsin: input.dark.opic[3] * dark_room,
             light_bleach,
             dark_bleach,
             recovery_90_s: if light_bleach <= 0.10 { Some(0.0) } else { recovery_90_s },

@@ -2,12 +2,12 @@
 
 use crate::base::error::Result;
 use crate::base::quantity::{SiValue, Time};
+use crate::cornea::PlacedSource;
+use crate::cornea::at_cornea;
 use crate::cornea::filter::Filter;
-use crate::cornea::geometry::corneal;
 use crate::limits::{
     Classification, Exposure, HazardResult, LimitSet, MovableSource, Verdict, classify, evaluate_set,
 };
-use crate::retina::report::PlacedSource;
 use crate::spectrum::Measure;
 
 /// The caution every limits output starts with.
@@ -74,11 +74,7 @@ pub fn assess_limits(r: &LimitsRequest<'_>) -> Result<LimitsAssessment> {
             r.set.hazards.iter().map(|h| h.id.as_str()).collect::<Vec<_>>().join(", ")
         )));
     }
-    let mut c = corneal(&r.source.spectrum, &r.source.geometry)?;
-    for f in r.filters {
-        c.irradiance = f.apply(&c.irradiance)?;
-        c.radiance = c.radiance.map(|l| f.apply(&l)).transpose()?;
-    }
+    let c = at_cornea(r.source, r.filters)?;
     let e = Exposure {
         irradiance: &c.irradiance,
         radiance: c.radiance.as_ref(),

@@ -25,20 +25,133 @@ pub struct PhaseRow {
     pub steady_state: f64,
 }
 
-/// Times in darkness after the end of exposure (the end of the last lit step) until the
-/// pigment is back to 90 %, 95 %, 99 %.
-#[derive(Debug, Clone, Copy, PartialEq)]
+/// Regeneration after one lights-off (the end of a step followed by a dimmer one), under the
+/// conditions that follow it, leaks included, until the light rises again.
+#[derive(Debug, Clone, PartialEq)]
 pub struct Recovery {
-    /// When exposure ended, s from the start of the schedule.
+    /// The step whose end is the lights-off.
+    pub after_step: String,
+    /// When the lights went off, s from the start of the schedule.
     pub from_s: f64,
     /// Bleached fraction then.
     pub bleached_at_start: f64,
-    /// To 90 % regenerated (B ≤ 0.10), s; 0 if already there.
-    pub to_90_s: f64,
+    /// Time to 90 % regenerated (B ≤ 0.10), s; 0 if already there; `None` if not reached before
+    /// the light rose again (the dimmer light holds the pigment above it).
+    pub to_90_s: Option<f64>,
     /// To 95 %.
-    pub to_95_s: f64,
+    pub to_95_s: Option<f64>,
     /// To 99 %.
-    pub to_99_s: f64,
+    pub to_99_s: Option<f64>,
+    /// True when the time runs past the end of the schedule: after the last lights-off of the
+    /// schedule, its last step's light is taken to go on; after its very end, darkness.
+    pub past_end: bool,
+}
+
+const TARGETS: [f64; 3] = [0.10, 0.05, 0.01];
+
+/// Follows one lights-off through the steps after it.
+struct Tracker {
+    after_step: usize,
+    from_s: f64,
+    b: f64,
+    to: [Option<f64>; 3],
+}
+
+impl Tracker {
+    fn new(after_step: usize, from_s: f64, b: f64) -> Tracker {
+        Tracker { after_step, from_s, b, to: TARGETS.map(|x| (b <= x).then_some(0.0)) }
+    }
+
+    /// Checks each target not yet reached inside a step of `duration_s` at `k_per_s`, starting
+    /// at `start_s` with `b_start`.
+    fn step(
+        &mut self,
+        model: Model,
+        c: Constants,
+        start_s: f64,
+        b_start: f64,
+        k_per_s: f64,
+        duration_s: f64,
+    ) {
+        for (slot, target) in self.to.iter_mut().zip(TARGETS) {
+            if slot.is_some() {
+                continue;
+            }
+            let dt = if b_start <= target {
+                Some(0.0)
+            } else if k_per_s > 0.0 {
+                light_time_to(model, c, b_start, k_per_s, target)
+            } else {
+                dark_time_to(model, c, b_start, target)
+            };
+            if let Some(dt) = dt.filter(|dt| *dt <= duration_s) {
+                *slot = Some(start_s + dt - self.from_s);
+            }
+        }
+    }
+
+    fn finish(&self, names: &[String], schedule: &Schedule, past_end: bool) -> Recovery {
+        Recovery {
+            after_step: names[schedule.steps[self.after_step].name].clone(),
+            from_s: self.from_s,
+            bleached_at_start: self.b,
+            to_90_s: self.to[0],
+            to_95_s: self.to[1],
+            to_99_s: self.to[2],
+            past_end,
+        }
+    }
+}
+
+/// Keeps the first and the last of a run of values.
+fn keep_first_and_last(list: &mut Vec<Recovery>, r: Recovery) {
+    if list.len() == 2 {
+        list[1] = r;
+    } else {
+        list.push(r);
+    }
+}
+
+/// Recovery after each lights-off of `schedule` from `b0`: (number of lights-offs, the first
+/// and the last). Lights-off is the end of a step followed by a dimmer one; when the schedule
+/// has none but ends lit, its end (darkness assumed after it).
+fn recoveries(model: Model, c: Constants, schedule: &Schedule, b0: f64) -> (usize, Vec<Recovery>) {
+    let steps = &schedule.steps;
+    let (mut list, mut count, mut active): (Vec<Recovery>, usize, Option<Tracker>) = (Vec::new(), 0, None);
+    let mut last = (b0, 0.0);
+    run(model, c, schedule, b0, |o| {
+        let s = &steps[o.index];
+        if o.index > 0
+            && s.rate_per_s > steps[o.index - 1].rate_per_s
+            && let Some(t) = active.take()
+        {
+            keep_first_and_last(&mut list, t.finish(&schedule.names, schedule, false));
+        }
+        if let Some(t) = active.as_mut() {
+            t.step(model, c, o.start_s, o.b_start, s.rate_per_s, s.duration_s);
+        }
+        let end_s = o.start_s + s.duration_s;
+        if steps.get(o.index + 1).is_some_and(|n| n.rate_per_s < s.rate_per_s) {
+            if let Some(t) = active.take() {
+                keep_first_and_last(&mut list, t.finish(&schedule.names, schedule, false));
+            }
+            count += 1;
+            active = Some(Tracker::new(o.index, end_s, o.b_end));
+        }
+        last = (o.b_end, end_s);
+    });
+    let n = steps.len();
+    if count == 0 && steps[n - 1].rate_per_s > 0.0 {
+        count = 1;
+        active = Some(Tracker::new(n - 1, last.1, last.0));
+    }
+    if let Some(mut t) = active.take() {
+        let unreached = t.to.iter().any(Option::is_none);
+        let last_rate = if t.after_step == n - 1 { 0.0 } else { steps[n - 1].rate_per_s };
+        t.step(model, c, last.1, last.0, last_rate, f64::INFINITY);
+        keep_first_and_last(&mut list, t.finish(&schedule.names, schedule, unreached));
+    }
+    (count, list)
 }
 
 /// A rod-threshold estimate after the end of the schedule (log₁₀ elevation over time).
@@ -73,9 +186,11 @@ pub struct BleachReport {
     pub phases: Vec<PhaseRow>,
     /// End, peak and mean.
     pub summary: Summary,
-    /// Recovery after the end.
-    pub recovery: Recovery,
-    /// Rod threshold estimates (rods only): S2 and Dowling–Rushton.
+    /// Number of lights-offs in the schedule.
+    pub lights_off: usize,
+    /// Recovery after the first and the last lights-off (one entry when they are the same).
+    pub recoveries: Vec<Recovery>,
+    /// Rod threshold estimates after the last lights-off (human rods only): S2 and Dowling–Rushton.
     pub thresholds: Vec<Threshold>,
     /// Sampled time course (time s, bleached fraction), if asked for.
     pub time_course: Vec<(f64, f64)>,
@@ -120,10 +235,7 @@ pub fn assess(
             steady_state: 0.0,
         })
         .collect();
-    // One pass: phases, summary and the end of exposure (the end of the last lit step, from
-    // which recovery is counted).
     let (mut peak, mut peak_s, mut area) = (b0, 0.0, 0.0);
-    let (mut exposure_end_b, mut exposure_end_s) = (b0, 0.0);
     let end = run(model, c, schedule, b0, |o| {
         let s = &schedule.steps[o.index];
         let step_end = o.start_s + s.duration_s;
@@ -138,22 +250,14 @@ pub fn assess(
             peak_s = step_end;
         }
         area += o.integral_s;
-        if s.rate_per_s > 0.0 {
-            exposure_end_b = o.b_end;
-            exposure_end_s = step_end;
-        }
     });
     let summary = Summary { end, peak, peak_s, mean: area / schedule.total_s() };
-    let back = |b: f64| dark_time_to(model, c, exposure_end_b, b).unwrap_or(f64::INFINITY);
-    let recovery = Recovery {
-        from_s: exposure_end_s,
-        bleached_at_start: exposure_end_b,
-        to_90_s: back(0.10),
-        to_95_s: back(0.05),
-        to_99_s: back(0.01),
+    let (lights_off, recoveries) = recoveries(model, c, schedule, b0);
+    let human_rod = pigment.species == crate::retina::eye::Species::Human && pigment.id.ends_with("rod");
+    let thresholds = match recoveries.last() {
+        Some(r) if human_rod => threshold_estimates(model, c, r.bleached_at_start),
+        _ => Vec::new(),
     };
-    let is_rod = pigment.id.ends_with("rod");
-    let thresholds = if is_rod { threshold_estimates(model, c, exposure_end_b) } else { Vec::new() };
     let max_level = schedule.steps.iter().map(|s| pigment.level_of_rate(s.rate_per_s)).fold(0.0, f64::max);
     let saturation = pigment.saturating_level.as_ref().map(|sat| {
         let u = pigment.level_unit.symbol();
@@ -172,7 +276,7 @@ pub fn assess(
     if !memo.is_empty() {
         notes.push(format!("these {} parameters are from memory: {}", pigment.id, memo.join(", ")));
     }
-    if is_rod {
+    if human_rod {
         notes.push(
             "rod threshold curves are estimates: the S2 route holds the cone plateau until the bleach falls to the \
              rod–cone break (B = plateau/α) and then falls at the S2 slope (S3 not modelled); the Dowling–Rushton route \
@@ -190,7 +294,8 @@ pub fn assess(
         steps: schedule.steps.len(),
         phases,
         summary,
-        recovery,
+        lights_off,
+        recoveries,
         thresholds,
         time_course: samples.map(|n| sample(model, c, schedule, b0, n)).unwrap_or_default(),
         saturation,

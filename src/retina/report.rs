@@ -4,7 +4,8 @@
 use crate::base::error::{Error, Result};
 use crate::base::quantity::{Angle, Length, Luminance, SiValue, Time, as_td_f64};
 use crate::cornea::filter::Filter;
-use crate::cornea::geometry::{Corneal, Geometry, corneal};
+use crate::cornea::geometry::Corneal;
+use crate::cornea::{PlacedSource, at_cornea};
 use crate::retina::catch::{ReceptorCatch, SpeciesOpic, receptor_catch, species_alpha_opic};
 use crate::retina::eye::{Eye, Species, Status};
 use crate::retina::optics::{Trolands, collecting_area_mm2, image_size, retinal_irradiance, trolands_of};
@@ -12,17 +13,6 @@ use crate::retina::pupil::{Adaptation, Pupil, PupilRule, choose};
 use crate::spectrum::photometry::{PhotometricResult, photopic};
 use crate::spectrum::{PhotonTotal, Radiometric, Spectrum};
 use crate::weighting::alpha_opic::{AlphaOpicValue, alpha_opic};
-
-/// One source in place.
-#[derive(Debug, Clone, PartialEq)]
-pub struct PlacedSource {
-    /// Its spectrum, with an absolute scale.
-    pub spectrum: Spectrum,
-    /// Where it is and how it radiates.
-    pub geometry: Geometry,
-    /// Its diameter, when given (lets an extended source be placed at another distance).
-    pub size: Option<Length>,
-}
 
 /// Everything needed to assess one viewing situation.
 #[derive(Debug, Clone, PartialEq)]
@@ -52,6 +42,8 @@ pub struct RetinaScenario {
 pub struct SourceAtEye {
     /// Source name.
     pub label: String,
+    /// Corneal spectral irradiance after every filter.
+    pub corneal_irradiance: Spectrum,
     /// Corneal irradiance (radiant total).
     pub irradiance: Radiometric,
     /// Corneal photon irradiance.
@@ -70,6 +62,23 @@ pub struct SourceAtEye {
     pub retinal: Option<Retinal>,
     /// How the radiance was obtained or why it is unknown.
     pub notes: Vec<String>,
+}
+
+impl SourceAtEye {
+    /// The light level this source gives a receptor whose kinetics take `unit`: scotopic or
+    /// photopic trolands, or the rod's R* per rod per second. `None` when the seen radiance is
+    /// not known (no retinal quantities) or the eye has no rod.
+    pub fn level(&self, unit: crate::pigment::kinetics::LevelUnit) -> Option<f64> {
+        use crate::pigment::kinetics::LevelUnit;
+        let r = self.retinal.as_ref()?;
+        match unit {
+            LevelUnit::ScotopicTrolands => Some(as_td_f64(r.trolands.scotopic)),
+            LevelUnit::PhotopicTrolands => Some(as_td_f64(r.trolands.photopic)),
+            LevelUnit::IsomerisationsPerSecond => {
+                r.catch.iter().find(|c| c.receptor == "rod").map(|c| c.rate.si())
+            }
+        }
+    }
 }
 
 /// Retinal quantities of one source.
@@ -128,12 +137,7 @@ pub fn assess_retina(s: &RetinaScenario) -> Result<RetinaReport> {
     let eye = &s.eye;
     let mut cornea: Vec<Corneal> = Vec::new();
     for src in &s.sources {
-        let mut c = corneal(&src.spectrum, &src.geometry)?;
-        for f in &s.filters {
-            c.irradiance = f.apply(&c.irradiance)?;
-            c.radiance = c.radiance.map(|l| f.apply(&l)).transpose()?;
-        }
-        cornea.push(c);
+        cornea.push(at_cornea(src, &s.filters)?);
     }
     // The adapting luminance and field for pupil formulas: given, or the brightest seen source.
     let brightest = cornea
@@ -179,6 +183,7 @@ pub fn assess_retina(s: &RetinaScenario) -> Result<RetinaReport> {
         };
         sources.push(SourceAtEye {
             label: src.spectrum.label().to_string(),
+            corneal_irradiance: c.irradiance.clone(),
             irradiance: c
                 .irradiance
                 .radiometric_total()

@@ -27,7 +27,7 @@ use serde::Deserialize;
 
 use crate::base::error::{Error, Result};
 use crate::base::quantity::SiValue;
-use crate::base::units::{parse_isomerisation_rate, parse_time, parse_trolands};
+use crate::base::units::{TrolandKind, parse_isomerisation_rate, parse_time, parse_typed_trolands};
 use crate::pigment::kinetics::{LevelUnit, Model, Pigment, find_pigment};
 use crate::pigment::schedule::Schedule;
 use crate::retina::report::assess_retina;
@@ -68,14 +68,33 @@ struct RawStep {
     source: Option<SourceSpec>,
 }
 
-/// Parses a light level written with the receptor's unit (`"300 td"`, `"1e4 R*/rod/s"`).
+/// Parses a light level written with the receptor's unit: `"300 scot td"` (human rods),
+/// `"300 phot td"` (human cones), `"1e4 R*/rod/s"` (rodent rods). A level in trolands must say
+/// which trolands it is, and they must be the receptor's.
 ///
 /// # Errors
-/// [`crate::ErrorKind::InvalidInput`] for a missing or wrong unit or a negative level.
+/// [`crate::ErrorKind::InvalidInput`] for a missing or wrong unit, trolands that do not say
+/// which kind or are of the other kind than the receptor's, or a negative level.
 pub fn parse_level(pigment: &Pigment, text: &str) -> Result<f64> {
     let v = match pigment.level_unit {
         LevelUnit::IsomerisationsPerSecond => parse_isomerisation_rate(text)?.si(),
-        LevelUnit::ScotopicTrolands | LevelUnit::PhotopicTrolands => parse_trolands(text)?,
+        LevelUnit::ScotopicTrolands | LevelUnit::PhotopicTrolands => {
+            let want = if pigment.level_unit == LevelUnit::ScotopicTrolands {
+                TrolandKind::Scotopic
+            } else {
+                TrolandKind::Photopic
+            };
+            let (v, kind) = parse_typed_trolands(text)?;
+            if kind != want {
+                return Err(Error::input(format!(
+                    "'{text}': {} levels are {} trolands: give '{}'",
+                    pigment.id,
+                    want.name(),
+                    want.respell(text)
+                )));
+            }
+            v
+        }
     };
     if !(v >= 0.0 && v.is_finite()) {
         return Err(Error::input(format!("light level '{text}' must be a finite number ≥ 0")));
@@ -103,22 +122,14 @@ pub fn level_of_source(
         )));
     }
     let report = assess_retina(&scenario)?;
-    let retinal = report.sources[0].retinal.as_ref().ok_or_else(|| {
-        Error::input(format!(
+    let at_eye = &report.sources[0];
+    if at_eye.retinal.is_none() {
+        return Err(Error::input(format!(
             "source '{}': the radiance the eye sees is not known; give full_field, subtense, or size and distance",
             source.spectrum
-        ))
-    })?;
-    Ok(match pigment.level_unit {
-        LevelUnit::ScotopicTrolands => crate::base::quantity::as_td_f64(retinal.trolands.scotopic),
-        LevelUnit::PhotopicTrolands => crate::base::quantity::as_td_f64(retinal.trolands.photopic),
-        LevelUnit::IsomerisationsPerSecond => retinal
-            .catch
-            .iter()
-            .find(|c| c.receptor == "rod")
-            .map(|c| c.rate.si())
-            .ok_or_else(|| Error::input("the eye model has no rod"))?,
-    })
+        )));
+    }
+    at_eye.level(pigment.level_unit).ok_or_else(|| Error::input("the eye model has no rod"))
 }
 
 /// Parses a bleaching scenario; `origin` names it in errors and `base` is where relative files

@@ -25,11 +25,12 @@ use serde::Deserialize;
 use crate::base::error::{Error, Result};
 use crate::base::quantity::{Angle, SiValue};
 use crate::base::units::{parse_angle, parse_length, parse_luminance, parse_time};
+use crate::cornea::PlacedSource;
 use crate::cornea::filter::Filter;
 use crate::cornea::geometry::{Emission, Field, Geometry, subtense};
 use crate::retina::eye::{Eye, Species, builtin_eye};
 use crate::retina::pupil::PupilRule;
-use crate::retina::report::{PlacedSource, RetinaScenario};
+use crate::retina::report::RetinaScenario;
 use crate::spectrum::Measure;
 use crate::spectrum::scale::{SCALE_KEYS, ScaleTarget, scale_to};
 use crate::spectrum::source::resolve;
@@ -85,8 +86,10 @@ pub struct SubjectSpec {
     pub species: String,
     /// `albino` or `pigmented` (rodents; albino animals get the Guide's phototoxicity range).
     pub pigmentation: Option<String>,
-    /// Pupil diameter or rule.
+    /// Pupil diameter or rule (the light phase, and every phase unless `dark_pupil` is given).
     pub pupil: Option<String>,
+    /// Pupil in dark-phase steps (`dark`, `night`); rodents default to their dark-adapted pupil.
+    pub dark_pupil: Option<String>,
     /// Age (`"32 y"`).
     pub age: Option<String>,
     /// Eyes viewing, 1 or 2 (pupil formulas).
@@ -123,7 +126,8 @@ struct RawScenario {
     filter: Vec<FilterSpec>,
 }
 
-fn rel(base: Option<&Path>, p: &str) -> PathBuf {
+/// `p` relative to `base` (the scenario file's folder) when it is a relative path.
+pub fn rel(base: Option<&Path>, p: &str) -> PathBuf {
     match base {
         Some(b) if Path::new(p).is_relative() => b.join(p),
         _ => PathBuf::from(p),
@@ -131,7 +135,35 @@ fn rel(base: Option<&Path>, p: &str) -> PathBuf {
 }
 
 fn opt<T>(v: &Option<String>, key: &str, parse: impl Fn(&str) -> Result<T>) -> Result<Option<T>> {
-    v.as_deref().map(|t| parse(t).map_err(|e| e.context(format!("key '{key}'")))).transpose()
+    v.as_deref().map(|t| parse(t).map_err(|e| e.key(key))).transpose()
+}
+
+/// Resolves a `spectrum` value: a generator (`blackbody:…`, `cie:…`, `led:…`) or a built-in lamp
+/// by name, else a file relative to `base` (the scenario file's folder; the working directory
+/// only when there is no scenario file). A file beside the scenario wins over a built-in lamp of
+/// the same name; a relative name is never looked up in the working directory of a scenario.
+///
+/// # Errors
+/// As [`resolve`]; a file that does not exist is named with the path that was tried.
+pub fn resolve_spectrum(spec: &str, base: Option<&Path>) -> Result<crate::spectrum::Spectrum> {
+    let generator = ["blackbody:", "cie:", "led:"].iter().any(|p| spec.trim().starts_with(p));
+    if generator {
+        return resolve(spec, None);
+    }
+    let path = rel(base, spec);
+    if path.is_file() {
+        return resolve(&path.to_string_lossy(), None);
+    }
+    if crate::spectrum::source::BUILTIN_LAMPS.iter().any(|l| l.name == spec.trim()) {
+        return resolve(spec, None);
+    }
+    match base {
+        Some(_) => Err(Error::input(format!(
+            "'{spec}' is neither a built-in lamp, a generator (blackbody:…, cie:…, led:…) nor a file: {} does not exist",
+            path.display()
+        ))),
+        None => resolve(spec, None),
+    }
 }
 
 /// Resolves, scales and places one source.
@@ -162,15 +194,13 @@ pub fn place(spec: &SourceSpec, base: Option<&Path>) -> Result<PlacedSource> {
             given.iter().map(|g| g.0).collect::<Vec<_>>().join(", ")
         )));
     }
-    let path = rel(base, &spec.spectrum);
-    let name = if path.is_file() { path.to_string_lossy().into_owned() } else { spec.spectrum.clone() };
-    let mut spectrum = resolve(&name, None).map_err(|e| e.context("key 'spectrum'"))?;
+    let mut spectrum = resolve_spectrum(&spec.spectrum, base).map_err(|e| e.key("spectrum"))?;
     if let Some(id) = &spec.id {
         spectrum = spectrum.with_label(id.clone());
     }
     if let Some((key, value)) = given.first() {
-        let t = ScaleTarget::parse(key, value).map_err(|e| e.context(format!("key '{key}'")))?;
-        spectrum = scale_to(&spectrum, t).map_err(|e| e.context(format!("key '{key}'")))?;
+        let t = ScaleTarget::parse(key, value).map_err(|e| e.key(key))?;
+        spectrum = scale_to(&spectrum, t).map_err(|e| e.key(key))?;
     }
     let distance = opt(&spec.distance, "distance", parse_length)?;
     let size = opt(&spec.size, "size", parse_length)?;
@@ -238,8 +268,9 @@ pub fn place(spec: &SourceSpec, base: Option<&Path>) -> Result<PlacedSource> {
                 "lambertian" => Emission::Lambertian,
                 other => {
                     return Err(Error::input(format!(
-                        "key 'emission': '{other}' is not an emission; expected isotropic or lambertian"
-                    )));
+                        "'{other}' is not an emission; expected isotropic or lambertian"
+                    ))
+                    .key("emission"));
                 }
             };
             Geometry::Flux {
@@ -252,8 +283,9 @@ pub fn place(spec: &SourceSpec, base: Option<&Path>) -> Result<PlacedSource> {
         }
         other => {
             return Err(Error::input(format!(
-                "key 'geometry': '{other}' is not a geometry; expected at-eye, extended, intensity or flux"
-            )));
+                "'{other}' is not a geometry; expected at-eye, extended, intensity or flux"
+            ))
+            .key("geometry"));
         }
     };
     Ok(PlacedSource { spectrum, geometry, size })
@@ -269,48 +301,53 @@ pub fn build(
     filters: &[FilterSpec],
     base: Option<&Path>,
 ) -> Result<RetinaScenario> {
-    let species = Species::parse(&subject.species).map_err(|e| e.context("key 'species'"))?;
+    let species = Species::parse(&subject.species).map_err(|e| e.key("species").key("subject"))?;
     let eye = match &subject.eye_file {
         Some(f) => {
             let p = rel(base, f);
-            let text = std::fs::read_to_string(&p)
-                .map_err(|e| Error::input(format!("key 'eye_file': cannot read {}: {e}", p.display())))?;
+            let text = std::fs::read_to_string(&p).map_err(|e| {
+                Error::input(format!("cannot read {}: {e}", p.display())).key("eye_file").key("subject")
+            })?;
             let eye = Eye::from_toml(&text, &p.display().to_string())?;
             if eye.species != species {
                 return Err(Error::input(format!(
-                    "key 'eye_file': {} describes a {} eye, the subject is a {}",
+                    "{} describes a {} eye, the subject is a {}",
                     p.display(),
                     eye.species.name(),
                     species.name()
-                )));
+                ))
+                .key("eye_file")
+                .key("subject"));
             }
             eye
         }
         None => builtin_eye(species).clone(),
     };
     let pupil = match &subject.pupil {
-        Some(p) => PupilRule::parse(p).map_err(|e| e.context("key 'pupil'"))?,
+        Some(p) => PupilRule::parse(p).map_err(|e| e.key("pupil").key("subject"))?,
         None => {
             return Err(Error::input(
-                "key 'pupil' is missing: give a diameter (\"3 mm\") or a rule (dark, light, dilated, \
+                "is missing: give a diameter (\"3 mm\") or a rule (dark, light, dilated, \
                  watson-yellott, de-groot-gebhard, moon-spencer)",
-            ));
+            )
+            .key("pupil")
+            .key("subject"));
         }
     };
     let eyes = subject.eyes.unwrap_or(2);
     if !(1..=2).contains(&eyes) {
-        return Err(Error::input(format!("key 'eyes': {eyes} must be 1 or 2")));
+        return Err(Error::input(format!("{eyes} must be 1 or 2")).key("eyes").key("subject"));
     }
     let sources = sources
         .iter()
         .enumerate()
-        .map(|(i, s)| place(s, base).map_err(|e| e.context(format!("source {}", i + 1))))
+        .map(|(i, s)| place(s, base).map_err(|e| e.key(&format!("source[{i}]"))))
         .collect::<Result<Vec<_>>>()?;
     let filters = filters
         .iter()
         .enumerate()
         .map(|(i, f)| {
-            let at = |e: Error| e.context(format!("filter {}", i + 1));
+            let at = |e: Error| e.key(&format!("filter[{i}]"));
             let mut filter = match (&f.transmittance, &f.file) {
                 (Some(t), None) => Filter::parse(t).map_err(at)?,
                 (None, Some(file)) => Filter::parse(&rel(base, file).to_string_lossy()).map_err(at)?,
@@ -327,10 +364,11 @@ pub fn build(
         sources,
         filters,
         pupil,
-        age: opt(&subject.age, "age", parse_time)?,
+        age: opt(&subject.age, "age", parse_time).map_err(|e| e.key("subject"))?,
         eyes,
-        field: opt(&subject.field, "field", parse_angle)?,
-        adapting_luminance: opt(&subject.adapting_luminance, "adapting_luminance", parse_luminance)?,
+        field: opt(&subject.field, "field", parse_angle).map_err(|e| e.key("subject"))?,
+        adapting_luminance: opt(&subject.adapting_luminance, "adapting_luminance", parse_luminance)
+            .map_err(|e| e.key("subject"))?,
         albino_iris: subject.albino_iris,
     })
 }
@@ -344,5 +382,5 @@ pub fn build(
 pub fn parse_scenario(text: &str, origin: &str, base: Option<&Path>) -> Result<RetinaScenario> {
     let raw: RawScenario =
         toml::from_str(text).map_err(|e| Error::data(crate::base::toml_errors::describe(&e, origin)))?;
-    build(&raw.subject, &raw.source, &raw.filter, base).map_err(|e| e.context(origin))
+    build(&raw.subject, &raw.source, &raw.filter, base).map_err(|e| e.in_file(origin, Some(text)))
 }

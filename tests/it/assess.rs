@@ -88,7 +88,7 @@ fn vivarium_demo_values() {
     assert_eq!(v["evidence"].as_array().unwrap().len(), 2);
     assert_eq!(v["flag_raised"], true);
     // 12 h of light is many recovery time constants: the light phase ends at its steady state.
-    let light = v["bleach"]["phases"].as_array().unwrap().iter().find(|p| p["name"] == "light").unwrap();
+    let light = v["bleach"]["phases"].as_array().unwrap().iter().find(|p| p["name"] == "lights on").unwrap();
     assert!(
         (light["end_bleached"].as_f64().unwrap() - light["steady_state_bleached"].as_f64().unwrap()).abs()
             < 1e-9
@@ -321,7 +321,7 @@ fn bad_scenarios_exit_2_naming_the_field() {
         (good.replace("[subject]", "[subject]\npupl = \"3 mm\""), "did you mean `pupil`?"),
         (
             good.replace("spectrum = \"stimulus-460-led\"", "spectrum = \"missing-file.csv\""),
-            "unknown source 'missing-file.csv'",
+            "missing-file.csv does not exist",
         ),
         (good.replace("duration = \"8 h\"", "duration = \"0 h\""), "must be above 0 s"),
         (

@@ -495,7 +495,7 @@ fn bleach_quick_form_reports_phases_recovery_and_thresholds() {
         "--receptor",
         "human-rod",
         "--retinal",
-        "1e6 td",
+        "1e6 scot td",
         "--for",
         "60 s",
         "--then-dark",
@@ -515,7 +515,7 @@ fn bleach_quick_form_reports_phases_recovery_and_thresholds() {
             "--receptor",
             "human-rod",
             "--retinal",
-            "20000 td",
+            "20000 scot td",
             "--for",
             "30 s",
             "--model",
@@ -524,7 +524,7 @@ fn bleach_quick_form_reports_phases_recovery_and_thresholds() {
         .assert()
         .success()
         .stdout(predicate::str::contains("rushton model"))
-        .stdout(predicate::str::contains("Recovery in darkness"));
+        .stdout(predicate::str::contains("Recovery after the lights-off"));
 }
 
 #[test]
@@ -556,14 +556,24 @@ fn bleach_inverse_solves_and_flash() {
 
 #[test]
 fn bleach_rejects_bad_input_and_never_overwrites() {
-    fails(&["bleach", "--receptor", "human-rod", "--retinal=-5 td", "--for", "30 s"], "≥ 0");
+    fails(&["bleach", "--receptor", "human-rod", "--retinal=-5 scot td", "--for", "30 s"], "≥ 0");
     fails(&["bleach", "--receptor", "human-rod", "--retinal", "5000", "--for", "30 s"], "has no unit");
     fails(
-        &["bleach", "--receptor", "human-rod", "--retinal", "5000 td", "--for", "0 s"],
+        &["bleach", "--receptor", "human-rod", "--retinal", "5000 scot td", "--for", "0 s"],
         "must be above 0 s",
     );
     fails(
-        &["bleach", "--receptor", "human-rod", "--retinal", "5000 td", "--for", "30 s", "--param", "k_m=0"],
+        &[
+            "bleach",
+            "--receptor",
+            "human-rod",
+            "--retinal",
+            "5000 scot td",
+            "--for",
+            "30 s",
+            "--param",
+            "k_m=0",
+        ],
         "must be above 0",
     );
     fails(
@@ -572,7 +582,7 @@ fn bleach_rejects_bad_input_and_never_overwrites() {
             "--receptor",
             "human-rod",
             "--retinal",
-            "5000 td",
+            "5000 scot td",
             "--for",
             "30 s",
             "--param",
@@ -581,11 +591,21 @@ fn bleach_rejects_bad_input_and_never_overwrites() {
         "must be above 0",
     );
     fails(
-        &["bleach", "--receptor", "human-rod", "--retinal", "5000 td", "--for", "1 h", "--repeat", "2000000"],
+        &[
+            "bleach",
+            "--receptor",
+            "human-rod",
+            "--retinal",
+            "5000 scot td",
+            "--for",
+            "1 h",
+            "--repeat",
+            "2000000",
+        ],
         "must end",
     );
     fails(
-        &["bleach", "--receptor", "cat-rod", "--retinal", "5000 td", "--for", "1 h"],
+        &["bleach", "--receptor", "cat-rod", "--retinal", "5000 scot td", "--for", "1 h"],
         "unknown receptor 'cat-rod'",
     );
     let out = temp_file("course.csv", "keep me\n");
@@ -595,7 +615,7 @@ fn bleach_rejects_bad_input_and_never_overwrites() {
             "--receptor",
             "human-rod",
             "--retinal",
-            "5000 td",
+            "5000 scot td",
             "--for",
             "30 s",
             "--time-course",
@@ -604,4 +624,58 @@ fn bleach_rejects_bad_input_and_never_overwrites() {
         "never overwritten",
     );
     assert_eq!(std::fs::read_to_string(&out).unwrap(), "keep me\n");
+}
+
+#[test]
+fn bleach_trolands_must_say_which_and_match_the_receptor() {
+    // The typed units are accepted, short and long, for the receptor whose kind they are.
+    let bleach = |receptor: &'static str, level: &'static str| -> Vec<&'static str> {
+        vec!["bleach", "--receptor", receptor, "--retinal", level, "--for", "30 s"]
+    };
+    let cone = json(&bleach("human-cone", "20000 phot td"));
+    assert_eq!(cone["receptor"], "human-cone");
+    assert_eq!(cone["level_unit"], "phot td");
+    assert!((cone["phases"][0]["level"].as_f64().unwrap() - 20000.0).abs() < 1e-6, "{cone}");
+    assert_eq!(json(&bleach("human-cone", "20000 Photopic  td"))["end_bleached"], cone["end_bleached"]);
+    let rod = json(&bleach("human-rod", "20000 scot td"));
+    assert_eq!(rod["receptor"], "human-rod");
+    assert_eq!(rod["level_unit"], "scot td");
+    assert!((rod["phases"][0]["level"].as_f64().unwrap() - 20000.0).abs() < 1e-6, "{rod}");
+    assert_eq!(json(&bleach("human-rod", "20000 scotopic td"))["end_bleached"], rod["end_bleached"]);
+
+    // A bare td (or troland) could be either: exit 2, naming both ways to write it.
+    for (receptor, level) in
+        [("human-rod", "100531 td"), ("human-cone", "100531 td"), ("human-rod", "100531 trolands")]
+    {
+        retidose()
+            .args(bleach(receptor, level))
+            .assert()
+            .code(2)
+            .stderr(predicate::str::contains("--retinal"))
+            .stderr(predicate::str::contains("say which trolands"))
+            .stderr(predicate::str::contains("'100531 phot td' (photopic, cones)"))
+            .stderr(predicate::str::contains("'100531 scot td' (scotopic, rods)"));
+    }
+
+    // The other kind's trolands: exit 2, naming the receptor and the right unit.
+    fails(
+        &bleach("human-rod", "5000 phot td"),
+        "human-rod levels are scotopic trolands: give '5000 scot td'",
+    );
+    fails(
+        &bleach("human-cone", "5000 scot td"),
+        "human-cone levels are photopic trolands: give '5000 phot td'",
+    );
+
+    // A schedule file's levels go through the same check.
+    let schedule = |level: &str| {
+        format!("receptor = \"human-rod\"\n[[step]]\nduration = \"30 s\"\nlevel = \"{level}\"\n")
+    };
+    let good = temp_file("typed-td.toml", &schedule("20000 scot td"));
+    let v = json(&["bleach", "--schedule", good.to_str().unwrap()]);
+    assert_eq!(v["end_bleached"], rod["end_bleached"]);
+    let bare = temp_file("bare-td.toml", &schedule("20000 td"));
+    fails(&["bleach", "--schedule", bare.to_str().unwrap()], "'20000 phot td' (photopic, cones)");
+    let wrong = temp_file("wrong-td.toml", &schedule("20000 phot td"));
+    fails(&["bleach", "--schedule", wrong.to_str().unwrap()], "human-rod levels are scotopic trolands");
 }

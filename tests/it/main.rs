@@ -4,6 +4,7 @@
 mod assess;
 mod bleach_reference;
 mod cli;
+mod consistency;
 mod limits_reference;
 mod properties;
 mod reference;

@@ -1,0 +1,469 @@
+//! The `assess` scenario file: parsed, then resolved into typed values, once.
+//!
+//! Nothing after [`parse_scenario_file`] reads scenario text. Every source is resolved and placed
+//! here (files relative to the scenario's own folder, never the working directory), the filters
+//! are read once, the species, pigmentation and step phases become enums, and the pupil rule of
+//! each phase is decided. Errors carry their location as fields: the file, the key path and the
+//! line from the TOML parser's spans.
+
+use std::path::Path;
+
+use serde::Deserialize;
+
+use crate::base::error::{Error, Result};
+use crate::base::quantity::{SiValue, Time};
+use crate::base::toml_errors::describe;
+use crate::base::units::{
+    parse_illuminance, parse_length, parse_luminous_intensity, parse_number, parse_time,
+};
+use crate::housing::guidance::{GuidanceSet, find_guidance};
+use crate::housing::survey::{Luminaire, Rack};
+use crate::limits::{LimitSet, find_set};
+use crate::pigment::kinetics::{Model, Pigment, find_pigment};
+use crate::retina::eye::Species;
+use crate::retina::pupil::PupilRule;
+use crate::retina::report::RetinaScenario;
+use crate::scenario::retina::{FilterSpec, SourceSpec, SubjectSpec, build, resolve_spectrum};
+use crate::scenario::{Phase, Pigmentation};
+use crate::spectrum::Spectrum;
+
+#[derive(Deserialize)]
+#[serde(deny_unknown_fields)]
+struct RawScenario {
+    scenario: RawMeta,
+    subject: SubjectSpec,
+    #[serde(default)]
+    source: Vec<SourceSpec>,
+    #[serde(default)]
+    filter: Vec<FilterSpec>,
+    schedule: Option<RawSchedule>,
+    limits: Option<RawLimits>,
+    guidance: Option<RawGuidance>,
+    survey: Option<RawSurvey>,
+}
+
+#[derive(Deserialize)]
+#[serde(deny_unknown_fields)]
+struct RawMeta {
+    name: String,
+    title: String,
+    description: Option<String>,
+}
+
+#[derive(Deserialize)]
+#[serde(deny_unknown_fields)]
+struct RawSchedule {
+    receptor: Option<String>,
+    model: Option<String>,
+    repeat: Option<u64>,
+    step: Vec<RawStep>,
+}
+
+#[derive(Deserialize)]
+#[serde(deny_unknown_fields)]
+struct RawStep {
+    name: String,
+    phase: Option<String>,
+    duration: String,
+    #[serde(default)]
+    on: Vec<String>,
+}
+
+#[derive(Deserialize)]
+#[serde(deny_unknown_fields)]
+struct RawLimits {
+    sets: Vec<String>,
+    duration: String,
+    sources: Option<Vec<String>>,
+    #[serde(default)]
+    classify: bool,
+    #[serde(default)]
+    general_lighting: bool,
+    #[serde(default)]
+    aphakic: bool,
+}
+
+#[derive(Deserialize)]
+#[serde(deny_unknown_fields)]
+struct RawGuidance {
+    sets: Vec<String>,
+}
+
+#[derive(Deserialize)]
+#[serde(deny_unknown_fields)]
+struct RawSurvey {
+    shelves: usize,
+    columns: usize,
+    first_column_x: String,
+    column_spacing: String,
+    rack_y: String,
+    bottom_shelf: String,
+    shelf_spacing: String,
+    cage_transmittance: String,
+    shelf_shading: Option<String>,
+    light_spectrum: String,
+    dark_spectrum: Option<String>,
+    dark_lux: Option<String>,
+    measurements: Option<String>,
+    #[serde(default)]
+    luminaire: Vec<RawLuminaire>,
+}
+
+#[derive(Deserialize)]
+#[serde(deny_unknown_fields)]
+struct RawLuminaire {
+    x: String,
+    y: String,
+    z: String,
+    intensity: String,
+}
+
+/// How the pupil of dark-phase steps was chosen.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, serde::Serialize)]
+#[serde(rename_all = "kebab-case")]
+pub enum DarkPupilBasis {
+    /// The scenario's `dark_pupil`.
+    Stated,
+    /// A rodent in a dark phase: the species' dark-adapted pupil (the scenario did not say).
+    RodentDarkAdapted,
+    /// The same rule as the light phase (people, unless the scenario says otherwise).
+    SameAsLight,
+}
+
+/// One step of the schedule, resolved.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Step {
+    /// Free-text name.
+    pub name: String,
+    /// Its phase, from `phase` or, failing that, from a name that is a phase (any case).
+    pub phase: Option<Phase>,
+    /// Duration.
+    pub duration: Time,
+    /// Indexes (into the scenario's sources) of the sources lit.
+    pub on: Vec<usize>,
+}
+
+/// The schedule, resolved.
+#[derive(Debug, Clone, PartialEq)]
+pub struct ScheduleSpec {
+    /// The receptor.
+    pub pigment: Pigment,
+    /// The model.
+    pub model: Model,
+    /// The steps of one cycle.
+    pub steps: Vec<Step>,
+    /// Cycles.
+    pub repeat: u64,
+}
+
+/// The limit checks, resolved.
+#[derive(Debug, Clone)]
+pub struct LimitsSpec {
+    /// The sets.
+    pub sets: Vec<&'static LimitSet>,
+    /// Exposure duration.
+    pub duration: Time,
+    /// Indexes of the sources to check.
+    pub sources: Vec<usize>,
+    /// Classify into risk groups.
+    pub classify: bool,
+    /// General-lighting assessment distance.
+    pub general_lighting: bool,
+    /// Evaluate the opt-in aphakic hazard.
+    pub aphakic: bool,
+}
+
+/// A housing survey, resolved.
+#[derive(Debug, Clone)]
+pub struct SurveySpec {
+    /// The rack.
+    pub rack: Rack,
+    /// Ceiling luminaires (geometry mode).
+    pub luminaires: Vec<Luminaire>,
+    /// Measured lux readings: the file's text and its path (measured mode).
+    pub measurements: Option<(String, String)>,
+    /// Cage wall transmittance, 0–1.
+    pub cage_transmittance: f64,
+    /// Shading per shelf above, 0–1.
+    pub shelf_shading: f64,
+    /// Spectrum of the room light (shape; scaled per position).
+    pub light_spectrum: Spectrum,
+    /// Spectrum of the dark-phase leak (shape).
+    pub dark_spectrum: Spectrum,
+    /// Uniform dark-phase leak at cage level, lx, when no measured dark readings.
+    pub dark_lux: f64,
+}
+
+/// A scenario, resolved: every later stage reads only these values.
+#[derive(Debug, Clone)]
+pub struct Scenario {
+    /// Short name.
+    pub name: String,
+    /// Title.
+    pub title: String,
+    /// Description.
+    pub description: Option<String>,
+    /// The file (or demo) it came from.
+    pub origin: String,
+    /// Species of the subject.
+    pub species: Species,
+    /// Pigmentation (rodents).
+    pub pigmentation: Option<Pigmentation>,
+    /// The subject's eye with every source placed and every filter, and the light-phase pupil.
+    pub view: RetinaScenario,
+    /// Source ids, one per `view.sources` entry.
+    pub source_ids: Vec<String>,
+    /// The pupil rule of dark-phase steps.
+    pub dark_pupil: PupilRule,
+    /// Why that rule.
+    pub dark_pupil_basis: DarkPupilBasis,
+    /// The exposure schedule.
+    pub schedule: Option<ScheduleSpec>,
+    /// The limit checks.
+    pub limits: Option<LimitsSpec>,
+    /// Guidance sets.
+    pub guidance: Vec<&'static GuidanceSet>,
+    /// Housing survey.
+    pub survey: Option<SurveySpec>,
+}
+
+impl Scenario {
+    /// The view for a step of `phase`: the same sources and filters, with that phase's pupil.
+    pub fn view_for(&self, phase: Option<Phase>) -> RetinaScenario {
+        let mut v = self.view.clone();
+        if phase.is_some_and(Phase::is_dark) {
+            v.pupil = self.dark_pupil;
+        }
+        v
+    }
+}
+
+/// Parses and resolves a scenario file; `origin` names it in errors and `base` is the folder
+/// relative files are read from.
+///
+/// # Errors
+/// [`crate::ErrorKind::InvalidData`] or [`crate::ErrorKind::InvalidInput`] with a
+/// [`crate::base::error::Location`]: the file, the key path and its line.
+pub fn parse_scenario_file(text: &str, origin: &str, base: Option<&Path>) -> Result<Scenario> {
+    let raw: RawScenario = toml::from_str(text).map_err(|e| Error::data(describe(&e, origin)))?;
+    resolve(raw, origin, base).map_err(|e| e.in_file(origin, Some(text)))
+}
+
+fn resolve(raw: RawScenario, origin: &str, base: Option<&Path>) -> Result<Scenario> {
+    let species = Species::parse(&raw.subject.species).map_err(|e| e.key("species").key("subject"))?;
+    let pigmentation = raw
+        .subject
+        .pigmentation
+        .as_deref()
+        .map(Pigmentation::parse)
+        .transpose()
+        .map_err(|e| e.key("pigmentation").key("subject"))?;
+    let source_ids = source_ids(&raw.source)?;
+    let view = build(&raw.subject, &raw.source, &raw.filter, base)?;
+    let (dark_pupil, dark_pupil_basis) = dark_pupil(&raw.subject, species, view.pupil)?;
+    let schedule = raw.schedule.map(|s| schedule(s, species, &source_ids)).transpose()?;
+    let limits = raw.limits.map(|l| limits(l, &source_ids)).transpose()?;
+    let guidance = match raw.guidance {
+        None => Vec::new(),
+        Some(g) => g
+            .sets
+            .iter()
+            .map(|s| find_guidance(s).map_err(|e| e.key("sets").key("guidance")))
+            .collect::<Result<Vec<_>>>()?,
+    };
+    let survey = raw.survey.map(|s| survey(s, base).map_err(|e| e.key("survey"))).transpose()?;
+    Ok(Scenario {
+        name: raw.scenario.name,
+        title: raw.scenario.title,
+        description: raw.scenario.description,
+        origin: origin.to_string(),
+        species,
+        pigmentation,
+        view,
+        source_ids,
+        dark_pupil,
+        dark_pupil_basis,
+        schedule,
+        limits,
+        guidance,
+        survey,
+    })
+}
+
+fn source_ids(sources: &[SourceSpec]) -> Result<Vec<String>> {
+    let mut ids: Vec<String> = Vec::new();
+    for (i, s) in sources.iter().enumerate() {
+        let at = |e: Error| e.key("id").key(&format!("source[{i}]"));
+        let id = s.id.clone().ok_or_else(|| at(Error::input("every source needs an id")))?;
+        if ids.contains(&id) {
+            return Err(at(Error::input(format!("'{id}' is used twice"))));
+        }
+        ids.push(id);
+    }
+    Ok(ids)
+}
+
+fn dark_pupil(
+    subject: &SubjectSpec,
+    species: Species,
+    light: PupilRule,
+) -> Result<(PupilRule, DarkPupilBasis)> {
+    Ok(match &subject.dark_pupil {
+        Some(p) => {
+            (PupilRule::parse(p).map_err(|e| e.key("dark_pupil").key("subject"))?, DarkPupilBasis::Stated)
+        }
+        None if species != Species::Human => (PupilRule::DarkAdapted, DarkPupilBasis::RodentDarkAdapted),
+        None => (light, DarkPupilBasis::SameAsLight),
+    })
+}
+
+fn schedule(s: RawSchedule, species: Species, ids: &[String]) -> Result<ScheduleSpec> {
+    let at = |e: Error, key: &str| e.key(key).key("schedule");
+    let receptor = s.receptor.unwrap_or_else(|| format!("{}-rod", species.name()));
+    let pigment = find_pigment(&receptor).map_err(|e| at(e, "receptor"))?;
+    if pigment.species != species {
+        let msg = format!("{receptor} does not belong to a {}", species.name());
+        return Err(at(Error::input(msg), "receptor"));
+    }
+    let model = s.model.as_deref().map(Model::parse).transpose().map_err(|e| at(e, "model"))?;
+    let mut steps = Vec::with_capacity(s.step.len());
+    for (i, st) in s.step.iter().enumerate() {
+        steps.push(step(st, ids).map_err(|e| at(e, &format!("step[{i}]")))?);
+    }
+    if steps.is_empty() {
+        return Err(at(Error::input("a schedule needs at least one step"), "step"));
+    }
+    let repeat = s.repeat.unwrap_or(1);
+    if repeat == 0 {
+        return Err(at(Error::input("repeat must be at least 1"), "repeat"));
+    }
+    Ok(ScheduleSpec { pigment, model: model.unwrap_or(Model::RateLimited), steps, repeat })
+}
+
+fn step(st: &RawStep, ids: &[String]) -> Result<Step> {
+    let duration = parse_time(&st.duration).map_err(|e| e.key("duration"))?;
+    let d = duration.si();
+    if !(d > 0.0 && d.is_finite()) {
+        return Err(Error::input(format!("{d} s must be above 0 s")).key("duration"));
+    }
+    let phase = match &st.phase {
+        Some(p) => Some(Phase::parse(p).map_err(|e| e.key("phase"))?),
+        None => Phase::parse(&st.name).ok(),
+    };
+    let on = st
+        .on
+        .iter()
+        .map(|id| {
+            ids.iter().position(|x| x == id).ok_or_else(|| {
+                Error::input(format!("no source with id '{id}'; sources: {}", ids.join(", "))).key("on")
+            })
+        })
+        .collect::<Result<Vec<_>>>()?;
+    Ok(Step { name: st.name.clone(), phase, duration, on })
+}
+
+fn limits(l: RawLimits, ids: &[String]) -> Result<LimitsSpec> {
+    let at = |e: Error, key: &str| e.key(key).key("limits");
+    let sets = l.sets.iter().map(|s| find_set(s).map_err(|e| at(e, "sets"))).collect::<Result<Vec<_>>>()?;
+    let duration = parse_time(&l.duration).map_err(|e| at(e, "duration"))?;
+    let sources = match &l.sources {
+        None => (0..ids.len()).collect(),
+        Some(list) => list
+            .iter()
+            .map(|s| {
+                ids.iter().position(|x| x == s).ok_or_else(|| {
+                    at(
+                        Error::input(format!("no source with id '{s}'; sources: {}", ids.join(", "))),
+                        "sources",
+                    )
+                })
+            })
+            .collect::<Result<Vec<_>>>()?,
+    };
+    Ok(LimitsSpec {
+        sets,
+        duration,
+        sources,
+        classify: l.classify,
+        general_lighting: l.general_lighting,
+        aphakic: l.aphakic,
+    })
+}
+
+fn fraction(text: &str, key: &str) -> Result<f64> {
+    let v = parse_number(text).map_err(|e| e.key(key))?;
+    if !(0.0..=1.0).contains(&v) {
+        return Err(Error::input(format!("{v} must be between 0 and 1")).key(key));
+    }
+    Ok(v)
+}
+
+fn survey(s: RawSurvey, base: Option<&Path>) -> Result<SurveySpec> {
+    let len = |t: &str, k: &str| parse_length(t).map(|l| l.si()).map_err(|e| e.key(k));
+    let rack = Rack {
+        shelves: s.shelves,
+        columns: s.columns,
+        x0_m: len(&s.first_column_x, "first_column_x")?,
+        column_spacing_m: len(&s.column_spacing, "column_spacing")?,
+        y_m: len(&s.rack_y, "rack_y")?,
+        bottom_m: len(&s.bottom_shelf, "bottom_shelf")?,
+        shelf_spacing_m: len(&s.shelf_spacing, "shelf_spacing")?,
+    };
+    let luminaires = s
+        .luminaire
+        .iter()
+        .enumerate()
+        .map(|(i, l)| luminaire(l).map_err(|e| e.key(&format!("luminaire[{i}]"))))
+        .collect::<Result<Vec<_>>>()?;
+    let measurements = s.measurements.as_deref().map(|f| read_relative(f, base)).transpose()?;
+    if luminaires.is_empty() == measurements.is_none() {
+        return Err(Error::input(
+            "give either [[survey.luminaire]] tables or a measurements file, not both or neither",
+        ));
+    }
+    let dark_lux = match &s.dark_lux {
+        Some(t) => parse_illuminance(t).map_err(|e| e.key("dark_lux"))?.si(),
+        None => 0.0,
+    };
+    if !(dark_lux >= 0.0 && dark_lux.is_finite()) {
+        return Err(Error::input(format!("{dark_lux} lx must be a finite number ≥ 0 lx")).key("dark_lux"));
+    }
+    let light_spectrum = resolve_spectrum(&s.light_spectrum, base).map_err(|e| e.key("light_spectrum"))?;
+    let dark_spectrum = match &s.dark_spectrum {
+        Some(d) => resolve_spectrum(d, base).map_err(|e| e.key("dark_spectrum"))?,
+        None => light_spectrum.clone(),
+    };
+    Ok(SurveySpec {
+        rack,
+        luminaires,
+        measurements,
+        cage_transmittance: fraction(&s.cage_transmittance, "cage_transmittance")?,
+        shelf_shading: s
+            .shelf_shading
+            .as_deref()
+            .map(|x| fraction(x, "shelf_shading"))
+            .transpose()?
+            .unwrap_or(1.0),
+        light_spectrum,
+        dark_spectrum,
+        dark_lux,
+    })
+}
+
+fn luminaire(l: &RawLuminaire) -> Result<Luminaire> {
+    let len = |t: &str, k: &str| parse_length(t).map(|l| l.si()).map_err(|e| e.key(k));
+    let intensity_cd = parse_luminous_intensity(&l.intensity).map_err(|e| e.key("intensity"))?.si();
+    if !(intensity_cd >= 0.0 && intensity_cd.is_finite()) {
+        return Err(
+            Error::input(format!("{intensity_cd} cd must be a finite number ≥ 0 cd")).key("intensity")
+        );
+    }
+    Ok(Luminaire { x_m: len(&l.x, "x")?, y_m: len(&l.y, "y")?, z_m: len(&l.z, "z")?, intensity_cd })
+}
+
+fn read_relative(file: &str, base: Option<&Path>) -> Result<(String, String)> {
+    let p = crate::scenario::retina::rel(base, file);
+    let text = std::fs::read_to_string(&p)
+        .map_err(|e| Error::input(format!("cannot read {}: {e}", p.display())).key("measurements"))?;
+    Ok((text, p.display().to_string()))
+}
