@@ -133,6 +133,16 @@ pub fn terminal(all: &[Assessment], colour: bool) -> String {
                 let _ = writeln!(o, "{}", table(&["quantity", "EDI", "DER"], rows));
             }
         }
+        if let Some(line) = pupil_line(a) {
+            let _ = writeln!(o, "\n{line}");
+        }
+        if !a.steps.is_empty() {
+            let _ = writeln!(
+                o,
+                "\nSchedule steps (one cycle): what is lit, through every filter, with the pupil of the step's phase"
+            );
+            let _ = writeln!(o, "{}", table(&STEP_HEADER, step_rows(a)));
+        }
         if let Some(b) = &a.bleach {
             let _ = writeln!(o, "\nPigment ({}, {} model)", b.receptor, b.model.name());
             let rows = b
@@ -292,6 +302,63 @@ pub fn terminal(all: &[Assessment], colour: bool) -> String {
     o
 }
 
+const STEP_HEADER: [&str; 8] = [
+    "step",
+    "phase",
+    "lit",
+    "pupil",
+    "room lx",
+    "lx at eye",
+    "melanopic EDI / rod R*/rod/s",
+    "pigment level",
+];
+
+/// One row per schedule step of one cycle.
+fn step_rows(a: &Assessment) -> Vec<Vec<String>> {
+    let unit = a.bleach.as_ref().map_or("", |b| b.level_unit.symbol());
+    a.steps
+        .iter()
+        .map(|s| {
+            vec![
+                s.name.clone(),
+                s.phase.map_or("— (none)".into(), |p| p.name().to_string()),
+                if s.on.is_empty() { "nothing".into() } else { s.on.join(" + ") },
+                format!("{} mm", num(s.pupil.diameter.get::<uom::si::length::millimeter>())),
+                num(s.room_illuminance.get::<uom::si::illuminance::lux>()),
+                num(s.illuminance.get::<uom::si::illuminance::lux>()),
+                match (s.melanopic_edi, s.rod_rate) {
+                    (Some(e), _) => format!("{} lx mEDI", num(e.get::<uom::si::illuminance::lux>())),
+                    (None, Some(r)) => format!("{} R*/rod/s", num(r.get::<uom::si::frequency::hertz>())),
+                    _ => "—".into(),
+                },
+                format!("{} {unit}", num(s.level)),
+            ]
+        })
+        .collect()
+}
+
+/// The pupil rule of each phase, in words.
+fn pupil_line(a: &Assessment) -> Option<String> {
+    use retidose::scenario::file::DarkPupilBasis;
+    let p = a.pupils.as_ref()?;
+    let mm = |x: &retidose::retina::pupil::Pupil| num(x.diameter.get::<uom::si::length::millimeter>());
+    let mut line =
+        format!("Pupil: {} mm in the light phase and unphased steps ({})", mm(&p.light), p.light.basis);
+    if let Some(d) = &p.dark {
+        let why = match p.dark_basis {
+            DarkPupilBasis::Stated => "the scenario's dark_pupil",
+            DarkPupilBasis::RodentDarkAdapted => {
+                "a rodent in the dark phase: the dark-adapted pupil, unless [subject] gives dark_pupil"
+            }
+            DarkPupilBasis::SameAsLight => {
+                "the same rule as the light phase, unless [subject] gives dark_pupil"
+            }
+        };
+        let _ = write!(line, "; {} mm in dark-phase steps ({}; {why})", mm(d), d.basis);
+    }
+    Some(line)
+}
+
 /// Where a guidance comparison was made, in words.
 fn basis_text(g: &GuidanceRow) -> String {
     match &g.basis {
@@ -355,6 +422,20 @@ fn one_json(a: &Assessment) -> Value {
         "species_alpha_opic": a.retina.as_ref().map(|r| r.species_opic.iter().map(|c| json!({
             "channel": c.channel, "photon_irradiance_per_m2_s": c.photon_irradiance.si(), "equivalent_daylight_lx": c.equivalent_daylight.si(),
         })).collect::<Vec<_>>()),
+        "pupils": a.pupils.as_ref().map(|p| json!({
+            "light_mm": p.light.diameter.get::<uom::si::length::millimeter>(), "light_basis": p.light.basis,
+            "dark_mm": p.dark.as_ref().map(|d| d.diameter.get::<uom::si::length::millimeter>()),
+            "dark_basis": p.dark.as_ref().map(|d| d.basis.clone()), "dark_rule": p.dark_basis,
+        })),
+        "steps": a.steps.iter().map(|s| json!({
+            "name": s.name, "phase": s.phase, "on": s.on, "duration_s": s.duration.si(),
+            "pupil_mm": s.pupil.diameter.get::<uom::si::length::millimeter>(),
+            "room_illuminance_lx": s.room_illuminance.get::<uom::si::illuminance::lux>(),
+            "illuminance_at_eye_lx": s.illuminance.get::<uom::si::illuminance::lux>(),
+            "melanopic_edi_lx": s.melanopic_edi.map(|e| e.get::<uom::si::illuminance::lux>()),
+            "rod_r_star_per_rod_per_s": s.rod_rate.map(|r| r.get::<uom::si::frequency::hertz>()),
+            "pigment_level": s.level,
+        })).collect::<Vec<_>>(),
         "bleach": a.bleach.as_ref().map(|b| json!({
             "receptor": b.receptor, "model": b.model.name(),
             "phases": b.phases.iter().map(|p| json!({"name": p.name, "level": p.level, "end_bleached": p.end, "steady_state_bleached": p.steady_state})).collect::<Vec<_>>(),
@@ -468,6 +549,21 @@ pub fn markdown(all: &[Assessment]) -> String {
         }
         for c in &a.cautions {
             let _ = writeln!(o, "> **Caution.** {}\n", md(c));
+        }
+        if let Some(line) = pupil_line(a) {
+            let _ = writeln!(o, "{}\n", md(&line));
+        }
+        if !a.steps.is_empty() {
+            let _ = writeln!(
+                o,
+                "## Schedule steps (one cycle)\n\n| {} |\n|{}",
+                STEP_HEADER.join(" | "),
+                "---|".repeat(STEP_HEADER.len())
+            );
+            for r in step_rows(a) {
+                let _ = writeln!(o, "| {} |", r.iter().map(|c| md(c)).collect::<Vec<_>>().join(" | "));
+            }
+            let _ = writeln!(o);
         }
         if let Some(b) = &a.bleach {
             let _ = writeln!(
@@ -802,6 +898,24 @@ pub fn html(all: &[Assessment]) -> String {
                 esc(name),
                 svg_lines("spectrum and weightings", &series, "wavelength, nm", "relative", false)
             );
+        }
+        if let Some(line) = pupil_line(a) {
+            let _ = write!(o, "<p>{}</p>", esc(&line));
+        }
+        if !a.steps.is_empty() {
+            o.push_str("<h2>Schedule steps (one cycle)</h2><table><tr>");
+            for h in STEP_HEADER {
+                let _ = write!(o, "<th>{}</th>", esc(h));
+            }
+            o.push_str("</tr>");
+            for r in step_rows(a) {
+                let _ = write!(
+                    o,
+                    "<tr>{}</tr>",
+                    r.iter().map(|c| format!("<td>{}</td>", esc(c))).collect::<String>()
+                );
+            }
+            o.push_str("</table>");
         }
         if let Some(b) = &a.bleach {
             let _ = write!(
