@@ -24,6 +24,7 @@ use crate::limits::report::{LIMITS_CAUTION, LimitsAssessment, LimitsRequest, ass
 use crate::pigment::bleach::{BleachReport, assess as bleach_assess};
 use crate::pigment::kinetics::{LevelUnit, Model, Pigment, find_pigment};
 use crate::pigment::schedule::Schedule;
+use crate::retina::catch::{SpeciesOpic, species_alpha_opic};
 use crate::retina::eye::Species;
 use crate::retina::pupil::Pupil;
 use crate::retina::report::{RetinaReport, SourceAtEye, assess_retina};
@@ -31,7 +32,7 @@ use crate::scenario::file::{DarkPupilBasis, LimitsSpec, Scenario, ScheduleSpec, 
 use crate::scenario::{Phase, Pigmentation};
 use crate::spectrum::Spectrum;
 use crate::spectrum::photometry::photopic;
-use crate::weighting::alpha_opic::alpha_opic;
+use crate::weighting::alpha_opic::{AlphaOpicValue, alpha_opic};
 
 pub use crate::scenario::file::parse_scenario_file;
 
@@ -67,7 +68,7 @@ pub const CAUTIONS: [&str; 3] = [
 ];
 
 /// A cited document used by the assessment.
-#[derive(Debug, Clone, PartialEq)]
+#[derive(Debug, Clone, PartialEq, serde::Serialize)]
 pub struct Provenance {
     /// What it is used for.
     pub role: String,
@@ -80,7 +81,7 @@ pub struct Provenance {
 }
 
 /// A housing survey's results with its summary.
-#[derive(Debug, Clone, PartialEq)]
+#[derive(Debug, Clone, PartialEq, serde::Serialize)]
 pub struct SurveyResult {
     /// Shelves × columns.
     pub shelves: usize,
@@ -97,7 +98,7 @@ pub struct SurveyResult {
 }
 
 /// What is lit in one step of the schedule (one cycle), from the one light path.
-#[derive(Debug, Clone, PartialEq)]
+#[derive(Debug, Clone, PartialEq, serde::Serialize)]
 pub struct StepLight {
     /// Free-text name.
     pub name: String,
@@ -116,6 +117,10 @@ pub struct StepLight {
     pub illuminance: Illuminance,
     /// CIE S 026 melanopic EDI at the eye after every filter (people).
     pub melanopic_edi: Option<Illuminance>,
+    /// CIE S 026 α-opic quantities of the lit sources together (people).
+    pub alpha_opic: Vec<AlphaOpicValue>,
+    /// Species α-opic quantities of the lit sources together (rodents).
+    pub species_opic: Vec<SpeciesOpic>,
     /// Rod R* per rod per second (the sum over the lit sources).
     pub rod_rate: Option<Frequency>,
     /// The level the pigment model receives, in its unit (the sum over the lit sources).
@@ -123,7 +128,8 @@ pub struct StepLight {
 }
 
 /// Where a guidance comparison was made.
-#[derive(Debug, Clone, PartialEq)]
+#[derive(Debug, Clone, PartialEq, serde::Serialize)]
+#[serde(rename_all = "kebab-case")]
 pub enum GuidanceBasis {
     /// One schedule step.
     Step(String),
@@ -137,7 +143,7 @@ pub enum GuidanceBasis {
 }
 
 /// One guidance comparison.
-#[derive(Debug, Clone, PartialEq)]
+#[derive(Debug, Clone, PartialEq, serde::Serialize)]
 pub struct GuidanceRow {
     /// Step or survey.
     pub basis: GuidanceBasis,
@@ -148,7 +154,7 @@ pub struct GuidanceRow {
 }
 
 /// The pupils used, and why.
-#[derive(Debug, Clone, PartialEq)]
+#[derive(Debug, Clone, PartialEq, serde::Serialize)]
 pub struct PupilUse {
     /// Light-phase (and unphased) steps, the retina section and the limits.
     pub light: Pupil,
@@ -159,7 +165,7 @@ pub struct PupilUse {
 }
 
 /// The one assessment structure.
-#[derive(Debug, Clone)]
+#[derive(Debug, Clone, serde::Serialize)]
 pub struct Assessment {
     /// Scenario name.
     pub name: String,
@@ -329,17 +335,15 @@ fn step_light(s: &Scenario, paths: &Paths, sc: &ScheduleSpec, st: &Step) -> Resu
     let sum_lux = |list: &[Spectrum]| -> Result<f64> {
         if list.is_empty() { Ok(0.0) } else { Ok(photopic(&Spectrum::sum(list)?).raw) }
     };
-    let melanopic = if s.species == Species::Human && !at_eye.is_empty() {
-        alpha_opic(&Spectrum::sum(&at_eye)?)
-            .iter()
-            .find(|a| a.name == "melanopic")
-            .and_then(|a| a.edi)
-            .map(|e| e.si_value())
-    } else if s.species == Species::Human {
-        Some(0.0)
-    } else {
-        None
+    let human = s.species == Species::Human;
+    let (opic, species_opic) = match (at_eye.is_empty(), human) {
+        (true, _) => (Vec::new(), Vec::new()),
+        (false, true) => (alpha_opic(&Spectrum::sum(&at_eye)?), Vec::new()),
+        (false, false) => (Vec::new(), species_alpha_opic(&Spectrum::sum(&at_eye)?, &s.view.eye)),
     };
+    let melanopic = human.then(|| {
+        opic.iter().find(|a| a.name == "melanopic").and_then(|a| a.edi).map_or(0.0, |e| e.si_value())
+    });
     let rod: Option<f64> = lit.iter().map(|x| x.level(LevelUnit::IsomerisationsPerSecond)).sum();
     Ok(StepLight {
         name: st.name.clone(),
@@ -350,6 +354,8 @@ fn step_light(s: &Scenario, paths: &Paths, sc: &ScheduleSpec, st: &Step) -> Resu
         room_illuminance: Illuminance::new::<lux>(sum_lux(&room)?),
         illuminance: Illuminance::new::<lux>(sum_lux(&at_eye)?),
         melanopic_edi: melanopic.map(Illuminance::new::<lux>),
+        alpha_opic: opic,
+        species_opic,
         rod_rate: rod.map(Frequency::new::<hertz>),
         level,
     })
@@ -376,6 +382,8 @@ fn dark_step(s: &Scenario, _sc: &ScheduleSpec, st: &Step) -> Result<StepLight> {
         room_illuminance: Illuminance::new::<lux>(0.0),
         illuminance: Illuminance::new::<lux>(0.0),
         melanopic_edi: (s.species == Species::Human).then(|| Illuminance::new::<lux>(0.0)),
+        alpha_opic: Vec::new(),
+        species_opic: Vec::new(),
         rod_rate: Some(Frequency::new::<hertz>(0.0)),
         level: 0.0,
     })

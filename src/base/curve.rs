@@ -19,7 +19,7 @@
 use crate::base::error::{Error, Result};
 
 /// A function of wavelength sampled at strictly increasing nodes (nm), linear between nodes.
-#[derive(Debug, Clone, PartialEq)]
+#[derive(Debug, Clone, PartialEq, serde::Serialize)]
 pub struct Curve {
     wavelength_nm: Vec<f64>,
     value: Vec<f64>,

@@ -88,9 +88,6 @@ const POWER: &[Unit] = &[
     Unit { spellings: &["uW", "µW", "microwatt", "microwatts"], to_si: 1e-6 },
 ];
 
-const TROLAND: &[Unit] =
-    &[Unit { spellings: &["td", "Td", "troland", "trolands", "scottd", "phottd"], to_si: 1.0 }];
-
 const TROLAND_SECONDS: &[Unit] =
     &[Unit { spellings: &["td s", "td*s", "tds", "scottds", "phottds", "scottd*s", "phottd*s"], to_si: 1.0 }];
 
@@ -330,17 +327,6 @@ pub fn parse_typed_trolands(text: &str) -> Result<(f64, TrolandKind)> {
     Ok((value, kind))
 }
 
-/// Parses a troland value in the built-in pigment table, `"20000 td"`, where the receptor's
-/// `level_unit` already says which trolands are meant (`scot td` and `phot td` are accepted as
-/// spellings too, but their kind is not checked). Levels given by users go through
-/// [`parse_typed_trolands`], which requires the kind.
-///
-/// # Errors
-/// As [`parse_length`].
-pub fn parse_trolands(text: &str) -> Result<f64> {
-    parse_in(text, "retinal illuminance", TROLAND)
-}
-
 /// Parses a retinal exposure in troland-seconds, `"1e7 td s"`.
 ///
 /// # Errors
@@ -494,7 +480,7 @@ mod tests {
         assert!((parse_area("2.4 µm²").unwrap().si() - 2.4e-12).abs() < 1e-24);
         assert_eq!(parse_number("0.35").unwrap(), 0.35);
         assert!(parse_number("0.35 mm").is_err());
-        assert_eq!(parse_trolands("2e4 scot td").unwrap(), 2e4);
+        assert_eq!(parse_typed_trolands("2e4 scot td").unwrap().0, 2e4);
         assert_eq!(parse_troland_seconds("1e7 td·s").unwrap(), 1e7);
         assert!((parse_rate("0.085 /min").unwrap().si() - 0.085 / 60.0).abs() < 1e-15);
         assert_eq!(parse_isomerisation_rate("1e4 R*/rod/s").unwrap().si(), 1e4);

@@ -57,7 +57,7 @@ pub enum AppliesTo {
 }
 
 /// Evidence shown beside the rules (not a limit).
-#[derive(Debug, Clone, PartialEq, Deserialize)]
+#[derive(Debug, Clone, PartialEq, Deserialize, serde::Serialize)]
 #[serde(deny_unknown_fields)]
 pub struct Evidence {
     /// What it is about.
@@ -91,7 +91,7 @@ pub struct GuidanceSet {
 }
 
 /// One flag raised (or not) by a rule.
-#[derive(Debug, Clone, PartialEq)]
+#[derive(Debug, Clone, PartialEq, serde::Serialize)]
 pub struct Flag {
     /// Set id.
     pub set: String,

@@ -41,7 +41,7 @@ pub struct Luminaire {
 }
 
 /// One cage position.
-#[derive(Debug, Clone, Copy, PartialEq)]
+#[derive(Debug, Clone, Copy, PartialEq, serde::Serialize)]
 pub struct Position {
     /// Shelf number, 1 = bottom.
     pub shelf: usize,
@@ -165,7 +165,7 @@ pub fn per_lux(
 }
 
 /// Results at one position.
-#[derive(Debug, Clone, PartialEq)]
+#[derive(Debug, Clone, PartialEq, serde::Serialize)]
 pub struct PositionResult {
     /// The position.
     pub position: Position,

@@ -42,7 +42,8 @@ pub struct Exposure<'a> {
 }
 
 /// The outcome for one hazard.
-#[derive(Debug, Clone, PartialEq)]
+#[derive(Debug, Clone, PartialEq, serde::Serialize)]
+#[serde(rename_all = "kebab-case")]
 pub enum Verdict {
     /// Exposure ≤ limit.
     Within,
@@ -67,7 +68,8 @@ impl Verdict {
 }
 
 /// The longest permissible duration.
-#[derive(Debug, Clone, Copy, PartialEq)]
+#[derive(Debug, Clone, Copy, PartialEq, serde::Serialize)]
+#[serde(rename_all = "kebab-case")]
 pub enum TMax {
     /// The limit is reached after this many seconds.
     Seconds(f64),
@@ -78,7 +80,7 @@ pub enum TMax {
 }
 
 /// The evaluation of one hazard.
-#[derive(Debug, Clone, PartialEq)]
+#[derive(Debug, Clone, PartialEq, serde::Serialize)]
 pub struct HazardResult {
     /// Hazard id.
     pub id: String,

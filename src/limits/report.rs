@@ -34,7 +34,7 @@ pub struct LimitsRequest<'a> {
 }
 
 /// The assessment.
-#[derive(Debug, Clone)]
+#[derive(Debug, Clone, serde::Serialize)]
 pub struct LimitsAssessment {
     /// Set id.
     pub set_id: String,

@@ -24,7 +24,8 @@ use crate::spectrum::photometry::photopic;
 use crate::spectrum::{Measure, Spectrum};
 
 /// IEC 62471 risk groups, in increasing order of hazard.
-#[derive(Debug, Clone, Copy, PartialEq, Eq, PartialOrd, Ord)]
+#[derive(Debug, Clone, Copy, PartialEq, Eq, PartialOrd, Ord, serde::Serialize)]
+#[serde(rename_all = "kebab-case")]
 pub enum RiskGroup {
     /// No photobiological hazard.
     Exempt,
@@ -49,7 +50,7 @@ impl RiskGroup {
 }
 
 /// The group of one hazard.
-#[derive(Debug, Clone, PartialEq)]
+#[derive(Debug, Clone, PartialEq, serde::Serialize)]
 pub struct HazardGroup {
     /// Hazard id.
     pub id: String,
@@ -100,7 +101,7 @@ impl MovableSource {
 }
 
 /// A risk-group classification.
-#[derive(Debug, Clone, PartialEq)]
+#[derive(Debug, Clone, PartialEq, serde::Serialize)]
 pub struct Classification {
     /// Assessment distance.
     pub distance: Length,

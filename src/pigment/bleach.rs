@@ -9,7 +9,7 @@ use crate::pigment::kinetics::{
 use crate::pigment::schedule::{Schedule, Summary, run, sample};
 
 /// One named phase of the schedule (all steps of that name), for the report.
-#[derive(Debug, Clone, PartialEq)]
+#[derive(Debug, Clone, PartialEq, serde::Serialize)]
 pub struct PhaseRow {
     /// Phase name.
     pub name: String,
@@ -27,7 +27,7 @@ pub struct PhaseRow {
 
 /// Regeneration after one lights-off (the end of a step followed by a dimmer one), under the
 /// conditions that follow it, leaks included, until the light rises again.
-#[derive(Debug, Clone, PartialEq)]
+#[derive(Debug, Clone, PartialEq, serde::Serialize)]
 pub struct Recovery {
     /// The step whose end is the lights-off.
     pub after_step: String,
@@ -155,7 +155,7 @@ fn recoveries(model: Model, c: Constants, schedule: &Schedule, b0: f64) -> (usiz
 }
 
 /// A rod-threshold estimate after the end of the schedule (log₁₀ elevation over time).
-#[derive(Debug, Clone, PartialEq)]
+#[derive(Debug, Clone, PartialEq, serde::Serialize)]
 pub struct Threshold {
     /// How it was estimated.
     pub basis: String,
@@ -166,7 +166,7 @@ pub struct Threshold {
 }
 
 /// The assessment.
-#[derive(Debug, Clone, PartialEq)]
+#[derive(Debug, Clone, PartialEq, serde::Serialize)]
 pub struct BleachReport {
     /// Receptor id.
     pub receptor: String,

@@ -20,12 +20,14 @@ use serde::Deserialize;
 use crate::base::error::{Error, Result};
 use crate::base::quantity::{Frequency, SiValue, Time};
 use crate::base::units::{
-    parse_isomerisation_rate, parse_number, parse_rate, parse_time, parse_troland_seconds, parse_trolands,
+    parse_isomerisation_rate, parse_number, parse_rate, parse_time, parse_troland_seconds,
+    parse_typed_trolands,
 };
 use crate::retina::eye::{Param, RawParam, Species, Status};
 
 /// Which kinetic model.
-#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+#[derive(Debug, Clone, Copy, PartialEq, Eq, serde::Serialize)]
+#[serde(rename_all = "kebab-case")]
 pub enum Model {
     /// First-order (exponential) regeneration.
     Rushton,
@@ -56,7 +58,8 @@ impl Model {
 }
 
 /// How a light level is expressed for a receptor.
-#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+#[derive(Debug, Clone, Copy, PartialEq, Eq, serde::Serialize)]
+#[serde(rename_all = "kebab-case")]
 pub enum LevelUnit {
     /// Scotopic trolands (human rods).
     ScotopicTrolands,
@@ -185,7 +188,7 @@ impl Pigment {
 }
 
 /// The model constants in SI, for the hot loops.
-#[derive(Debug, Clone, Copy, PartialEq)]
+#[derive(Debug, Clone, Copy, PartialEq, serde::Serialize)]
 pub struct Constants {
     /// Rushton τ₀, s.
     pub tau0_s: f64,
@@ -460,7 +463,7 @@ pub fn parse_pigments(text: &str, origin: &str) -> Result<PigmentTable> {
             LevelUnit::IsomerisationsPerSecond => {
                 param(p, &at(k), |t| parse_isomerisation_rate(t).map(|f| f.si()))
             }
-            _ => param(p, &at(k), parse_trolands),
+            unit => param(p, &at(k), |t| typed_level(t, unit)),
         };
         let p = Pigment {
             id: r.id.clone(),
@@ -468,7 +471,7 @@ pub fn parse_pigments(text: &str, origin: &str) -> Result<PigmentTable> {
                 .map_err(|e| Error::data(format!("{}: {e}", at("species"))))?,
             level_unit,
             q_e: r.q_e.as_ref().map(|p| param(p, &at("q_e"), parse_troland_seconds)).transpose()?,
-            i0: r.i0.as_ref().map(|p| param(p, &at("i0"), parse_trolands)).transpose()?,
+            i0: r.i0.as_ref().map(|p| param(p, &at("i0"), |t| typed_level(t, level_unit))).transpose()?,
             pigment_per_cell: r
                 .pigment_per_cell
                 .as_ref()
@@ -552,6 +555,22 @@ static TABLE: std::sync::LazyLock<PigmentTable> = std::sync::LazyLock::new(|| {
 /// The built-in pigment parameters.
 pub fn builtin_pigments() -> &'static PigmentTable {
     &TABLE
+}
+
+/// A level in trolands of the kind `unit` says (`scot td` for rods, `phot td` for cones).
+fn typed_level(text: &str, unit: LevelUnit) -> Result<f64> {
+    let (v, kind) = parse_typed_trolands(text)?;
+    let expected = match unit {
+        LevelUnit::ScotopicTrolands => crate::base::units::TrolandKind::Scotopic,
+        LevelUnit::PhotopicTrolands => crate::base::units::TrolandKind::Photopic,
+        LevelUnit::IsomerisationsPerSecond => {
+            return Err(Error::data(format!("'{text}': this receptor's levels are R*/rod/s")));
+        }
+    };
+    if kind != expected {
+        return Err(Error::data(format!("'{text}': this receptor's levels are {}", unit.symbol())));
+    }
+    Ok(v)
 }
 
 /// A built-in receptor by id.

@@ -125,7 +125,7 @@ pub fn run(
 
 /// Summary of a run: end, peak (steps are monotone, so the peak is at a step boundary), and the
 /// time-weighted mean bleached fraction.
-#[derive(Debug, Clone, Copy, PartialEq)]
+#[derive(Debug, Clone, Copy, PartialEq, serde::Serialize)]
 pub struct Summary {
     /// Bleached fraction at the end.
     pub end: f64,

@@ -51,7 +51,7 @@ pub fn receptor_weighting(eye: &Eye, receptor: &Receptor, age: Option<Time>) -> 
 }
 
 /// R*/rod/s from scotopic trolands by a published factor (human rods).
-#[derive(Debug, Clone, PartialEq)]
+#[derive(Debug, Clone, PartialEq, serde::Serialize)]
 pub struct TrolandRoute {
     /// Name of the factor (`lamb_pugh_2006`, `makous`).
     pub name: String,
@@ -64,7 +64,7 @@ pub struct TrolandRoute {
 }
 
 /// The catch of one receptor class.
-#[derive(Debug, Clone, PartialEq)]
+#[derive(Debug, Clone, PartialEq, serde::Serialize)]
 pub struct ReceptorCatch {
     /// Receptor name.
     pub receptor: String,
@@ -136,7 +136,7 @@ pub fn receptor_catch(
 }
 
 /// A rodent α-opic quantity (retidose's method, by analogy with CIE S 026; not a CIE quantity).
-#[derive(Debug, Clone, PartialEq)]
+#[derive(Debug, Clone, PartialEq, serde::Serialize)]
 pub struct SpeciesOpic {
     /// Channel: `rod`, `m-cone`, `uv-cone` or `melanopsin`.
     pub channel: String,

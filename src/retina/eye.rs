@@ -15,7 +15,8 @@ use crate::base::units::{parse_area, parse_length, parse_number, parse_time};
 use crate::weighting::lens::human_media_transmittance;
 
 /// The species the tool has eye models for.
-#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+#[derive(Debug, Clone, Copy, PartialEq, Eq, serde::Serialize)]
+#[serde(rename_all = "kebab-case")]
 pub enum Species {
     /// Homo sapiens.
     Human,
@@ -50,7 +51,8 @@ impl Species {
 }
 
 /// How far a parameter value can be trusted.
-#[derive(Debug, Clone, Copy, PartialEq, Eq)]
+#[derive(Debug, Clone, Copy, PartialEq, Eq, serde::Serialize)]
+#[serde(rename_all = "kebab-case")]
 pub enum Status {
     /// In the cited source.
     Confirmed,

@@ -38,7 +38,7 @@ pub fn stiles_crawford_area_mm2(d_mm: f64, rho_per_mm2: f64) -> f64 {
 }
 
 /// Retinal illuminances of a seen luminance through a pupil.
-#[derive(Debug, Clone, Copy, PartialEq)]
+#[derive(Debug, Clone, Copy, PartialEq, serde::Serialize)]
 pub struct Trolands {
     /// Photopic retinal illuminance.
     pub photopic: RetinalIlluminance,

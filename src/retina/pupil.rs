@@ -83,7 +83,7 @@ pub struct Adaptation {
 }
 
 /// The pupil in use, with how it was chosen.
-#[derive(Debug, Clone, PartialEq)]
+#[derive(Debug, Clone, PartialEq, serde::Serialize)]
 pub struct Pupil {
     /// Diameter.
     pub diameter: Length,

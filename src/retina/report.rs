@@ -38,12 +38,16 @@ pub struct RetinaScenario {
 }
 
 /// What the eye receives from one source.
-#[derive(Debug, Clone, PartialEq)]
+#[derive(Debug, Clone, PartialEq, serde::Serialize)]
 pub struct SourceAtEye {
     /// Source name.
     pub label: String,
     /// Corneal spectral irradiance after every filter.
     pub corneal_irradiance: Spectrum,
+    /// CIE S 026 α-opic quantities of this source alone (human eyes).
+    pub human_alpha_opic: Vec<AlphaOpicValue>,
+    /// Species α-opic quantities of this source alone (rodent eyes).
+    pub species_opic: Vec<SpeciesOpic>,
     /// Corneal irradiance (radiant total).
     pub irradiance: Radiometric,
     /// Corneal photon irradiance.
@@ -82,7 +86,7 @@ impl SourceAtEye {
 }
 
 /// Retinal quantities of one source.
-#[derive(Debug, Clone, PartialEq)]
+#[derive(Debug, Clone, PartialEq, serde::Serialize)]
 pub struct Retinal {
     /// Retinal spectral irradiance.
     pub spectral_irradiance: Spectrum,
@@ -99,7 +103,7 @@ pub struct Retinal {
 }
 
 /// The whole assessment.
-#[derive(Debug, Clone)]
+#[derive(Debug, Clone, serde::Serialize)]
 pub struct RetinaReport {
     /// Species of the eye.
     pub species: Species,
@@ -184,6 +188,8 @@ pub fn assess_retina(s: &RetinaScenario) -> Result<RetinaReport> {
         sources.push(SourceAtEye {
             label: src.spectrum.label().to_string(),
             corneal_irradiance: c.irradiance.clone(),
+            human_alpha_opic: if human { alpha_opic(&c.irradiance) } else { Vec::new() },
+            species_opic: if human { Vec::new() } else { species_alpha_opic(&c.irradiance, eye) },
             irradiance: c
                 .irradiance
                 .radiometric_total()

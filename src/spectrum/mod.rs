@@ -110,7 +110,8 @@ impl Basis {
 }
 
 /// A radiometric total of a spectrum, typed by what the spectrum measures.
-#[derive(Debug, Clone, Copy, PartialEq)]
+#[derive(Debug, Clone, Copy, PartialEq, serde::Serialize)]
+#[serde(rename_all = "kebab-case")]
 pub enum Radiometric {
     /// Radiance.
     Radiance(Radiance),
@@ -147,7 +148,8 @@ impl Radiometric {
 }
 
 /// A photon-count total of a spectrum, typed by what the spectrum measures.
-#[derive(Debug, Clone, Copy, PartialEq)]
+#[derive(Debug, Clone, Copy, PartialEq, serde::Serialize)]
+#[serde(rename_all = "kebab-case")]
 pub enum PhotonTotal {
     /// Photon radiance.
     Radiance(PhotonRadiance),
@@ -229,7 +231,7 @@ impl Coverage {
 }
 
 /// A sampled spectrum with its declared measure and basis.
-#[derive(Debug, Clone, PartialEq)]
+#[derive(Debug, Clone, PartialEq, serde::Serialize)]
 pub struct Spectrum {
     curve: Curve,
     measure: Measure,

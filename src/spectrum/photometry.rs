@@ -20,7 +20,8 @@ use crate::base::quantity::{
 use crate::spectrum::{Coverage, Measure, Spectrum};
 
 /// A photometric quantity, typed by what the spectrum measures.
-#[derive(Debug, Clone, Copy, PartialEq)]
+#[derive(Debug, Clone, Copy, PartialEq, serde::Serialize)]
+#[serde(rename_all = "kebab-case")]
 pub enum Photometric {
     /// Luminance, cd/m².
     Luminance(Luminance),
@@ -62,7 +63,7 @@ impl Photometric {
 }
 
 /// A photometric result with the coverage of the luminous efficiency function.
-#[derive(Debug, Clone, Copy, PartialEq)]
+#[derive(Debug, Clone, Copy, PartialEq, serde::Serialize)]
 pub struct PhotometricResult {
     /// The luminous quantity; `None` for a relative spectrum.
     pub value: Option<Photometric>,

@@ -133,7 +133,7 @@ fn melanopic_reconstruction(lambda_max_nm: f64, age: f64, lo: f64, hi: f64, step
 }
 
 /// The α-opic quantities of one spectrum for one photoreceptor type.
-#[derive(Debug, Clone)]
+#[derive(Debug, Clone, PartialEq, serde::Serialize)]
 pub struct AlphaOpicValue {
     /// Which function (S 026 name).
     pub name: String,
