@@ -223,54 +223,14 @@ pub fn assess(
         return Err(Error::input(format!("the starting bleached fraction {b0} must be between 0 and 1")));
     }
     let c = pigment.constants();
-    let mut phases: Vec<PhaseRow> = schedule
-        .names
-        .iter()
-        .map(|n| PhaseRow {
-            name: n.clone(),
-            steps: 0,
-            level: 0.0,
-            end: 0.0,
-            max_end: 0.0,
-            steady_state: 0.0,
-        })
-        .collect();
-    let (mut peak, mut peak_s, mut area) = (b0, 0.0, 0.0);
-    let end = run(model, c, schedule, b0, |o| {
-        let s = &schedule.steps[o.index];
-        let step_end = o.start_s + s.duration_s;
-        let row = &mut phases[s.name];
-        row.steps += 1;
-        row.level = pigment.level_of_rate(s.rate_per_s);
-        row.end = o.b_end;
-        row.max_end = row.max_end.max(o.b_end);
-        row.steady_state = o.steady_state;
-        if o.b_end > peak {
-            peak = o.b_end;
-            peak_s = step_end;
-        }
-        area += o.integral_s;
-    });
-    let summary = Summary { end, peak, peak_s, mean: area / schedule.total_s() };
+    let (phases, summary) = phases_and_summary(pigment, model, schedule, b0);
     let (lights_off, recoveries) = recoveries(model, c, schedule, b0);
     let human_rod = pigment.species == crate::retina::eye::Species::Human && pigment.id.ends_with("rod");
     let thresholds = match recoveries.last() {
         Some(r) if human_rod => threshold_estimates(model, c, r.bleached_at_start),
         _ => Vec::new(),
     };
-    let max_level = schedule.steps.iter().map(|s| pigment.level_of_rate(s.rate_per_s)).fold(0.0, f64::max);
-    let saturation = pigment.saturating_level.as_ref().map(|sat| {
-        let u = pigment.level_unit.symbol();
-        let (verb, tail) = if max_level >= sat.value {
-            ("reaches", ": rods are saturated during it")
-        } else {
-            ("is below", "")
-        };
-        format!(
-            "the brightest step ({max_level:.4e} {u}) {verb} the rod saturation level ({:.4e} {u}, {}){tail}",
-            sat.value, sat.status
-        )
-    });
+    let saturation = saturation_text(pigment, schedule);
     let mut notes = vec![DEFAULT_MODEL_REASON.to_string()];
     let memo = pigment.from_memory();
     if !memo.is_empty() {
@@ -300,6 +260,61 @@ pub fn assess(
         time_course: samples.map(|n| sample(model, c, schedule, b0, n)).unwrap_or_default(),
         saturation,
         notes,
+    })
+}
+
+/// One pass over the schedule: the rows per named phase and the end, peak and mean.
+fn phases_and_summary(
+    pigment: &Pigment,
+    model: Model,
+    schedule: &Schedule,
+    b0: f64,
+) -> (Vec<PhaseRow>, Summary) {
+    let c = pigment.constants();
+    let mut phases: Vec<PhaseRow> = schedule
+        .names
+        .iter()
+        .map(|n| PhaseRow {
+            name: n.clone(),
+            steps: 0,
+            level: 0.0,
+            end: 0.0,
+            max_end: 0.0,
+            steady_state: 0.0,
+        })
+        .collect();
+    let (mut peak, mut peak_s, mut area) = (b0, 0.0, 0.0);
+    let end = run(model, c, schedule, b0, |o| {
+        let s = &schedule.steps[o.index];
+        let row = &mut phases[s.name];
+        row.steps += 1;
+        row.level = pigment.level_of_rate(s.rate_per_s);
+        row.end = o.b_end;
+        row.max_end = row.max_end.max(o.b_end);
+        row.steady_state = o.steady_state;
+        if o.b_end > peak {
+            peak = o.b_end;
+            peak_s = o.start_s + s.duration_s;
+        }
+        area += o.integral_s;
+    });
+    (phases, Summary { end, peak, peak_s, mean: area / schedule.total_s() })
+}
+
+/// Whether the brightest step reaches the receptor's saturating level, in words.
+fn saturation_text(pigment: &Pigment, schedule: &Schedule) -> Option<String> {
+    let max_level = schedule.steps.iter().map(|s| pigment.level_of_rate(s.rate_per_s)).fold(0.0, f64::max);
+    pigment.saturating_level.as_ref().map(|sat| {
+        let u = pigment.level_unit.symbol();
+        let (verb, tail) = if max_level >= sat.value {
+            ("reaches", ": rods are saturated during it")
+        } else {
+            ("is below", "")
+        };
+        format!(
+            "the brightest step ({max_level:.4e} {u}) {verb} the rod saturation level ({:.4e} {u}, {}){tail}",
+            sat.value, sat.status
+        )
     })
 }
 

@@ -139,11 +139,35 @@ pub fn assess_retina(s: &RetinaScenario) -> Result<RetinaReport> {
         return Err(Error::input("a retinal assessment needs at least one source"));
     }
     let eye = &s.eye;
-    let mut cornea: Vec<Corneal> = Vec::new();
-    for src in &s.sources {
-        cornea.push(at_cornea(src, &s.filters)?);
-    }
-    // The adapting luminance and field for pupil formulas: given, or the brightest seen source.
+    let cornea = s.sources.iter().map(|src| at_cornea(src, &s.filters)).collect::<Result<Vec<Corneal>>>()?;
+    let pupil = choose(eye, s.pupil, &adaptation(s, &cornea))?;
+    let area = collecting_area_mm2(eye, &pupil, s.albino_iris);
+    let human = eye.species == Species::Human;
+    let sources = s
+        .sources
+        .iter()
+        .zip(&cornea)
+        .map(|(src, c)| source_at_eye(s, src, c, &pupil, area))
+        .collect::<Result<Vec<_>>>()?;
+    let total = Spectrum::sum(&cornea.iter().map(|c| c.irradiance.clone()).collect::<Vec<_>>())?;
+    let notes = report_notes(s, &cornea, &sources, &pupil);
+    Ok(RetinaReport {
+        species: eye.species,
+        nodal_distance: eye.nodal_distance.value,
+        pupil,
+        collecting_area_mm2: area,
+        filters: s.filters.iter().map(|f| f.label().to_string()).collect(),
+        total_illuminance: photopic(&total),
+        human_alpha_opic: if human { alpha_opic(&total) } else { Vec::new() },
+        species_opic: if human { Vec::new() } else { species_alpha_opic(&total, eye) },
+        total_corneal: total,
+        sources,
+        notes,
+    })
+}
+
+/// The adapting luminance and field for pupil formulas: as given, or the brightest seen source.
+fn adaptation(s: &RetinaScenario, cornea: &[Corneal]) -> Adaptation {
     let brightest = cornea
         .iter()
         .filter_map(|c| c.radiance.as_ref().map(|l| (photopic(l).raw, c.subtense)))
@@ -151,63 +175,74 @@ pub fn assess_retina(s: &RetinaScenario) -> Result<RetinaReport> {
             Some(b) if b.0 >= x.0 => Some(b),
             _ => Some(x),
         });
-    let adaptation = Adaptation {
+    Adaptation {
         luminance: s
             .adapting_luminance
             .or(brightest.map(|b| Luminance::new::<uom::si::luminance::candela_per_square_meter>(b.0))),
         field: s.field.or(brightest.and_then(|b| b.1)),
         age: s.age,
         eyes: s.eyes,
-    };
-    let pupil = choose(eye, s.pupil, &adaptation)?;
-    let area = collecting_area_mm2(eye, &pupil, s.albino_iris);
+    }
+}
+
+/// Retinal quantities of a seen spectral radiance `l` through `pupil` (collecting `area_mm2`).
+fn retinal(s: &RetinaScenario, l: &Spectrum, c: &Corneal, pupil: &Pupil, area_mm2: f64) -> Result<Retinal> {
+    let eye = &s.eye;
+    let spectral = retinal_irradiance(l, eye, area_mm2, s.age)?;
+    let td = trolands_of(l, pupil);
+    let catch = receptor_catch(l, eye, area_mm2, s.age, as_td_f64(td.scotopic));
+    Ok(Retinal {
+        irradiance: spectral
+            .radiometric_total()
+            .ok_or_else(|| Error::input("retinal spectrum has no scale"))?,
+        photon_irradiance: spectral
+            .photon_total()
+            .ok_or_else(|| Error::input("retinal spectrum has no scale"))?,
+        spectral_irradiance: spectral,
+        trolands: td,
+        image_size: c.subtense.map(|a| image_size(eye, a.si())),
+        catch,
+    })
+}
+
+/// What one source delivers: corneal totals, its own α-opic quantities and, when the seen
+/// radiance is known, the retinal quantities.
+fn source_at_eye(
+    s: &RetinaScenario,
+    src: &PlacedSource,
+    c: &Corneal,
+    pupil: &Pupil,
+    area_mm2: f64,
+) -> Result<SourceAtEye> {
+    let human = s.eye.species == Species::Human;
+    let no_scale = || Error::input("corneal spectrum has no scale");
+    Ok(SourceAtEye {
+        label: src.spectrum.label().to_string(),
+        corneal_irradiance: c.irradiance.clone(),
+        human_alpha_opic: if human { alpha_opic(&c.irradiance) } else { Vec::new() },
+        species_opic: if human { Vec::new() } else { species_alpha_opic(&c.irradiance, &s.eye) },
+        irradiance: c.irradiance.radiometric_total().ok_or_else(no_scale)?,
+        photon_irradiance: c.irradiance.photon_total().ok_or_else(no_scale)?,
+        illuminance: photopic(&c.irradiance),
+        radiance: c.radiance.as_ref().and_then(Spectrum::radiometric_total),
+        luminance: c.radiance.as_ref().map(photopic),
+        radiance_derived: c.radiance_derived,
+        subtense: c.subtense,
+        retinal: c.radiance.as_ref().map(|l| retinal(s, l, c, pupil, area_mm2)).transpose()?,
+        notes: c.notes.clone(),
+    })
+}
+
+/// The cautions and provenance a reader must see beside the figures.
+fn report_notes(
+    s: &RetinaScenario,
+    cornea: &[Corneal],
+    sources: &[SourceAtEye],
+    pupil: &Pupil,
+) -> Vec<String> {
+    let eye = &s.eye;
     let human = eye.species == Species::Human;
     let mut notes = Vec::new();
-    let mut sources = Vec::new();
-    for (src, c) in s.sources.iter().zip(&cornea) {
-        let retinal = match &c.radiance {
-            Some(l) => {
-                let spectral = retinal_irradiance(l, eye, area, s.age)?;
-                let td = trolands_of(l, &pupil);
-                let catch = receptor_catch(l, eye, area, s.age, as_td_f64(td.scotopic));
-                Some(Retinal {
-                    irradiance: spectral
-                        .radiometric_total()
-                        .ok_or_else(|| Error::input("retinal spectrum has no scale"))?,
-                    photon_irradiance: spectral
-                        .photon_total()
-                        .ok_or_else(|| Error::input("retinal spectrum has no scale"))?,
-                    spectral_irradiance: spectral,
-                    trolands: td,
-                    image_size: c.subtense.map(|a| image_size(eye, a.si())),
-                    catch,
-                })
-            }
-            None => None,
-        };
-        sources.push(SourceAtEye {
-            label: src.spectrum.label().to_string(),
-            corneal_irradiance: c.irradiance.clone(),
-            human_alpha_opic: if human { alpha_opic(&c.irradiance) } else { Vec::new() },
-            species_opic: if human { Vec::new() } else { species_alpha_opic(&c.irradiance, eye) },
-            irradiance: c
-                .irradiance
-                .radiometric_total()
-                .ok_or_else(|| Error::input("corneal spectrum has no scale"))?,
-            photon_irradiance: c
-                .irradiance
-                .photon_total()
-                .ok_or_else(|| Error::input("corneal spectrum has no scale"))?,
-            illuminance: photopic(&c.irradiance),
-            radiance: c.radiance.as_ref().and_then(Spectrum::radiometric_total),
-            luminance: c.radiance.as_ref().map(photopic),
-            radiance_derived: c.radiance_derived,
-            subtense: c.subtense,
-            retinal,
-            notes: c.notes.clone(),
-        });
-    }
-    let total = Spectrum::sum(&cornea.iter().map(|c| c.irradiance.clone()).collect::<Vec<_>>())?;
     let ranges: Vec<(f64, f64)> = cornea.iter().map(|c| c.irradiance.range_nm()).collect();
     if ranges.windows(2).any(|w| w[0] != w[1]) {
         notes.push(format!(
@@ -243,6 +278,12 @@ pub fn assess_retina(s: &RetinaScenario) -> Result<RetinaReport> {
                 .to_string(),
         );
     }
+    provenance_notes(s, pupil, &mut notes);
+    notes
+}
+
+fn provenance_notes(s: &RetinaScenario, pupil: &Pupil, notes: &mut Vec<String>) {
+    let eye = &s.eye;
     let memory = eye.from_memory();
     if !memory.is_empty() {
         notes.push(format!(
@@ -261,24 +302,11 @@ pub fn assess_retina(s: &RetinaScenario) -> Result<RetinaReport> {
                 .to_string(),
         );
     }
-    if !human {
+    if eye.species != Species::Human {
         notes.push(
             "rodent α-opic quantities are retidose's method (lens-filtered Govardovskii templates, peak 1, photon \
              basis, equivalent daylight relative to CIE D65 by analogy with CIE S 026): not a CIE quantity"
                 .to_string(),
         );
     }
-    Ok(RetinaReport {
-        species: eye.species,
-        nodal_distance: eye.nodal_distance.value,
-        pupil,
-        collecting_area_mm2: area,
-        filters: s.filters.iter().map(|f| f.label().to_string()).collect(),
-        total_illuminance: photopic(&total),
-        human_alpha_opic: if human { alpha_opic(&total) } else { Vec::new() },
-        species_opic: if human { Vec::new() } else { species_alpha_opic(&total, eye) },
-        total_corneal: total,
-        sources,
-        notes,
-    })
 }

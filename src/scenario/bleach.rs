@@ -142,46 +142,57 @@ pub fn level_of_source(
 pub fn parse_bleach_scenario(text: &str, origin: &str, base: Option<&Path>) -> Result<BleachScenario> {
     let raw: RawScenario =
         toml::from_str(text).map_err(|e| Error::data(crate::base::toml_errors::describe(&e, origin)))?;
-    let ctx = |e: Error, key: &str| e.context(format!("{origin}: key '{key}'"));
-    let mut pigment = find_pigment(&raw.receptor).map_err(|e| ctx(e, "receptor"))?;
+    resolve(&raw, base).map_err(|e| e.in_file(origin, Some(text)))
+}
+
+fn resolve(raw: &RawScenario, base: Option<&Path>) -> Result<BleachScenario> {
+    let mut pigment = find_pigment(&raw.receptor).map_err(|e| e.key("receptor"))?;
     for (k, v) in &raw.parameters {
-        pigment.override_param(k, v).map_err(|e| ctx(e, &format!("parameters.{k}")))?;
+        pigment.override_param(k, v).map_err(|e| e.key(k).key("parameters"))?;
     }
     let model = match &raw.model {
-        Some(m) => Model::parse(m).map_err(|e| ctx(e, "model"))?,
+        Some(m) => Model::parse(m).map_err(|e| e.key("model"))?,
         None => Model::RateLimited,
     };
     let mut schedule = Schedule::default();
     let mut source_levels: Vec<(SourceSpec, f64)> = Vec::new();
     for (i, s) in raw.step.iter().enumerate() {
-        let key = format!("step[{i}]");
+        let at = |e: Error| e.key(&format!("step[{i}]"));
         let name = s.name.clone().unwrap_or_else(|| format!("step {}", i + 1));
-        let d = parse_time(&s.duration).map_err(|e| ctx(e, &format!("{key}.duration")))?.si();
-        let level = match (&s.level, &s.source) {
-            (Some(l), None) => parse_level(&pigment, l).map_err(|e| ctx(e, &format!("{key}.level")))?,
-            (None, Some(src)) => match source_levels.iter().find(|(spec, _)| spec == src) {
-                Some((_, lv)) => *lv,
-                None => {
-                    let subject = raw.subject.as_ref().ok_or_else(|| {
-                        ctx(
-                            Error::input("a step with a source needs a [subject] table (species, pupil)"),
-                            &key,
-                        )
-                    })?;
-                    let lv = level_of_source(&pigment, subject, src, base)
-                        .map_err(|e| ctx(e, &format!("{key}.source")))?;
-                    source_levels.push((src.clone(), lv));
-                    lv
-                }
-            },
-            _ => return Err(ctx(Error::input("give either 'level' or 'source'"), &key)),
-        };
-        schedule.push(&name, d, pigment.rate_of_level(level)).map_err(|e| ctx(e, &key))?;
+        let d = parse_time(&s.duration).map_err(|e| at(e.key("duration")))?.si();
+        let level = step_level(raw, s, &pigment, &mut source_levels, base).map_err(at)?;
+        schedule.push(&name, d, pigment.rate_of_level(level)).map_err(at)?;
     }
-    schedule.repeat(raw.repeat.unwrap_or(1)).map_err(|e| ctx(e, "repeat"))?;
+    schedule.repeat(raw.repeat.unwrap_or(1)).map_err(|e| e.key("repeat"))?;
     let start = raw.start_bleached.unwrap_or(0.0);
     if !(0.0..=1.0).contains(&start) {
-        return Err(ctx(Error::input(format!("{start} must be between 0 and 1")), "start_bleached"));
+        return Err(Error::input(format!("{start} must be between 0 and 1")).key("start_bleached"));
     }
     Ok(BleachScenario { pigment, model, schedule, start })
+}
+
+/// The level of one step: its `level`, or its `source` through the retina chain (each distinct
+/// source computed once).
+fn step_level(
+    raw: &RawScenario,
+    s: &RawStep,
+    pigment: &Pigment,
+    cache: &mut Vec<(SourceSpec, f64)>,
+    base: Option<&Path>,
+) -> Result<f64> {
+    match (&s.level, &s.source) {
+        (Some(l), None) => parse_level(pigment, l).map_err(|e| e.key("level")),
+        (None, Some(src)) => {
+            if let Some((_, lv)) = cache.iter().find(|(spec, _)| spec == src) {
+                return Ok(*lv);
+            }
+            let subject = raw.subject.as_ref().ok_or_else(|| {
+                Error::input("a step with a source needs a [subject] table (species, pupil)")
+            })?;
+            let lv = level_of_source(pigment, subject, src, base).map_err(|e| e.key("source"))?;
+            cache.push((src.clone(), lv));
+            Ok(lv)
+        }
+        _ => Err(Error::input("give either 'level' or 'source'")),
+    }
 }

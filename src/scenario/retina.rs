@@ -172,6 +172,14 @@ pub fn resolve_spectrum(spec: &str, base: Option<&Path>) -> Result<crate::spectr
 /// [`crate::ErrorKind::InvalidInput`] naming the key: more than one measured value, a
 /// missing distance or size for the geometry, an unknown geometry or emission, a bad unit.
 pub fn place(spec: &SourceSpec, base: Option<&Path>) -> Result<PlacedSource> {
+    let spectrum = scaled_spectrum(spec, base)?;
+    let size = opt(&spec.size, "size", parse_length)?;
+    let geometry = geometry(spec, &spectrum, size)?;
+    Ok(PlacedSource { spectrum, geometry, size })
+}
+
+/// The source's spectrum, resolved and scaled to its one measured value.
+fn scaled_spectrum(spec: &SourceSpec, base: Option<&Path>) -> Result<crate::spectrum::Spectrum> {
     let given: Vec<(&str, &String)> = SCALE_KEYS
         .iter()
         .zip([
@@ -202,12 +210,12 @@ pub fn place(spec: &SourceSpec, base: Option<&Path>) -> Result<PlacedSource> {
         let t = ScaleTarget::parse(key, value).map_err(|e| e.key(key))?;
         spectrum = scale_to(&spectrum, t).map_err(|e| e.key(key))?;
     }
-    let distance = opt(&spec.distance, "distance", parse_length)?;
-    let size = opt(&spec.size, "size", parse_length)?;
-    let sub = opt(&spec.subtense, "subtense", parse_angle)?;
-    let zero = Angle::from_si(0.0);
-    let incidence = opt(&spec.incidence, "incidence", parse_angle)?.unwrap_or(zero);
-    let kind = match spec.geometry.as_deref() {
+    Ok(spectrum)
+}
+
+/// The geometry named by `geometry`, or inferred from what the spectrum measures.
+fn geometry_kind(spec: &SourceSpec, spectrum: &crate::spectrum::Spectrum) -> Result<String> {
+    Ok(match spec.geometry.as_deref() {
         Some(g) => g.to_string(),
         None => match spectrum.measure() {
             Measure::Irradiance => "at-eye".to_string(),
@@ -222,7 +230,20 @@ pub fn place(spec: &SourceSpec, base: Option<&Path>) -> Result<PlacedSource> {
                 )));
             }
         },
-    };
+    })
+}
+
+/// Where the source is and how it radiates, from the keys its geometry needs.
+fn geometry(
+    spec: &SourceSpec,
+    spectrum: &crate::spectrum::Spectrum,
+    size: Option<crate::base::quantity::Length>,
+) -> Result<Geometry> {
+    let kind = geometry_kind(spec, spectrum)?;
+    let distance = opt(&spec.distance, "distance", parse_length)?;
+    let sub = opt(&spec.subtense, "subtense", parse_angle)?;
+    let zero = Angle::from_si(0.0);
+    let incidence = opt(&spec.incidence, "incidence", parse_angle)?.unwrap_or(zero);
     let missing =
         |key: &str| Error::input(format!("source '{}' with {kind} geometry needs '{key}'", spec.spectrum));
     let geometry = match kind.as_str() {
@@ -288,7 +309,7 @@ pub fn place(spec: &SourceSpec, base: Option<&Path>) -> Result<PlacedSource> {
             .key("geometry"));
         }
     };
-    Ok(PlacedSource { spectrum, geometry, size })
+    Ok(geometry)
 }
 
 /// Builds a scenario from its parts.
