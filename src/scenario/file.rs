@@ -467,3 +467,89 @@ fn read_relative(file: &str, base: Option<&Path>) -> Result<(String, String)> {
         .map_err(|e| Error::input(format!("cannot read {}: {e}", p.display())).key("measurements"))?;
     Ok((text, p.display().to_string()))
 }
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    const GOOD: &str = r#"
+[scenario]
+name = "x"
+title = "x"
+[subject]
+species = "MOUSE"
+pigmentation = "Albino"
+pupil = "light"
+[[source]]
+id = "a"
+spectrum = "cie:D65"
+illuminance = "100 lx"
+full_field = true
+[[source]]
+id = "b"
+spectrum = "cie:D65"
+illuminance = "1 lx"
+full_field = true
+[schedule]
+[[schedule.step]]
+name = "Lights"
+phase = "Light"
+duration = "12 h"
+on = ["a"]
+[[schedule.step]]
+name = "DARK"
+duration = "12 h"
+on = ["b"]
+"#;
+
+    #[test]
+    fn resolves_enums_in_any_case_and_phases_from_names() {
+        let s = parse_scenario_file(GOOD, "x.toml", None).unwrap();
+        assert_eq!(s.species, Species::Mouse);
+        assert_eq!(s.pigmentation, Some(Pigmentation::Albino));
+        let sc = s.schedule.as_ref().unwrap();
+        assert_eq!(sc.steps[0].phase, Some(Phase::Light));
+        assert_eq!(sc.steps[1].phase, Some(Phase::Dark));
+        assert_eq!(sc.pigment.id, "mouse-rod");
+        assert_eq!(s.dark_pupil, PupilRule::DarkAdapted);
+        assert_eq!(s.dark_pupil_basis, DarkPupilBasis::RodentDarkAdapted);
+        assert_eq!(s.view_for(Some(Phase::Dark)).pupil, PupilRule::DarkAdapted);
+        assert_eq!(s.view_for(Some(Phase::Light)).pupil, PupilRule::LightAdapted);
+    }
+
+    #[test]
+    fn errors_carry_file_key_and_line_as_fields() {
+        let cases = [
+            (GOOD.replace("illuminance = \"1 lx\"", "illuminance = \"1\""), "source[1].illuminance", 17),
+            (
+                GOOD.replace("duration = \"12 h\"\non = [\"b\"]", "duration = \"0 h\"\non = [\"b\"]"),
+                "schedule.step[1].duration",
+                27,
+            ),
+            (GOOD.replace("on = [\"b\"]", "on = [\"c\"]"), "schedule.step[1].on", 28),
+            (GOOD.replace("phase = \"Light\"", "phase = \"dusk\""), "schedule.step[0].phase", 22),
+            (GOOD.replace("species = \"MOUSE\"", "species = \"cat\""), "subject.species", 6),
+        ];
+        for (text, key, line) in cases {
+            let e = parse_scenario_file(&text, "x.toml", None).unwrap_err();
+            let loc = e.location().unwrap_or_else(|| panic!("{e}"));
+            assert_eq!(loc.file.as_deref(), Some("x.toml"), "{e}");
+            assert_eq!(loc.key.as_deref(), Some(key), "{e}");
+            assert_eq!(loc.line, Some(line), "{e}");
+            assert!(e.to_string().starts_with(&format!("x.toml:{line}: key '{key}': ")), "{e}");
+        }
+    }
+
+    #[test]
+    fn relative_files_are_read_from_the_scenario_folder_only() {
+        let dir = std::env::temp_dir().join(format!("retidose-file-{}", std::process::id()));
+        std::fs::create_dir_all(&dir).unwrap();
+        let text = GOOD.replacen("spectrum = \"cie:D65\"", "spectrum = \"lamp.csv\"", 1);
+        // Not beside the scenario: an error naming the path tried, never the working directory.
+        let e = parse_scenario_file(&text, "x.toml", Some(&dir)).unwrap_err();
+        assert!(e.to_string().contains(&dir.join("lamp.csv").display().to_string()), "{e}");
+        std::fs::write(dir.join("lamp.csv"), "# kind: irradiance\n400,1\n500,1\n600,1\n700,1\n").unwrap();
+        let s = parse_scenario_file(&text, "x.toml", Some(&dir)).unwrap();
+        assert_eq!(s.view.sources.len(), 2);
+    }
+}
