@@ -57,6 +57,9 @@ pub struct Position {
     pub shelves_above: usize,
 }
 
+/// The most cage positions one survey may hold (a cap is an error, never a truncation).
+pub const MAX_POSITIONS: usize = 1_000_000;
+
 /// A rack of shelves × columns in a row along x.
 #[derive(Debug, Clone, Copy, PartialEq)]
 pub struct Rack {
@@ -85,10 +88,16 @@ impl Rack {
         if self.shelves == 0 || self.columns == 0 {
             return Err(Error::input("a rack needs at least one shelf and one column"));
         }
+        let n = self.shelves.checked_mul(self.columns).filter(|n| *n <= MAX_POSITIONS).ok_or_else(|| {
+            Error::input(format!(
+                "{} shelves × {} columns is more than the {MAX_POSITIONS} positions a survey may hold",
+                self.shelves, self.columns
+            ))
+        })?;
         if !(self.column_spacing_m > 0.0 && self.shelf_spacing_m > 0.0) {
             return Err(Error::input("rack spacings must be above 0 m"));
         }
-        let mut out = Vec::with_capacity(self.shelves * self.columns);
+        let mut out = Vec::with_capacity(n);
         for s in 0..self.shelves {
             for c in 0..self.columns {
                 out.push(Position {
@@ -334,7 +343,16 @@ pub fn read_measurements(
             }
             Ok(v)
         };
-        let (s, c) = (field(s_i, "shelf")? as usize, field(c_i, "column")? as usize);
+        let whole = |i: usize, what: &str| -> Result<usize> {
+            let v = field(i, what)?;
+            if v.fract() != 0.0 || v < 1.0 || v > 1e9 {
+                return Err(Error::data(format!(
+                    "{origin}:{line}: {what} {v} must be a whole number from 1"
+                )));
+            }
+            Ok(v as usize)
+        };
+        let (s, c) = (whole(s_i, "shelf")?, whole(c_i, "column")?);
         let idx = positions.iter().position(|p| p.shelf == s && p.column == c).ok_or_else(|| {
             Error::data(format!("{origin}:{line}: shelf {s} column {c} is not a position of the rack"))
         })?;

@@ -200,6 +200,9 @@ pub struct BleachReport {
     pub notes: Vec<String>,
 }
 
+/// The most time-course samples a report may hold (a cap is an error, never a truncation).
+pub const MAX_SAMPLES: usize = 1_000_000;
+
 /// Why the default model is rate-limited.
 pub const DEFAULT_MODEL_REASON: &str = "rate-limited is the default: it reproduces the near-linear recovery after large \
 bleaches that rod and cone pigment show (Lamb & Pugh 2004; Mahroo & Lamb 2004; Cameron, Mahroo & Lamb 2006), which \
@@ -221,6 +224,9 @@ pub fn assess(
     }
     if !(0.0..=1.0).contains(&b0) {
         return Err(Error::input(format!("the starting bleached fraction {b0} must be between 0 and 1")));
+    }
+    if let Some(n) = samples.filter(|n| *n > MAX_SAMPLES) {
+        return Err(Error::input(format!("{n} time-course samples is more than the {MAX_SAMPLES} allowed")));
     }
     let c = pigment.constants();
     let (phases, summary) = phases_and_summary(pigment, model, schedule, b0);

@@ -27,6 +27,10 @@ pub struct Schedule {
 /// Longest schedule accepted: 100 years of steps (it must end).
 pub const MAX_SCHEDULE_S: f64 = 100.0 * 365.25 * 86_400.0;
 
+/// The most steps a schedule may hold after its repeats (about 240 MB; ten years of minute
+/// steps fit only as longer steps). A cap is an error, never a silent truncation.
+pub const MAX_STEPS: usize = 10_000_000;
+
 impl Schedule {
     /// Adds a step called `name`.
     ///
@@ -36,6 +40,9 @@ impl Schedule {
     pub fn push(&mut self, name: &str, duration_s: f64, rate_per_s: f64) -> Result<()> {
         if !(duration_s > 0.0 && duration_s.is_finite()) {
             return Err(Error::input(format!("step '{name}': duration {duration_s} s must be above 0 s")));
+        }
+        if self.steps.len() >= MAX_STEPS {
+            return Err(Error::input(format!("a schedule may hold at most {MAX_STEPS} steps")));
         }
         if !(rate_per_s >= 0.0 && rate_per_s.is_finite()) {
             return Err(Error::input(format!("step '{name}': light level must be a finite number ≥ 0")));
@@ -64,6 +71,14 @@ impl Schedule {
             return Err(Error::input(format!(
                 "the schedule would last {:.3e} s, more than 100 years; a schedule must end",
                 one * times as f64
+            )));
+        }
+        let total = (self.steps.len() as u64).saturating_mul(times);
+        if total > MAX_STEPS as u64 {
+            return Err(Error::input(format!(
+                "{} steps × {times} repeats = {total} steps, more than the {MAX_STEPS} a schedule may hold; use longer steps \
+                 or fewer repeats",
+                self.steps.len()
             )));
         }
         let base = self.steps.clone();

@@ -138,6 +138,17 @@ fn opt<T>(v: &Option<String>, key: &str, parse: impl Fn(&str) -> Result<T>) -> R
     v.as_deref().map(|t| parse(t).map_err(|e| e.key(key))).transpose()
 }
 
+/// An age with its unit, within 0–120 years (the range the human media and pupil formulas
+/// take; an input bound, common practice, no source).
+fn parse_age(text: &str) -> Result<crate::base::quantity::Time> {
+    let t = parse_time(text)?;
+    let years = t.si() / (365.25 * 86_400.0);
+    if !(years > 0.0 && years <= 120.0) {
+        return Err(Error::input(format!("{text} is outside 0–120 years")));
+    }
+    Ok(t)
+}
+
 /// Resolves a `spectrum` value: a generator (`blackbody:…`, `cie:…`, `led:…`) or a built-in lamp
 /// by name, else a file relative to `base` (the scenario file's folder; the working directory
 /// only when there is no scenario file). A file beside the scenario wins over a built-in lamp of
@@ -385,7 +396,7 @@ pub fn build(
         sources,
         filters,
         pupil,
-        age: opt(&subject.age, "age", parse_time).map_err(|e| e.key("subject"))?,
+        age: opt(&subject.age, "age", parse_age).map_err(|e| e.key("subject"))?,
         eyes,
         field: opt(&subject.field, "field", parse_angle).map_err(|e| e.key("subject"))?,
         adapting_luminance: opt(&subject.adapting_luminance, "adapting_luminance", parse_luminance)

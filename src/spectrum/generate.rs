@@ -59,6 +59,14 @@ impl Grid {
     }
 }
 
+/// The hottest blackbody a lamp model takes, K (hotter than any lamp or star of interest; an
+/// input bound, common practice, no source).
+pub const MAX_BLACKBODY_K: f64 = 1.0e5;
+
+/// The range of LED peak wavelengths a model takes, nm (ultraviolet to far infrared; an input
+/// bound, common practice, no source).
+pub const LED_PEAK_RANGE_NM: (f64, f64) = (100.0, 10_000.0);
+
 /// Planck's law for the spectral radiance of a blackbody, W·m⁻²·sr⁻¹·nm⁻¹:
 ///
 /// L_λ(λ, T) = 2hc² λ⁻⁵ / (exp(c₂ / (λT)) − 1),
@@ -75,8 +83,10 @@ pub fn planck_radiance(
     c2_m_k: Option<f64>,
 ) -> Result<Spectrum> {
     let t = temperature.si();
-    if !(t > 0.0 && t.is_finite()) {
-        return Err(Error::input(format!("blackbody temperature {t} K must be above 0 K")));
+    if !(t > 0.0 && t <= MAX_BLACKBODY_K) {
+        return Err(Error::input(format!(
+            "blackbody temperature {t} K is outside the range a lamp model can take: above 0 K, at most {MAX_BLACKBODY_K} K"
+        )));
     }
     let c2 = c2_m_k.unwrap_or(SECOND_RADIATION_CONSTANT_M_K);
     let c1l = 2.0 * PLANCK_J_S * SPEED_OF_LIGHT_M_PER_S * SPEED_OF_LIGHT_M_PER_S;
@@ -162,8 +172,15 @@ pub fn multi_band_led(bands: &[LedBand], grid: Grid) -> Result<Spectrum> {
     }
     for b in bands {
         let wd = as_nm_f64(b.width);
-        if !(wd > 0.0 && wd.is_finite()) {
-            return Err(Error::input(format!("LED band width {wd} nm must be above 0 nm")));
+        if !(wd > 0.0 && wd <= 1000.0) {
+            return Err(Error::input(format!(
+                "LED band width {wd} nm must be above 0 nm and at most 1000 nm"
+            )));
+        }
+        let pk = as_nm_f64(b.peak);
+        let (lo, hi) = LED_PEAK_RANGE_NM;
+        if !(lo..=hi).contains(&pk) {
+            return Err(Error::input(format!("LED peak {pk} nm is outside {lo}–{hi} nm")));
         }
         if !(b.ratio >= 0.0 && b.ratio.is_finite()) {
             return Err(Error::input(format!("LED band ratio {} must be a finite number ≥ 0", b.ratio)));
