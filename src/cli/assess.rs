@@ -1,0 +1,146 @@
+//! `retidose assess`: one scenario file (or a built-in demo) in, one assessment out, in the
+//! format asked for, to the terminal or to a file.
+
+use std::path::{Path, PathBuf};
+
+use anyhow::{Context, Result, bail};
+use clap::{Args, ValueEnum};
+use retidose::assess::{Assessment, DEMOS, assess, demo, parse_scenario_file};
+use retidose::scenario::file::Scenario;
+
+use super::Output;
+use super::render::{csv, html, json, markdown, terminal};
+
+/// Help shown after `retidose assess --help`.
+pub const EXAMPLES: &str = "\
+Built-in demos (invented, in the fictional Fenwick Institute of Comparative Vision):
+  vivarium          albino mice on a rack under LED panels, 12 h : 12 h with a dark-phase leak
+  dark-adaptation   a human rod bleach of 60 s at 5000 cd/m², then 40 min of darkness
+  stimulus-review   a 460 nm stimulus LED at 200 mm against IEC 62471 and the EU Directive
+
+Examples:
+  retidose assess --demo
+  retidose assess --demo vivarium --format html -o vivarium.html
+  retidose assess --example vivarium > my-room.toml
+  retidose assess my-room.toml --format json
+
+Exit status: 0 when every assessed item is within its limits and no guidance flag is raised,
+1 when a limit is exceeded or a guidance flag is raised, 2 on an input error. A --demo run exits
+with 0 (its flags are there to show them); its Outcome lines say what a scenario file would give.";
+
+#[derive(Debug, Args)]
+pub struct AssessArgs {
+    /// A scenario file (see `retidose assess --example`)
+    #[arg(value_name = "SCENARIO", conflicts_with_all = ["demo", "example"], required_unless_present_any = ["demo", "example"])]
+    scenario: Option<String>,
+    /// Run a built-in demo (all three when no name is given)
+    #[arg(long, value_name = "NAME", num_args = 0..=1, default_missing_value = "all")]
+    demo: Option<String>,
+    /// Print an annotated scenario to start from (the vivarium demo when no name is given)
+    #[arg(long, value_name = "NAME", num_args = 0..=1, default_missing_value = "vivarium")]
+    example: Option<String>,
+    /// Report format
+    #[arg(long, value_enum, default_value_t = ReportFormat::Table)]
+    format: ReportFormat,
+    /// Write the report to this file instead of the terminal (refuses to overwrite without --force)
+    #[arg(short = 'o', long = "output", value_name = "FILE")]
+    output: Option<String>,
+    /// Allow -o to replace an existing file (never an input)
+    #[arg(long)]
+    force: bool,
+}
+
+/// Report formats of `assess`.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, ValueEnum)]
+pub enum ReportFormat {
+    /// Tables for the terminal
+    Table,
+    /// JSON (schema retidose.assessment/1)
+    Json,
+    /// CSV: one row per cage position, or per hazard
+    Csv,
+    /// Markdown
+    Markdown,
+    /// One self-contained HTML file with inline SVG plots
+    Html,
+}
+
+/// Runs `retidose assess`.
+pub fn run(a: AssessArgs) -> Result<Output> {
+    if let Some(name) = &a.example {
+        return Ok(Output { text: demo(name)?.to_string(), status: 0 });
+    }
+    let (scenarios, inputs) = load_scenarios(&a)?;
+    {
+        use std::io::IsTerminal;
+        if std::io::stderr().is_terminal() {
+            eprintln!("retidose: assessing {} scenario(s)…", scenarios.len());
+        }
+    }
+    let results = scenarios.iter().map(assess).collect::<std::result::Result<Vec<_>, _>>()?;
+    // A demo raises flags on purpose; its run is a success. Scenario files get the documented
+    // status (1 when a limit is exceeded or a guidance flag is raised).
+    let raised = results.iter().any(|r| r.limit_exceeded || r.flag_raised);
+    let status = u8::from(raised && a.demo.is_none());
+    let colour = a.output.is_none() && terminal::use_colour();
+    let text = render(&results, a.format, colour);
+    match &a.output {
+        None => Ok(Output { text, status }),
+        Some(path) => {
+            write_report(path, &text, &inputs, a.force)?;
+            Ok(Output { text: String::new(), status })
+        }
+    }
+}
+
+/// The scenarios to assess (the demos asked for, or the one file) and the input files read.
+fn load_scenarios(a: &AssessArgs) -> Result<(Vec<Scenario>, Vec<PathBuf>)> {
+    let mut inputs: Vec<PathBuf> = Vec::new();
+    let scenarios = match (&a.demo, &a.scenario) {
+        (Some(name), _) => {
+            let names: Vec<&str> =
+                if name == "all" { DEMOS.iter().map(|d| d.0).collect() } else { vec![name.as_str()] };
+            names
+                .into_iter()
+                .map(|n| Ok(parse_scenario_file(demo(n)?, &format!("demo {n}"), None)?))
+                .collect::<Result<Vec<_>>>()?
+        }
+        (None, Some(file)) => {
+            let text =
+                std::fs::read_to_string(file).with_context(|| format!("cannot read the scenario {file}"))?;
+            inputs.push(Path::new(file).to_path_buf());
+            vec![parse_scenario_file(&text, file, Path::new(file).parent())?]
+        }
+        (None, None) => bail!("give a scenario file, --demo or --example"),
+    };
+    Ok((scenarios, inputs))
+}
+
+/// The report in the format asked for.
+fn render(results: &[Assessment], format: ReportFormat, colour: bool) -> String {
+    match format {
+        ReportFormat::Table => terminal::assess::report(results, colour),
+        ReportFormat::Json => json::assess::document(results),
+        ReportFormat::Csv => csv::assessment(results),
+        ReportFormat::Markdown => markdown::assessment(results),
+        ReportFormat::Html => html::assessment(results),
+    }
+}
+
+/// Writes the report to `-o path`: never over an input of the run, nor over an existing file
+/// without `--force`.
+fn write_report(path: &str, text: &str, inputs: &[PathBuf], force: bool) -> Result<()> {
+    let target = Path::new(path);
+    let same = |p: &Path| match (p.canonicalize(), target.canonicalize()) {
+        (Ok(x), Ok(y)) => x == y,
+        _ => false,
+    };
+    if inputs.iter().any(|i| same(i)) {
+        bail!("-o {path} is an input of this run; it is never overwritten");
+    }
+    if target.exists() && !force {
+        bail!("-o {path} exists; give --force to replace it");
+    }
+    std::fs::write(target, text).with_context(|| format!("cannot write {path}"))?;
+    Ok(())
+}

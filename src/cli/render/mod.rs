@@ -1,0 +1,171 @@
+//! Renderers: every output of the `retidose` binary, read from the library's report
+//! structures. One module per format:
+//!
+//! | module | what |
+//! |---|---|
+//! | [`terminal`] | tables for the terminal, one file per command |
+//! | [`json`] | JSON documents with stable field names, one file per command |
+//! | [`csv`] | the retinal spectrum (`retina`), the time course (`bleach`) and `assess` |
+//! | [`markdown`] | the `assess` report in Markdown |
+//! | [`html`] | the `assess` report as one self-contained HTML file, its plots from `svg` |
+//!
+//! This module holds what several formats share: number formatting, the caution printed under
+//! every report, and the wording of the `assess` report (verdicts, schedule steps, pupil rule,
+//! guidance basis, recovery).
+
+pub mod csv;
+pub mod html;
+pub mod json;
+pub mod markdown;
+mod svg;
+pub mod terminal;
+
+use std::fmt::Write;
+
+use retidose::assess::{Assessment, GuidanceBasis, GuidanceRow};
+use retidose::limits::{TMax, Verdict};
+use retidose::spectrum::Basis;
+
+/// The caution printed under every report.
+pub const CAUTION: &str = "retidose informs; it does not replace the standards, a qualified optical-radiation \
+assessment, veterinary advice or local regulations. Check results with your optical safety officer, \
+veterinarian or review board before relying on them.";
+
+/// Formats a number with 4 significant digits, in scientific notation when very large or small.
+pub fn num(v: f64) -> String {
+    if v == 0.0 {
+        return "0".to_string();
+    }
+    let a = v.abs();
+    if (1e-3..1e6).contains(&a) {
+        let digits = (3 - a.log10().floor() as i32).max(0) as usize;
+        format!("{v:.digits$}")
+    } else {
+        format!("{v:.3e}")
+    }
+}
+
+/// The name of a spectrum's basis.
+fn basis_name(b: Basis) -> &'static str {
+    match b {
+        Basis::Energy => "energy",
+        Basis::Photon => "photon",
+    }
+}
+
+/// A limit verdict in one or two words (the `assess` report).
+fn verdict_word(v: &Verdict) -> &'static str {
+    match v {
+        Verdict::Within => "within limit",
+        Verdict::Exceeds => "EXCEEDS",
+        Verdict::NotAssessed(_) => "not assessed",
+        Verdict::NotApplicable(_) => "not applicable",
+    }
+}
+
+/// The maximum exposure time, short (the `assess` report).
+fn t_max(t: &Option<TMax>) -> String {
+    match t {
+        None => "—".into(),
+        Some(TMax::Seconds(s)) => format!("{} s", num(*s)),
+        Some(TMax::NotReached(u)) if u.is_infinite() => "no limit".into(),
+        Some(TMax::NotReached(u)) => format!("> {} s", num(*u)),
+        Some(TMax::BelowRange(s)) => format!("< {} s", num(*s)),
+    }
+}
+
+/// The columns of [`step_rows`].
+const STEP_HEADER: [&str; 8] = [
+    "step",
+    "phase",
+    "lit",
+    "pupil",
+    "room lx",
+    "lx at eye",
+    "melanopic EDI / rod R*/rod/s",
+    "pigment level",
+];
+
+/// One row per schedule step of one cycle.
+fn step_rows(a: &Assessment) -> Vec<Vec<String>> {
+    let unit = a.bleach.as_ref().map_or("", |b| b.level_unit.symbol());
+    a.steps
+        .iter()
+        .map(|s| {
+            vec![
+                s.name.clone(),
+                s.phase.map_or("— (none)".into(), |p| p.name().to_string()),
+                if s.on.is_empty() { "nothing".into() } else { s.on.join(" + ") },
+                format!("{} mm", num(s.pupil.diameter.get::<uom::si::length::millimeter>())),
+                num(s.room_illuminance.get::<uom::si::illuminance::lux>()),
+                num(s.illuminance.get::<uom::si::illuminance::lux>()),
+                match (s.melanopic_edi, s.rod_rate) {
+                    (Some(e), _) => format!("{} lx mEDI", num(e.get::<uom::si::illuminance::lux>())),
+                    (None, Some(r)) => format!("{} R*/rod/s", num(r.get::<uom::si::frequency::hertz>())),
+                    _ => "—".into(),
+                },
+                format!("{} {unit}", num(s.level)),
+            ]
+        })
+        .collect()
+}
+
+/// The pupil rule of each phase, in words.
+fn pupil_line(a: &Assessment) -> Option<String> {
+    use retidose::scenario::file::DarkPupilBasis;
+    let p = a.pupils.as_ref()?;
+    let mm = |x: &retidose::retina::pupil::Pupil| num(x.diameter.get::<uom::si::length::millimeter>());
+    let mut line =
+        format!("Pupil: {} mm in the light phase and unphased steps ({})", mm(&p.light), p.light.basis);
+    if let Some(d) = &p.dark {
+        let why = match p.dark_basis {
+            DarkPupilBasis::Stated => "the scenario's dark_pupil",
+            DarkPupilBasis::RodentDarkAdapted => {
+                "a rodent in the dark phase: the dark-adapted pupil, unless [subject] gives dark_pupil"
+            }
+            DarkPupilBasis::SameAsLight => {
+                "the same rule as the light phase, unless [subject] gives dark_pupil"
+            }
+        };
+        let _ = write!(line, "; {} mm in dark-phase steps ({}; {why})", mm(d), d.basis);
+    }
+    Some(line)
+}
+
+/// Where a guidance comparison was made, in words.
+fn basis_text(g: &GuidanceRow) -> String {
+    match &g.basis {
+        GuidanceBasis::Step(s) => format!("{} (step '{s}')", g.phase.name()),
+        GuidanceBasis::Survey { outside, positions } => {
+            format!("{}: survey, {outside} of {positions} positions outside", g.phase.name())
+        }
+    }
+}
+
+/// Recovery after the last lights-off, in words.
+fn recovery_text(b: &retidose::pigment::bleach::BleachReport) -> String {
+    let t = |x: Option<f64>| x.map_or_else(|| "not reached before the light rose again".to_string(), dur);
+    match b.recoveries.last() {
+        Some(r) => format!(
+            "after lights-off (end of '{}', {:.3} % bleached) 90 % regenerated in {}, 99 % in {}",
+            r.after_step,
+            100.0 * r.bleached_at_start,
+            t(r.to_90_s),
+            t(r.to_99_s)
+        ),
+        None => "no lights-off in the schedule".to_string(),
+    }
+}
+
+/// A duration in h, min or s ("—" when not finite).
+fn dur(s: f64) -> String {
+    if !s.is_finite() {
+        "—".into()
+    } else if s >= 3600.0 {
+        format!("{} h", num(s / 3600.0))
+    } else if s >= 60.0 {
+        format!("{} min", num(s / 60.0))
+    } else {
+        format!("{} s", num(s))
+    }
+}

@@ -1,0 +1,308 @@
+//! The terminal report of `retidose assess`: one section per part of the assessment, with box
+//! tables and, on a terminal, colour.
+
+use std::fmt::Write;
+
+use retidose::assess::{Assessment, SurveyResult};
+use retidose::base::quantity::{SiValue, as_td_f64};
+use retidose::limits::Verdict;
+use retidose::limits::report::LimitsAssessment;
+use retidose::pigment::bleach::BleachReport;
+use retidose::retina::report::RetinaReport;
+
+use super::{paint, table};
+use crate::cli::render::{
+    STEP_HEADER, basis_text, num, pupil_line, recovery_text, step_rows, t_max, verdict_word,
+};
+
+/// The terminal summary.
+pub fn report(all: &[Assessment], colour: bool) -> String {
+    let mut o = String::new();
+    for (i, a) in all.iter().enumerate() {
+        if i > 0 {
+            let _ = writeln!(o, "\n{}\n", "═".repeat(78));
+        }
+        scenario(&mut o, a, colour);
+    }
+    o
+}
+
+/// One assessment, section by section.
+fn scenario(o: &mut String, a: &Assessment, colour: bool) {
+    heading(o, a, colour);
+    if let Some(r) = &a.retina {
+        what_reaches_the_eye(o, r);
+    }
+    if let Some(line) = pupil_line(a) {
+        let _ = writeln!(o, "\n{line}");
+    }
+    if !a.steps.is_empty() {
+        let _ = writeln!(
+            o,
+            "\nSchedule steps (one cycle): what is lit, through every filter, with the pupil of the step's phase"
+        );
+        let _ = writeln!(o, "{}", table(&STEP_HEADER, step_rows(a)));
+    }
+    if let Some(b) = &a.bleach {
+        pigment(o, b);
+    }
+    for (src, l) in &a.limits {
+        limits(o, src, l, colour);
+    }
+    guidance(o, a, colour);
+    for e in &a.evidence {
+        let _ = writeln!(o, "evidence (not a limit): {}: {} — {}", e.name, e.value, e.source);
+    }
+    if let Some(s) = &a.survey {
+        survey(o, s, colour);
+    }
+    closing(o, a, colour);
+}
+
+/// Title, description and cautions.
+fn heading(o: &mut String, a: &Assessment, colour: bool) {
+    let _ = writeln!(o, "{}", paint(&format!("retidose assess — {}", a.title), "1", colour));
+    if let Some(d) = &a.description {
+        let _ = writeln!(o, "{d}");
+    }
+    let _ = writeln!(o);
+    for c in &a.cautions {
+        let _ = writeln!(o, "! {c}");
+    }
+}
+
+/// Each source at the eye (illuminance, trolands, rod rate), then the α-opic quantities.
+fn what_reaches_the_eye(o: &mut String, r: &RetinaReport) {
+    let _ = writeln!(
+        o,
+        "\nWhat reaches the eye ({} eye, pupil {} mm)",
+        r.species.name(),
+        num(r.pupil.area_mm2().sqrt() * 2.0 / std::f64::consts::PI.sqrt())
+    );
+    let rows = r
+        .sources
+        .iter()
+        .map(|s| {
+            let ret = s.retinal.as_ref();
+            let rod = ret
+                .and_then(|x| x.catch.iter().find(|c| c.receptor == "rod"))
+                .map_or("—".into(), |c| num(c.rate.si()));
+            vec![
+                s.label.clone(),
+                s.illuminance.value.map_or("—".into(), |v| format!("{} lx", num(v.si_value()))),
+                ret.map_or("—".into(), |x| num(as_td_f64(x.trolands.photopic))),
+                ret.map_or("—".into(), |x| num(as_td_f64(x.trolands.scotopic))),
+                rod,
+            ]
+        })
+        .collect();
+    let _ = writeln!(
+        o,
+        "{}",
+        table(&["source", "corneal illuminance", "phot td", "scot td", "rod R*/rod/s"], rows)
+    );
+    alpha_opic(o, r);
+}
+
+/// The species' α-opic quantities (retidose's method) and the CIE S 026 ones, all sources.
+fn alpha_opic(o: &mut String, r: &RetinaReport) {
+    if !r.species_opic.is_empty() {
+        let rows = r
+            .species_opic
+            .iter()
+            .map(|c| {
+                vec![
+                    c.channel.clone(),
+                    format!("{} nm", num(c.lambda_max_nm)),
+                    num(c.photon_irradiance.si()),
+                    num(c.equivalent_daylight.si()),
+                ]
+            })
+            .collect();
+        let _ = writeln!(
+            o,
+            "{} α-opic quantities, all sources (retidose method, not a CIE quantity)",
+            r.species.name()
+        );
+        let _ = writeln!(o, "{}", table(&["channel", "λmax", "photons·m⁻²·s⁻¹", "equiv. D65 lx"], rows));
+    }
+    if !r.human_alpha_opic.is_empty() {
+        let rows = r
+            .human_alpha_opic
+            .iter()
+            .map(|a| {
+                vec![
+                    a.name.clone(),
+                    a.edi.map_or("—".into(), |e| num(e.si_value())),
+                    a.der.map_or("—".into(), num),
+                ]
+            })
+            .collect();
+        let _ = writeln!(o, "CIE S 026 α-opic, all sources");
+        let _ = writeln!(o, "{}", table(&["quantity", "EDI", "DER"], rows));
+    }
+}
+
+/// The pigment: one row per phase, peak and mean, recovery, rod threshold and saturation.
+fn pigment(o: &mut String, b: &BleachReport) {
+    let _ = writeln!(o, "\nPigment ({}, {} model)", b.receptor, b.model.name());
+    let rows = b
+        .phases
+        .iter()
+        .map(|p| {
+            vec![
+                p.name.clone(),
+                format!("{} {}", num(p.level), b.level_unit.symbol()),
+                format!("{:.3} %", 100.0 * p.end),
+                format!("{:.3} %", 100.0 * p.steady_state),
+            ]
+        })
+        .collect();
+    let _ = writeln!(o, "{}", table(&["phase", "level", "bleached at end", "steady state"], rows));
+    let _ = writeln!(
+        o,
+        "peak {:.3} %, mean {:.3} %; {}",
+        100.0 * b.summary.peak,
+        100.0 * b.summary.mean,
+        recovery_text(b)
+    );
+    if let Some(th) = b.thresholds.first() {
+        let _ = writeln!(
+            o,
+            "rod threshold within 0.1 log units after ~{} (estimate: {})",
+            th.to_within_0_1_log_min.map_or("> 120 min".into(), |m| format!("{m} min")),
+            th.basis
+        );
+    }
+    if let Some(s) = &b.saturation {
+        let _ = writeln!(o, "{s}");
+    }
+}
+
+/// One limits check: a row per hazard with its verdict, then the risk group.
+fn limits(o: &mut String, src: &str, l: &LimitsAssessment, colour: bool) {
+    let _ = writeln!(o, "\nExposure limits: {src} against {} for {} s", l.set_id, num(l.duration.si()));
+    let rows = l
+        .hazards
+        .iter()
+        .map(|h| {
+            let v = verdict_word(&h.verdict);
+            let v = match h.verdict {
+                Verdict::Exceeds => paint(v, "31;1", colour),
+                Verdict::Within => paint(v, "32", colour),
+                _ => paint(v, "33", colour),
+            };
+            vec![
+                h.name.clone(),
+                h.clause.clone(),
+                h.ratio.map_or("—".into(), num),
+                t_max(&h.t_max),
+                format!("{v}{}", if h.from_memory.is_empty() { "" } else { " [from memory]" }),
+            ]
+        })
+        .collect();
+    let _ = writeln!(o, "{}", table(&["hazard", "clause", "ratio", "t_max", "verdict"], rows));
+    if let Some(Ok(c)) = &l.classification {
+        let _ = writeln!(
+            o,
+            "risk group (IEC 62471) at {} mm: {}{}",
+            num(c.distance.si() * 1e3),
+            c.overall.map_or("—", |g| g.name()),
+            if c.not_assessed.is_empty() { "" } else { " (lower bound: some hazards not assessed)" }
+        );
+        if let Some(e) = c.e_thr_lx {
+            let _ = writeln!(o, "blue-light E_thr {} lx", num(e));
+        }
+        if let Some(d) = c.threshold_distance {
+            let _ = writeln!(o, "blue-light group at most RG1 beyond {} m", num(d.si()));
+        }
+    }
+}
+
+/// The guidance comparisons, a row per rule and phase.
+fn guidance(o: &mut String, a: &Assessment, colour: bool) {
+    if a.guidance.is_empty() {
+        return;
+    }
+    let _ = writeln!(o, "\nGuidance");
+    let rows = a
+        .guidance
+        .iter()
+        .map(|g| {
+            let (phase, f) = (basis_text(g), &g.flag);
+            vec![
+                f.set.clone(),
+                phase.clone(),
+                f.name.clone(),
+                if f.raised { paint("FLAG", "33;1", colour) } else { "ok".into() },
+                f.message.clone(),
+            ]
+        })
+        .collect();
+    let _ = writeln!(o, "{}", table(&["set", "phase", "rule", "", "comparison"], rows));
+}
+
+/// The housing survey: room lux at each rack position, the brightest cage and the counts.
+fn survey(o: &mut String, s: &SurveyResult, colour: bool) {
+    let _ = writeln!(o, "\nHousing survey: {} × {} positions; {}", s.shelves, s.columns, s.mode);
+    let _ =
+        writeln!(o, "room lux at cage level (the NRC Guide's quantity) by shelf (top first), then column:");
+    let mut rows = Vec::new();
+    for shelf in (1..=s.shelves).rev() {
+        let mut row = vec![format!("shelf {shelf}")];
+        for p in s.positions.iter().filter(|p| p.position.shelf == shelf) {
+            let light_flag = p.flags.iter().any(|f| f != "dark-phase");
+            let cell = format!("{:.0}{}", p.room_lux, if light_flag { "*" } else { "" });
+            row.push(if light_flag { paint(&cell, "33", colour) } else { cell });
+        }
+        rows.push(row);
+    }
+    let header: Vec<String> =
+        std::iter::once(String::new()).chain((1..=s.columns).map(|c| format!("col {c}"))).collect();
+    let refs: Vec<&str> = header.iter().map(String::as_str).collect();
+    let _ = writeln!(o, "{}", table(&refs, rows));
+    let top = s.positions.iter().max_by(|a, b| a.room_lux.total_cmp(&b.room_lux));
+    if let Some(t) = top {
+        let _ = writeln!(
+            o,
+            "brightest cage: shelf {} col {}: {} lx room, {} lx in the cage, rod {} R*/rod/s, steady bleach {:.3} %",
+            t.position.shelf,
+            t.position.column,
+            num(t.room_lux),
+            num(t.cage_lux),
+            num(t.rod_rate),
+            100.0 * t.light_bleach
+        );
+    }
+    let light = s.positions.iter().filter(|p| p.flags.iter().any(|f| f != "dark-phase")).count();
+    let dark = s.positions.iter().filter(|p| p.flags.iter().any(|f| f == "dark-phase")).count();
+    let _ = writeln!(
+        o,
+        "max/min over the rack {}×; {light} of {} positions outside the light-phase guidance (*), {dark} with dark-phase light",
+        num(s.max_over_min),
+        s.positions.len()
+    );
+}
+
+/// Sources of limits and guidance, what was not assessed, and the outcome.
+fn closing(o: &mut String, a: &Assessment, colour: bool) {
+    let _ = writeln!(o, "\nSources of limits and guidance");
+    for p in &a.provenance {
+        let _ = writeln!(o, "  - {}: {} ({}) — {}", p.role, p.document, p.edition, p.status);
+    }
+    let _ = writeln!(o, "\nNot assessed");
+    if a.not_assessed.is_empty() {
+        let _ = writeln!(o, "  (nothing)");
+    }
+    for n in &a.not_assessed {
+        let _ = writeln!(o, "  - {n}");
+    }
+    let outcome = if a.limit_exceeded {
+        paint("a limit is exceeded", "31;1", colour)
+    } else if a.flag_raised {
+        paint("a guidance flag is raised", "33;1", colour)
+    } else {
+        "no limit exceeded and no flag raised among the items assessed".to_string()
+    };
+    let _ = writeln!(o, "\nOutcome: {outcome}");
+}

@@ -1,0 +1,208 @@
+//! The terminal tables of `retidose limits list`, `show` and `check`.
+
+use std::fmt::Write;
+
+use retidose::base::quantity::SiValue;
+use retidose::limits::report::{LIMITS_CAUTION, LimitsAssessment};
+use retidose::limits::{
+    Classification, Form, Hazard, HazardResult, LimitQuantity, LimitSet, builtin_sets, builtin_weightings,
+};
+
+use super::{duration_text, notes_and_caution, t_max_text};
+use crate::cli::render::num;
+
+/// The list of limit sets.
+pub fn sets() -> String {
+    let mut o = String::new();
+    let _ = writeln!(o, "{LIMITS_CAUTION}\n");
+    for s in builtin_sets() {
+        let counts: Vec<String> = s.status_counts().iter().map(|(k, n)| format!("{n} {k}")).collect();
+        let _ = writeln!(o, "{}", s.id);
+        let _ = writeln!(o, "  {}", s.document);
+        let _ = writeln!(o, "  edition: {}; errata: {}", s.edition, s.errata);
+        let _ =
+            writeln!(o, "  {} hazards; limit pieces: {}  ({})", s.hazards.len(), counts.join(", "), s.origin);
+    }
+    let _ = writeln!(o, "\nWeighting functions");
+    for w in builtin_weightings() {
+        let (a, b) = w.curve.range_nm();
+        let _ = writeln!(o, "  {:<7} {} ({a}–{b} nm): {} [{}]", w.id, w.name, w.source, w.status);
+    }
+    o
+}
+
+/// One limit set in full.
+pub fn set(s: &LimitSet) -> String {
+    let mut o = String::new();
+    let _ = writeln!(o, "{LIMITS_CAUTION}\n");
+    let _ = writeln!(o, "{} — {}", s.id, s.document);
+    let _ = writeln!(o, "  edition: {}\n  clauses: {}\n  errata: {}", s.edition, s.clauses, s.errata);
+    for n in &s.notes {
+        let _ = writeln!(o, "  note: {n}");
+    }
+    for h in &s.hazards {
+        hazard_definition(&mut o, h);
+    }
+    o
+}
+
+/// One hazard of a set: band, weighting, conditions, C_α, field of view and limit pieces.
+fn hazard_definition(o: &mut String, h: &Hazard) {
+    let w = h.weighting.as_deref().unwrap_or("unweighted");
+    let kind = match h.quantity {
+        LimitQuantity::Irradiance => "irradiance",
+        LimitQuantity::Radiance => "radiance",
+    };
+    let _ = writeln!(
+        o,
+        "\n{} ({}) — {}, {}–{} nm, {w}, {kind}",
+        h.name, h.id, h.clause, h.band_nm.0, h.band_nm.1
+    );
+    for c in &h.conditions {
+        let _ = writeln!(o, "  applies: {c:?}");
+    }
+    if let Some(c) = h.c_alpha {
+        let _ = writeln!(
+            o,
+            "  C_α = α limited to {}–{} mrad{}",
+            num(c.min_rad * 1e3),
+            num(c.max_rad * 1e3),
+            if c.in_mrad { " (coefficients with C_α in mrad)" } else { " (coefficients with C_α in rad)" }
+        );
+    }
+    for f in &h.field_of_view {
+        let _ = writeln!(
+            o,
+            "  field of view {}–{} s: {} rad × t^{}",
+            num(f.from_s),
+            num(f.to_s),
+            num(f.coefficient_rad),
+            f.time_exponent
+        );
+    }
+    for l in &h.limits {
+        let form = match l.form {
+            Form::Dose => "dose",
+            Form::Rate => "rate",
+        };
+        let _ = writeln!(
+            o,
+            "  {}–{} s: {form} ≤ {} × t^{} × C_α^{}  [{}]  {}",
+            num(l.from_s),
+            num(l.to_s),
+            num(l.coefficient),
+            l.time_exponent,
+            l.alpha_exponent,
+            l.status,
+            l.source
+        );
+    }
+    if let Some(b) = h.risk_group_time_bases_s {
+        let _ = writeln!(
+            o,
+            "  risk-group time bases (Exempt, RG1, RG2): {} s, {} s, {} s",
+            num(b[0]),
+            num(b[1]),
+            num(b[2])
+        );
+    }
+}
+
+/// The terminal table of a limits check.
+pub fn check(r: &LimitsAssessment) -> String {
+    let mut o = String::new();
+    let _ = writeln!(o, "{LIMITS_CAUTION}\n");
+    let _ = writeln!(o, "retidose limits check: {} against {}", r.source, r.set_id);
+    let _ = writeln!(o, "  document   {}", r.document);
+    let _ = writeln!(o, "  edition    {}; errata: {}", r.edition, r.errata);
+    let _ = writeln!(o, "  duration   {}", duration_text(r.duration.si()));
+    let _ = writeln!(o, "  spectrum   {}–{} nm", r.range_nm.0, r.range_nm.1);
+    for h in &r.hazards {
+        hazard(&mut o, h);
+    }
+    match &r.classification {
+        None => {}
+        Some(Err(e)) => {
+            let _ = writeln!(o, "\nRisk group (IEC 62471): not assessed: {e}");
+        }
+        Some(Ok(c)) => risk_group(&mut o, c),
+    }
+    notes_and_caution(&mut o, &r.notes);
+    o
+}
+
+/// One hazard of a check: weighted and averaged quantities, exposure against limit, verdict.
+fn hazard(o: &mut String, h: &HazardResult) {
+    let memo = if h.from_memory.is_empty() { String::new() } else { " [from memory]".to_string() };
+    let _ = writeln!(o, "\n{} — {} ({}–{} nm)", h.name, h.clause, h.band_nm.0, h.band_nm.1);
+    if let Some(q) = h.weighted {
+        let _ = writeln!(o, "  weighted        {} {}", num(q), h.quantity_unit);
+    }
+    if let (Some(a), Some(g)) = (h.averaged, h.field_of_view_rad) {
+        let _ = writeln!(o, "  averaged        {} {} over {} mrad", num(a), h.quantity_unit, num(g * 1e3));
+    }
+    if let Some(c) = h.c_alpha {
+        let _ = writeln!(o, "  C_α             {}", num(c));
+    }
+    if let (Some((x, u)), Some((l, _))) = (h.exposure, h.limit) {
+        let _ = writeln!(o, "  exposure/limit  {} / {} {u}", num(x), num(l));
+    }
+    if let Some(r) = h.ratio {
+        let _ = writeln!(o, "  hazard ratio    {}", num(r));
+    }
+    if let Some(r) = h.lower_bound_ratio {
+        let _ = writeln!(o, "  ratio of the covered part (a lower bound) {}", num(r));
+    }
+    if h.t_max.is_some() {
+        let _ = writeln!(o, "  t_max           {}", t_max_text(&h.t_max));
+    }
+    let _ = writeln!(o, "  verdict         {}{memo}", h.verdict.text());
+    if !h.from_memory.is_empty() {
+        let _ = writeln!(o, "  from memory     {}", h.from_memory.join("; "));
+    }
+    if !h.source.is_empty() {
+        let _ = writeln!(o, "  limit from      {}", h.source);
+    }
+}
+
+/// The IEC 62471 risk group of each hazard, the overall group and the blue-light threshold.
+fn risk_group(o: &mut String, c: &Classification) {
+    let _ = writeln!(
+        o,
+        "\nRisk group (IEC 62471 cl. 6) at {} mm ({}), {} lx",
+        num(c.distance.si() * 1e3),
+        c.distance_basis,
+        num(c.illuminance_lx)
+    );
+    for g in &c.hazards {
+        let group = g.group.map_or_else(|| g.reason.clone().unwrap_or_default(), |x| x.name().to_string());
+        let ratios: Vec<String> = g.ratios.iter().map(|x| x.map_or("—".into(), num)).collect();
+        let _ = writeln!(
+            o,
+            "  {:<44} {:<8} (ratios at {}/{}/{} s: {})",
+            g.name,
+            group,
+            num(g.time_bases_s[0]),
+            num(g.time_bases_s[1]),
+            num(g.time_bases_s[2]),
+            ratios.join(", ")
+        );
+    }
+    let overall = c.overall.map_or("—", |x| x.name());
+    let lb = if c.not_assessed.is_empty() { "" } else { " (lower bound: some hazards not assessed)" };
+    let _ = writeln!(o, "  overall: {overall}{lb}");
+    if let Some(k) = c.blue_efficacy_w_per_lm {
+        let _ = writeln!(
+            o,
+            "  blue-light efficacy K_B,v {} mW/lm; E_thr = 1 W/m² / K_B,v = {} lx",
+            num(k * 1e3),
+            num(1.0 / k)
+        );
+    }
+    if let Some(d) = c.threshold_distance {
+        let _ = writeln!(o, "  blue-light group is at most RG1 beyond {} m", num(d.si()));
+    }
+    for n in &c.notes {
+        let _ = writeln!(o, "  note: {n}");
+    }
+}
