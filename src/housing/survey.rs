@@ -80,6 +80,19 @@ pub struct Rack {
 }
 
 impl Rack {
+    /// The number of positions, shelves × columns.
+    ///
+    /// # Errors
+    /// [`crate::ErrorKind::InvalidInput`] for more than [`MAX_POSITIONS`].
+    pub fn count(&self) -> Result<usize> {
+        self.shelves.checked_mul(self.columns).filter(|n| *n <= MAX_POSITIONS).ok_or_else(|| {
+            Error::input(format!(
+                "{} shelves × {} columns is more than the {MAX_POSITIONS} positions a survey may hold",
+                self.shelves, self.columns
+            ))
+        })
+    }
+
     /// The positions, bottom shelf first.
     ///
     /// # Errors
@@ -88,15 +101,7 @@ impl Rack {
         if self.shelves == 0 || self.columns == 0 {
             return Err(Error::input("a rack needs at least one shelf and one column"));
         }
-        let n = self.shelves.checked_mul(self.columns).filter(|n| *n <= MAX_POSITIONS).ok_or_else(|| {
-            Error::input(format!(
-                "{} shelves × {} columns is more than the {MAX_POSITIONS} positions a survey may hold",
-                self.shelves, self.columns
-            ))
-        })?;
-        if !(self.column_spacing_m > 0.0 && self.shelf_spacing_m > 0.0) {
-            return Err(Error::input("rack spacings must be above 0 m"));
-        }
+        let n = self.count()?;
         let mut out = Vec::with_capacity(n);
         for s in 0..self.shelves {
             for c in 0..self.columns {
@@ -345,7 +350,7 @@ pub fn read_measurements(
         };
         let whole = |i: usize, what: &str| -> Result<usize> {
             let v = field(i, what)?;
-            if v.fract() != 0.0 || v < 1.0 || v > 1e9 {
+            if v.fract() != 0.0 || !(1.0..=1e9).contains(&v) {
                 return Err(Error::data(format!(
                     "{origin}:{line}: {what} {v} must be a whole number from 1"
                 )));

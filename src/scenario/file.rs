@@ -409,6 +409,7 @@ fn survey(s: RawSurvey, base: Option<&Path>) -> Result<SurveySpec> {
         bottom_m: len(&s.bottom_shelf, "bottom_shelf")?,
         shelf_spacing_m: len(&s.shelf_spacing, "shelf_spacing")?,
     };
+    rack.count().map_err(|e| e.key("columns"))?;
     let luminaires = s
         .luminaire
         .iter()

@@ -173,7 +173,7 @@ fn bad_arguments_exit_2_with_what_would_be_right() {
         .args(["spectrum", "blackbody:-5K"])
         .assert()
         .code(2)
-        .stderr(predicate::str::contains("must be above 0 K"));
+        .stderr(predicate::str::contains("above 0 K"));
     retidose()
         .args([
             "spectrum",

@@ -2,6 +2,7 @@
 //! library and the test dependencies are linked once.
 
 mod assess;
+mod bad_input;
 mod bleach_reference;
 mod cli;
 mod consistency;
