@@ -32,6 +32,15 @@ pub const TABLE_FILES: &[(&str, &str)] = &[
 /// The α-opic definition file (`src/data/cie_s026_alpha_opic.toml`).
 pub const ALPHA_OPIC_TOML: &str = include_str!("../data/cie_s026_alpha_opic.toml");
 
+/// CIE S 026/E:2018 Table 2, the five α-opic action spectra (file name, text): a six-column
+/// CSV (`wavelength_nm` and one column per function), 380–780 nm at 1 nm, blank where the CIE
+/// leaves the table blank. Not in [`TABLE_FILES`], which holds two-column tables; read by
+/// [`crate::weighting::alpha_opic`].
+pub const ALPHA_OPIC_TABLE: (&str, &str) = (
+    "cie_s026_alpha_opic_action_spectra.csv",
+    include_str!("../data/cie_s026_alpha_opic_action_spectra.csv"),
+);
+
 /// The parsed reference tables.
 #[derive(Debug)]
 pub struct Tables {
@@ -86,6 +95,24 @@ mod tests {
             assert!(t.meta("status").is_some(), "{name} has no status");
             assert!(t.curve.values().iter().all(|v| *v >= 0.0), "{name}");
         }
+    }
+
+    #[test]
+    fn alpha_opic_table_names_source_licence_and_status() {
+        let (name, text) = ALPHA_OPIC_TABLE;
+        let meta = |key: &str| {
+            text.lines()
+                .filter_map(|l| l.strip_prefix(&format!("# {key}: ")))
+                .next()
+                .unwrap_or_else(|| panic!("{name} has no {key}"))
+        };
+        assert!(meta("source").contains("CIE S 026/E:2018") && meta("source").contains("Table 2"));
+        assert!(meta("source").contains("10.25039/CIE.DS.vqqhzp5a"));
+        assert!(meta("licence").starts_with("CC BY-SA 4.0"));
+        assert!(meta("attribution").contains("CIE"));
+        assert!(meta("transcribed_from").contains("luxpy 1.12.5"));
+        assert!(meta("transcribed_from").contains("tests/make_s026_table.py"));
+        assert!(meta("status").starts_with("confirmed"));
     }
 
     #[test]

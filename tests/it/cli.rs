@@ -62,7 +62,7 @@ fn json_has_stable_fields_with_units() {
         assert_eq!(a["edi"]["unit"], "lx");
         assert!(a["elr_mw_per_lm"].as_f64().unwrap() > 0.0);
     }
-    assert_eq!(alpha[4]["reconstructed"], true);
+    assert_eq!(alpha[4]["reconstructed"], false, "CIE S 026 Table 2 is used, not a reconstruction");
     assert!(v["sp_ratio"].as_f64().unwrap() > 2.4);
     assert_eq!(v["bands"].as_array().unwrap().len(), 4);
 }
@@ -201,7 +201,7 @@ fn sources_lists_lamps_and_tables_with_status() {
         .stdout(predicate::str::contains("warm-white-led"))
         .stdout(predicate::str::contains("cie_1924_photopic_v.csv"))
         .stdout(predicate::str::contains("status: confirmed"))
-        .stdout(predicate::str::contains("from memory"));
+        .stdout(predicate::str::contains("status: derived"));
 }
 
 #[test]
