@@ -183,14 +183,16 @@ pub struct Assessment {
     pub pupils: Option<PupilUse>,
     /// What the eye receives from each source (light-phase pupil).
     pub retina: Option<RetinaReport>,
-    /// Corneal spectral irradiance of each source after every filter (for plots), by id.
+    /// Corneal spectral irradiance of each source after every filter (for plots), by id; not
+    /// serialised.
+    #[serde(skip)]
     pub spectra: Vec<(String, Spectrum)>,
     /// What is lit in each step of one cycle.
     pub steps: Vec<StepLight>,
     /// Pigment over the schedule.
     pub bleach: Option<BleachReport>,
-    /// Limit checks, per source id and set.
-    pub limits: Vec<(String, LimitsAssessment)>,
+    /// Limit checks, per source (its id is each check's `source`) and set.
+    pub limits: Vec<LimitsAssessment>,
     /// Guidance comparisons.
     pub guidance: Vec<GuidanceRow>,
     /// Evidence to show beside the guidance.
@@ -278,7 +280,7 @@ fn assess_inner(s: &Scenario) -> Result<Assessment> {
                 .push(format!("{}: retinal quantities (the radiance the eye sees is not known)", src.label));
         }
     }
-    let limit_exceeded = limits.iter().any(|(_, l)| l.hazards.iter().any(|h| h.verdict == Verdict::Exceeds));
+    let limit_exceeded = limits.iter().any(|l| l.hazards.iter().any(|h| h.verdict == Verdict::Exceeds));
     let flag_raised =
         guidance.iter().any(|g| g.flag.raised) || survey.as_ref().is_some_and(|sv| sv.flagged > 0);
     Ok(Assessment {
@@ -514,7 +516,7 @@ fn run_limits(
     l: &LimitsSpec,
     provenance: &mut Vec<Provenance>,
     not_assessed: &mut Vec<String>,
-) -> Result<Vec<(String, LimitsAssessment)>> {
+) -> Result<Vec<LimitsAssessment>> {
     if s.species != Species::Human {
         not_assessed.push(
             "exposure limits: the limits are for humans; they are evaluated for the light as placed, not for the animals"
@@ -550,7 +552,7 @@ fn run_limits(
                     not_assessed.push(format!("{id} / {} / {}: {why}", set.id, h.name));
                 }
             }
-            out.push((id.clone(), r));
+            out.push(r);
         }
     }
     Ok(out)

@@ -123,6 +123,14 @@ pub fn as_td_f64(r: RetinalIlluminance) -> f64 {
     r.si() * 1e6
 }
 
+/// Serialises a retinal illuminance in trolands (its SI value in cd would mislead readers).
+///
+/// # Errors
+/// As the serializer.
+pub fn serialize_td<S: serde::Serializer>(r: &RetinalIlluminance, s: S) -> Result<S::Ok, S::Error> {
+    s.serialize_f64(as_td_f64(*r))
+}
+
 /// Builds a wavelength from nanometres.
 pub fn nm(value_nm: f64) -> Length {
     Length::new::<uom::si::length::nanometer>(value_nm)

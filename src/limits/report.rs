@@ -53,9 +53,29 @@ pub struct LimitsAssessment {
     /// Per hazard.
     pub hazards: Vec<HazardResult>,
     /// Risk groups, if asked for and possible.
+    #[serde(serialize_with = "classification_json")]
     pub classification: Option<std::result::Result<Classification, String>>,
     /// Hazards not assessed or resting on from-memory values, and the set's notes.
     pub notes: Vec<String>,
+}
+
+/// Serialises a classification as `{"classified": …}` or `{"not_classified": "reason"}`.
+fn classification_json<S: serde::Serializer>(
+    c: &Option<std::result::Result<Classification, String>>,
+    s: S,
+) -> std::result::Result<S::Ok, S::Error> {
+    use serde::ser::SerializeMap;
+    match c {
+        None => s.serialize_none(),
+        Some(r) => {
+            let mut m = s.serialize_map(Some(1))?;
+            match r {
+                Ok(c) => m.serialize_entry("classified", c)?,
+                Err(why) => m.serialize_entry("not_classified", why)?,
+            }
+            m.end()
+        }
+    }
 }
 
 /// Assesses a source against a set.

@@ -41,12 +41,16 @@ pub fn stiles_crawford_area_mm2(d_mm: f64, rho_per_mm2: f64) -> f64 {
 #[derive(Debug, Clone, Copy, PartialEq, serde::Serialize)]
 pub struct Trolands {
     /// Photopic retinal illuminance.
+    #[serde(serialize_with = "crate::base::quantity::serialize_td")]
     pub photopic: RetinalIlluminance,
     /// Scotopic retinal illuminance.
+    #[serde(serialize_with = "crate::base::quantity::serialize_td")]
     pub scotopic: RetinalIlluminance,
     /// Photopic, Stiles–Crawford corrected, Barten's closed form.
+    #[serde(serialize_with = "crate::base::quantity::serialize_td")]
     pub photopic_effective_barten: RetinalIlluminance,
     /// Photopic, Stiles–Crawford corrected, integral form.
+    #[serde(serialize_with = "crate::base::quantity::serialize_td")]
     pub photopic_effective_integral: RetinalIlluminance,
 }
 

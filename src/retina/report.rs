@@ -42,7 +42,9 @@ pub struct RetinaScenario {
 pub struct SourceAtEye {
     /// Source name.
     pub label: String,
-    /// Corneal spectral irradiance after every filter.
+    /// Corneal spectral irradiance after every filter (not serialised: the `retina` command
+    /// writes spectra as CSV).
+    #[serde(skip)]
     pub corneal_irradiance: Spectrum,
     /// CIE S 026 α-opic quantities of this source alone (human eyes).
     pub human_alpha_opic: Vec<AlphaOpicValue>,
@@ -88,7 +90,8 @@ impl SourceAtEye {
 /// Retinal quantities of one source.
 #[derive(Debug, Clone, PartialEq, serde::Serialize)]
 pub struct Retinal {
-    /// Retinal spectral irradiance.
+    /// Retinal spectral irradiance (not serialised: the `retina` command writes it as CSV).
+    #[serde(skip)]
     pub spectral_irradiance: Spectrum,
     /// Retinal irradiance (radiant total).
     pub irradiance: Radiometric,
@@ -117,7 +120,8 @@ pub struct RetinaReport {
     pub filters: Vec<String>,
     /// Per source.
     pub sources: Vec<SourceAtEye>,
-    /// Sum of all sources at the cornea (spectral irradiance).
+    /// Sum of all sources at the cornea (spectral irradiance; not serialised).
+    #[serde(skip)]
     pub total_corneal: Spectrum,
     /// Total corneal illuminance.
     pub total_illuminance: PhotometricResult,

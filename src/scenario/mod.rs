@@ -1,10 +1,10 @@
 //! Scenario text to typed values, once.
 //!
-//! [`file`] is the only code that reads a scenario file: it parses the text, then resolves it
+//! [`mod@file`] is the only code that reads a scenario file: it parses the text, then resolves it
 //! into a [`file::Scenario`] of typed values (species and pigmentation as enums, every source
 //! placed and scaled, the filters, the pupil rule for each phase, a schedule with explicit
-//! phases, relative paths taken from the scenario's own folder). [`retina`] holds the source,
-//! subject and filter tables shared with the `retina` command, and [`bleach`] the bleaching
+//! phases, relative paths taken from the scenario's own folder). [`mod@retina`] holds the source,
+//! subject and filter tables shared with the `retina` command, and [`mod@bleach`] the bleaching
 //! schedule files of the `bleach` command.
 
 pub mod bleach;

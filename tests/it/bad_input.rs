@@ -31,7 +31,8 @@ fn vivarium() -> String {
 }
 
 fn review() -> String {
-    String::from_utf8(retidose().args(["assess", "--example", "stimulus-review"]).output().unwrap().stdout).unwrap()
+    String::from_utf8(retidose().args(["assess", "--example", "stimulus-review"]).output().unwrap().stdout)
+        .unwrap()
 }
 
 /// Runs `assess` on `text` and expects exit 2 with every needle in the message.

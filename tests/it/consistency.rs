@@ -83,14 +83,22 @@ fn vivarium_json_carries_the_library_figures() {
         .output()
         .unwrap();
     let v: Value = serde_json::from_slice(&out.stdout).unwrap();
-    let catch = v["sources"][0]["catch"].as_array().unwrap();
-    let rod =
-        catch.iter().find(|c| c["receptor"] == "rod").unwrap()["r_star_per_receptor_per_s"].as_f64().unwrap();
+    assert_eq!(v["schema"], "retidose.assessment/2");
+    let catch = v["retina"]["sources"][0]["retinal"]["catch"].as_array().unwrap();
+    let rod = catch.iter().find(|c| c["receptor"] == "rod").unwrap()["rate"].as_f64().unwrap();
     assert!(rel(rod, retina_rod(&a, 0)) < 1e-12);
     let phases = v["bleach"]["phases"].as_array().unwrap();
     for p in phases {
         let lib = a.bleach.as_ref().unwrap().phases.iter().find(|x| x.name == p["name"]).unwrap();
         assert!(rel(p["level"].as_f64().unwrap(), lib.level) < 1e-12);
+    }
+    for (s, lib) in v["steps"].as_array().unwrap().iter().zip(&a.steps) {
+        assert!(rel(s["level"].as_f64().unwrap(), lib.level) < 1e-12);
+        assert!(rel(s["rod_rate"].as_f64().unwrap(), lib.rod_rate.unwrap().si()) < 1e-12);
+    }
+    let positions = v["survey"]["positions"].as_array().unwrap();
+    for (p, lib) in positions.iter().zip(&a.survey.as_ref().unwrap().positions) {
+        assert!(rel(p["dark_rod_rate"].as_f64().unwrap(), lib.dark_rod_rate) < 1e-12);
     }
     let text = String::from_utf8(
         Command::cargo_bin("retidose")

@@ -81,7 +81,8 @@ fn survey_rows(o: &mut String, all: &[Assessment]) {
 fn hazard_rows(o: &mut String, all: &[Assessment]) {
     o.push_str("scenario,source,set,hazard,clause,ratio,t_max_s,verdict,reason\n");
     for a in all {
-        for (src, l) in &a.limits {
+        for l in &a.limits {
+            let src = &l.source;
             for h in &l.hazards {
                 let reason = match &h.verdict {
                     Verdict::NotAssessed(r) | Verdict::NotApplicable(r) => r.clone(),

@@ -170,7 +170,8 @@ fn limits(o: &mut String, a: &Assessment) {
     let bars: Vec<(String, f64)> = a
         .limits
         .iter()
-        .flat_map(|(src, l)| {
+        .flat_map(|l| {
+            let src = &l.source;
             l.hazards
                 .iter()
                 .filter_map(move |h| h.ratio.map(|r| (format!("{src} · {} · {}", l.set_id, h.id), r)))
@@ -180,7 +181,8 @@ fn limits(o: &mut String, a: &Assessment) {
     if !bars.is_empty() {
         o.push_str(&svg::bars("hazard ratios (exposure ÷ limit)", &bars));
     }
-    for (src, l) in &a.limits {
+    for l in &a.limits {
+        let src = &l.source;
         limits_table(o, src, l);
     }
 }

@@ -20,7 +20,8 @@ pub fn assessment(all: &[Assessment]) -> String {
         if let Some(b) = &a.bleach {
             pigment(&mut o, b);
         }
-        for (src, l) in &a.limits {
+        for l in &a.limits {
+            let src = &l.source;
             limits(&mut o, src, l);
         }
         if !a.guidance.is_empty() {

@@ -46,7 +46,8 @@ fn scenario(o: &mut String, a: &Assessment, colour: bool) {
     if let Some(b) = &a.bleach {
         pigment(o, b);
     }
-    for (src, l) in &a.limits {
+    for l in &a.limits {
+        let src = &l.source;
         limits(o, src, l, colour);
     }
     guidance(o, a, colour);
