@@ -31,7 +31,7 @@ pub fn report(all: &[Assessment], colour: bool) -> String {
 fn scenario(o: &mut String, a: &Assessment, colour: bool) {
     heading(o, a, colour);
     if let Some(r) = &a.retina {
-        what_reaches_the_eye(o, r);
+        what_reaches_the_eye(o, a, r);
     }
     if let Some(line) = pupil_line(a) {
         let _ = writeln!(o, "\n{line}");
@@ -73,7 +73,7 @@ fn heading(o: &mut String, a: &Assessment, colour: bool) {
 }
 
 /// Each source at the eye (illuminance, trolands, rod rate), then the α-opic quantities.
-fn what_reaches_the_eye(o: &mut String, r: &RetinaReport) {
+fn what_reaches_the_eye(o: &mut String, a: &Assessment, r: &RetinaReport) {
     let _ = writeln!(
         o,
         "\nWhat reaches the eye ({} eye, pupil {} mm)",
@@ -102,46 +102,45 @@ fn what_reaches_the_eye(o: &mut String, r: &RetinaReport) {
         "{}",
         table(&["source", "corneal illuminance", "phot td", "scot td", "rod R*/rod/s"], rows)
     );
-    alpha_opic(o, r);
+    alpha_opic(o, a, r);
 }
 
-/// The species' α-opic quantities (retidose's method) and the CIE S 026 ones, all sources.
-fn alpha_opic(o: &mut String, r: &RetinaReport) {
-    if !r.species_opic.is_empty() {
-        let rows = r
-            .species_opic
-            .iter()
-            .map(|c| {
-                vec![
-                    c.channel.clone(),
-                    format!("{} nm", num(c.lambda_max_nm)),
-                    num(c.photon_irradiance.si()),
-                    num(c.equivalent_daylight.si()),
-                ]
-            })
-            .collect();
-        let _ = writeln!(
-            o,
-            "{} α-opic quantities, all sources (retidose method, not a CIE quantity)",
+/// α-opic quantities per source and per schedule step (what is lit together), never summed over
+/// sources that are not lit together: CIE S 026 EDI for people, retidose's equivalent-daylight
+/// values for rodents.
+fn alpha_opic(o: &mut String, a: &Assessment, r: &RetinaReport) {
+    let human = !r.sources.iter().all(|s| s.human_alpha_opic.is_empty());
+    let names: Vec<String> = match r.sources.first() {
+        Some(s) if human => s.human_alpha_opic.iter().map(|x| x.name.clone()).collect(),
+        Some(s) => s.species_opic.iter().map(|x| x.channel.clone()).collect(),
+        None => return,
+    };
+    let human_row = |v: &[retidose::weighting::alpha_opic::AlphaOpicValue]| -> Vec<String> {
+        v.iter().map(|x| x.edi.map_or("—".into(), |e| num(e.si_value()))).collect()
+    };
+    let rodent_row = |v: &[retidose::retina::catch::SpeciesOpic]| -> Vec<String> {
+        v.iter().map(|x| num(x.equivalent_daylight.si())).collect()
+    };
+    let mut rows: Vec<Vec<String>> = Vec::new();
+    for s in &r.sources {
+        let vals = if human { human_row(&s.human_alpha_opic) } else { rodent_row(&s.species_opic) };
+        rows.push([vec![format!("source {}", s.label)], vals].concat());
+    }
+    for st in a.steps.iter().filter(|st| !st.on.is_empty()) {
+        let vals = if human { human_row(&st.alpha_opic) } else { rodent_row(&st.species_opic) };
+        rows.push([vec![format!("step {}", st.name)], vals].concat());
+    }
+    let title = if human {
+        "CIE S 026 α-opic EDI, lx, per source and per step (sources lit together)".to_string()
+    } else {
+        format!(
+            "{} α-opic equivalent D65 lx, per source and per step (retidose method, not a CIE quantity)",
             r.species.name()
-        );
-        let _ = writeln!(o, "{}", table(&["channel", "λmax", "photons·m⁻²·s⁻¹", "equiv. D65 lx"], rows));
-    }
-    if !r.human_alpha_opic.is_empty() {
-        let rows = r
-            .human_alpha_opic
-            .iter()
-            .map(|a| {
-                vec![
-                    a.name.clone(),
-                    a.edi.map_or("—".into(), |e| num(e.si_value())),
-                    a.der.map_or("—".into(), num),
-                ]
-            })
-            .collect();
-        let _ = writeln!(o, "CIE S 026 α-opic, all sources");
-        let _ = writeln!(o, "{}", table(&["quantity", "EDI", "DER"], rows));
-    }
+        )
+    };
+    let header: Vec<&str> = std::iter::once("").chain(names.iter().map(String::as_str)).collect();
+    let _ = writeln!(o, "{title}");
+    let _ = writeln!(o, "{}", table(&header, rows));
 }
 
 /// The pigment: one row per phase, peak and mean, recovery, rod threshold and saturation.
