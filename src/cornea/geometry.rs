@@ -152,6 +152,10 @@ fn require(s: &Spectrum, measure: Measure, geometry: &str) -> Result<()> {
     Ok(())
 }
 
+/// What one geometry gives: the corneal spectral irradiance, the seen spectral radiance if
+/// known, the subtense (rad) if known, and whether the radiance was derived.
+type Arrival = (Spectrum, Option<Spectrum>, Option<f64>, bool);
+
 /// The corneal spectra of one source.
 ///
 /// # Errors
@@ -160,36 +164,12 @@ fn require(s: &Spectrum, measure: Measure, geometry: &str) -> Result<()> {
 /// a subtense not within 0 and π), with the allowed range.
 pub fn corneal(spectrum: &Spectrum, geometry: &Geometry) -> Result<Corneal> {
     let mut notes = Vec::new();
-    let derive = |e: &Spectrum, alpha: Option<f64>, notes: &mut Vec<String>| -> Result<Option<Spectrum>> {
-        match alpha {
-            Some(a) => {
-                notes.push(format!(
-                    "radiance derived from the irradiance and a subtense of {:.4} mrad (uniform disc: L = E / (π sin²(α/2)))",
-                    a * 1e3
-                ));
-                Ok(Some(e.scaled_as(1.0 / projected_solid_angle(a), Measure::Radiance)?))
-            }
-            None => Ok(None),
-        }
-    };
-    let small_source =
-        |i_factor: f64, d: f64, incidence: f64, size: Option<Length>, notes: &mut Vec<String>| {
-            let e = spectrum.scaled_as(i_factor * incidence.cos() / (d * d), Measure::Irradiance)?;
-            let alpha = size.map(|s| subtense(s, Length::from_si(d))).transpose()?.map(|a| a.si());
-            if alpha.is_none() {
-                notes.push("radiance not known: give the source size to derive it".to_string());
-            }
-            let radiance = derive(&e, alpha, notes)?;
-            Ok::<_, Error>((e, radiance, alpha))
-        };
     let (irradiance, radiance, alpha, derived) = match geometry {
         Geometry::Intensity { distance, incidence, size } => {
             require(spectrum, Measure::Intensity, "intensity")?;
             let d = check_distance(*distance)?;
             let inc = check_angle(*incidence, "angle of incidence")?;
-            let (e, l, a) = small_source(1.0, d, inc, *size, &mut notes)?;
-            let derived = l.is_some();
-            (e, l, a, derived)
+            small_source(spectrum, 1.0, d, inc, *size, &mut notes)?
         }
         Geometry::Flux { emission, distance, emission_angle, incidence, size } => {
             require(spectrum, Measure::Flux, "flux")?;
@@ -199,9 +179,7 @@ pub fn corneal(spectrum: &Spectrum, geometry: &Geometry) -> Result<Corneal> {
                 Emission::Isotropic => 1.0 / (4.0 * PI),
                 Emission::Lambertian => check_angle(*emission_angle, "emission angle")?.cos() / PI,
             };
-            let (e, l, a) = small_source(factor, d, inc, *size, &mut notes)?;
-            let derived = l.is_some();
-            (e, l, a, derived)
+            small_source(spectrum, factor, d, inc, *size, &mut notes)?
         }
         Geometry::Extended { subtense } => {
             require(spectrum, Measure::Radiance, "extended-source")?;
@@ -209,30 +187,7 @@ pub fn corneal(spectrum: &Spectrum, geometry: &Geometry) -> Result<Corneal> {
             let e = spectrum.scaled_as(projected_solid_angle(a), Measure::Irradiance)?;
             (e, Some(spectrum.clone()), Some(a), false)
         }
-        Geometry::AtEye { field } => {
-            require(spectrum, Measure::Irradiance, "at-the-eye")?;
-            match field {
-                Some(Field::Subtense(a)) => {
-                    let a = check_subtense(*a)?;
-                    let l = derive(spectrum, Some(a), &mut notes)?;
-                    (spectrum.clone(), l, Some(a), true)
-                }
-                Some(Field::FullField) => {
-                    notes.push(
-                        "radiance derived for a full field (light arriving evenly from the hemisphere: L = E/π)"
-                            .to_string(),
-                    );
-                    (spectrum.clone(), Some(spectrum.scaled_as(1.0 / PI, Measure::Radiance)?), None, true)
-                }
-                None => {
-                    notes.push(
-                        "radiance not known: give the source's subtense, or say the light fills the field"
-                            .to_string(),
-                    );
-                    (spectrum.clone(), None, None, false)
-                }
-            }
-        }
+        Geometry::AtEye { field } => at_eye(spectrum, *field, &mut notes)?,
     };
     Ok(Corneal {
         irradiance: irradiance.with_label(spectrum.label()),
@@ -241,6 +196,67 @@ pub fn corneal(spectrum: &Spectrum, geometry: &Geometry) -> Result<Corneal> {
         subtense: alpha.map(Angle::from_si),
         full_field: matches!(geometry, Geometry::AtEye { field: Some(Field::FullField) }),
         notes,
+    })
+}
+
+/// The radiance of a uniform disc of full angle `alpha` rad giving irradiance `e`, with a
+/// note saying so; `None` when the subtense is not known.
+fn derive_radiance(e: &Spectrum, alpha: Option<f64>, notes: &mut Vec<String>) -> Result<Option<Spectrum>> {
+    match alpha {
+        Some(a) => {
+            notes.push(format!(
+                "radiance derived from the irradiance and a subtense of {:.4} mrad (uniform disc: L = E / (π sin²(α/2)))",
+                a * 1e3
+            ));
+            Ok(Some(e.scaled_as(1.0 / projected_solid_angle(a), Measure::Radiance)?))
+        }
+        None => Ok(None),
+    }
+}
+
+/// A small source of intensity `i_factor` × `spectrum` at `d` m and incidence `incidence`
+/// rad; its radiance is derived when its size is known.
+fn small_source(
+    spectrum: &Spectrum,
+    i_factor: f64,
+    d: f64,
+    incidence: f64,
+    size: Option<Length>,
+    notes: &mut Vec<String>,
+) -> Result<Arrival> {
+    let e = spectrum.scaled_as(i_factor * incidence.cos() / (d * d), Measure::Irradiance)?;
+    let alpha = size.map(|s| subtense(s, Length::from_si(d))).transpose()?.map(|a| a.si());
+    if alpha.is_none() {
+        notes.push("radiance not known: give the source size to derive it".to_string());
+    }
+    let radiance = derive_radiance(&e, alpha, notes)?;
+    let derived = radiance.is_some();
+    Ok((e, radiance, alpha, derived))
+}
+
+/// A spectral irradiance measured at the eye, with what the eye sees if known.
+fn at_eye(spectrum: &Spectrum, field: Option<Field>, notes: &mut Vec<String>) -> Result<Arrival> {
+    require(spectrum, Measure::Irradiance, "at-the-eye")?;
+    Ok(match field {
+        Some(Field::Subtense(a)) => {
+            let a = check_subtense(a)?;
+            let l = derive_radiance(spectrum, Some(a), notes)?;
+            (spectrum.clone(), l, Some(a), true)
+        }
+        Some(Field::FullField) => {
+            notes.push(
+                "radiance derived for a full field (light arriving evenly from the hemisphere: L = E/π)"
+                    .to_string(),
+            );
+            (spectrum.clone(), Some(spectrum.scaled_as(1.0 / PI, Measure::Radiance)?), None, true)
+        }
+        None => {
+            notes.push(
+                "radiance not known: give the source's subtense, or say the light fills the field"
+                    .to_string(),
+            );
+            (spectrum.clone(), None, None, false)
+        }
     })
 }
 

@@ -231,8 +231,9 @@ fn t_max(h: &Hazard, p: &Prepared) -> Option<TMax> {
     Some(TMax::NotReached(last))
 }
 
-/// Evaluates one hazard.
-pub(super) fn assess(h: &Hazard, e: &Exposure<'_>) -> HazardResult {
+/// A result for `h` with nothing evaluated yet, carrying the from-memory notes of its
+/// weighting and definition.
+fn blank_result(h: &Hazard) -> HazardResult {
     let mut out = HazardResult {
         id: h.id.clone(),
         name: h.name.clone(),
@@ -261,118 +262,119 @@ pub(super) fn assess(h: &Hazard, e: &Exposure<'_>) -> HazardResult {
     if h.status.starts_with("from memory") {
         out.from_memory.push(format!("hazard definition ({})", h.clause));
     }
-    let not = |mut o: HazardResult, v: Verdict| {
-        o.verdict = v;
-        o
-    };
+    out
+}
+
+/// `out` with its verdict set to `v`.
+fn with_verdict(mut out: HazardResult, v: Verdict) -> HazardResult {
+    out.verdict = v;
+    out
+}
+
+/// The spectrum the hazard is evaluated on, if the hazard applies to the exposure: the
+/// opt-in rule, the quantity the hazard limits, then its conditions of application.
+fn applicable_spectrum<'a>(h: &Hazard, e: &Exposure<'a>) -> Result<&'a Spectrum, Verdict> {
     if h.conditions.contains(&Condition::OptIn) && !e.aphakic {
-        return not(
-            out,
-            Verdict::NotApplicable("opt-in hazard for aphakic eyes and infants (ask for it)".into()),
-        );
+        return Err(Verdict::NotApplicable("opt-in hazard for aphakic eyes and infants (ask for it)".into()));
     }
     let spectrum = match h.quantity {
         LimitQuantity::Irradiance => e.irradiance,
         LimitQuantity::Radiance => match e.radiance {
             Some(l) => l,
             None => {
-                return not(
-                    out,
-                    Verdict::NotAssessed(
-                        "needs the radiance the eye sees: give the source's size or subtense".into(),
-                    ),
-                );
+                return Err(Verdict::NotAssessed(
+                    "needs the radiance the eye sees: give the source's size or subtense".into(),
+                ));
             }
         },
     };
-    let alpha = e.subtense_rad;
     for c in &h.conditions {
         match *c {
-            Condition::SmallerThanRad(r) => match (alpha, e.full_field) {
-                (_, true) => {
-                    return not(
-                        out,
-                        Verdict::NotApplicable(format!(
-                            "the light fills the field (not a source below {r} rad)"
-                        )),
-                    );
-                }
-                (Some(a), _) if a >= r => {
-                    return not(
-                        out,
-                        Verdict::NotApplicable(format!("source subtends {a:.4} rad, not below {r} rad")),
-                    );
-                }
-                (None, _) => return not(out, Verdict::NotAssessed("needs the source's subtense".into())),
-                _ => {}
-            },
-            Condition::AtLeastRad(r) => match (alpha, e.full_field) {
-                (_, true) => {}
-                (Some(a), _) if a < r => {
-                    return not(
-                        out,
-                        Verdict::NotApplicable(format!("source subtends {a:.4} rad, below {r} rad")),
-                    );
-                }
-                (None, _) => return not(out, Verdict::NotAssessed("needs the source's subtense".into())),
-                _ => {}
-            },
-            Condition::LuminanceBelow(limit) => {
-                let lum = e.radiance.map(|l| photopic(l).raw);
-                match lum {
-                    None => return not(out, Verdict::NotAssessed("needs the seen luminance".into())),
-                    Some(l) if l >= limit => {
-                        return not(
-                            out,
-                            Verdict::NotApplicable(format!(
-                                "seen luminance {l:.3} cd/m² is not below {limit} cd/m² (a visible stimulus)"
-                            )),
-                        );
-                    }
-                    _ => {}
-                }
-            }
+            Condition::SmallerThanRad(r) => check_smaller_than(r, e)?,
+            Condition::AtLeastRad(r) => check_at_least(r, e)?,
+            Condition::LuminanceBelow(limit) => check_luminance_below(limit, e)?,
             Condition::OptIn => {}
         }
     }
-    let w = band_weighting(h);
-    let (q, coverage) = spectrum.to_energy().weighted(&w);
-    out.weighted = Some(q);
-    out.coverage = Some(coverage);
-    let p = Prepared { q, alpha, full_field: e.full_field };
+    Ok(spectrum)
+}
+
+/// The condition "only for sources smaller than `r` rad".
+fn check_smaller_than(r: f64, e: &Exposure<'_>) -> Result<(), Verdict> {
+    match (e.subtense_rad, e.full_field) {
+        (_, true) => {
+            Err(Verdict::NotApplicable(format!("the light fills the field (not a source below {r} rad)")))
+        }
+        (Some(a), _) if a >= r => {
+            Err(Verdict::NotApplicable(format!("source subtends {a:.4} rad, not below {r} rad")))
+        }
+        (None, _) => Err(Verdict::NotAssessed("needs the source's subtense".into())),
+        _ => Ok(()),
+    }
+}
+
+/// The condition "only for sources of at least `r` rad".
+fn check_at_least(r: f64, e: &Exposure<'_>) -> Result<(), Verdict> {
+    match (e.subtense_rad, e.full_field) {
+        (_, true) => Ok(()),
+        (Some(a), _) if a < r => {
+            Err(Verdict::NotApplicable(format!("source subtends {a:.4} rad, below {r} rad")))
+        }
+        (None, _) => Err(Verdict::NotAssessed("needs the source's subtense".into())),
+        _ => Ok(()),
+    }
+}
+
+/// The condition "only when the seen luminance is below `limit` cd/m²".
+fn check_luminance_below(limit: f64, e: &Exposure<'_>) -> Result<(), Verdict> {
+    let lum = e.radiance.map(|l| photopic(l).raw);
+    match lum {
+        None => Err(Verdict::NotAssessed("needs the seen luminance".into())),
+        Some(l) if l >= limit => Err(Verdict::NotApplicable(format!(
+            "seen luminance {l:.3} cd/m² is not below {limit} cd/m² (a visible stimulus)"
+        ))),
+        _ => Ok(()),
+    }
+}
+
+/// The exposure duration, s, and the schedule's mean relative level (1 for a constant
+/// exposure).
+fn duration_and_factor(e: &Exposure<'_>) -> Result<(f64, f64), Verdict> {
     let t = e.duration.si();
     if !(t > 0.0 && t.is_finite()) {
-        return not(out, Verdict::NotAssessed(format!("exposure duration {t} s must be above 0 s")));
+        return Err(Verdict::NotAssessed(format!("exposure duration {t} s must be above 0 s")));
     }
     let factor = match e.schedule {
         None => 1.0,
         Some(steps) => {
             let total: f64 = steps.iter().map(|s| s.0).sum();
             if total <= 0.0 {
-                return not(out, Verdict::NotAssessed("the schedule has no duration".into()));
+                return Err(Verdict::NotAssessed("the schedule has no duration".into()));
             }
             steps.iter().map(|s| s.0 * s.1).sum::<f64>() / total
         }
     };
-    out.field_of_view_rad = fov_at(h, t);
-    out.c_alpha = p.c_alpha(h);
-    out.averaged = p.averaged(h, t);
-    let Some((dose, allowed, seg)) = p.ratio(h, t, factor) else {
-        let (a, b) = (h.limits[0].from_s, h.limits[h.limits.len() - 1].to_s);
-        let reason = if segment_at(h, t).is_none() {
-            format!("this set gives no limit for t = {t} s (it covers {a}–{b} s)")
-        } else if h.c_alpha.is_some() && p.c_alpha(h).is_none() {
-            "needs the source's subtense for C_α".to_string()
-        } else {
-            "needs the source's subtense to average over the field of view".to_string()
-        };
-        return not(out, Verdict::NotAssessed(reason));
-    };
+    Ok((t, factor))
+}
+
+/// Why no ratio could be formed at duration `t`.
+fn no_limit_reason(h: &Hazard, p: &Prepared, t: f64) -> String {
+    let (a, b) = (h.limits[0].from_s, h.limits[h.limits.len() - 1].to_s);
+    if segment_at(h, t).is_none() {
+        format!("this set gives no limit for t = {t} s (it covers {a}–{b} s)")
+    } else if h.c_alpha.is_some() && p.c_alpha(h).is_none() {
+        "needs the source's subtense for C_α".to_string()
+    } else {
+        "needs the source's subtense to average over the field of view".to_string()
+    }
+}
+
+/// Records the limit piece used, and the exposure and limit in its form at duration `t`.
+fn record_limit(out: &mut HazardResult, h: &Hazard, seg: &Segment, dose: f64, allowed: f64, t: f64) {
     if seg.status.starts_with("from memory") {
         out.from_memory.push(format!("limit {}", seg.source));
     }
     out.source = seg.source.clone();
-    let ratio = dose / allowed;
     out.exposure = Some(match seg.form {
         Form::Dose => (dose, unit(h.quantity, Form::Dose)),
         Form::Rate => (dose / t, unit(h.quantity, Form::Rate)),
@@ -381,10 +383,32 @@ pub(super) fn assess(h: &Hazard, e: &Exposure<'_>) -> HazardResult {
         Form::Dose => (allowed, unit(h.quantity, Form::Dose)),
         Form::Rate => (allowed / t, unit(h.quantity, Form::Rate)),
     });
+}
+
+/// Evaluates a hazard that applies to the exposure, on `spectrum`, filling `out`.
+fn evaluate_on(h: &Hazard, e: &Exposure<'_>, spectrum: &Spectrum, mut out: HazardResult) -> HazardResult {
+    let w = band_weighting(h);
+    let (q, coverage) = spectrum.to_energy().weighted(&w);
+    out.weighted = Some(q);
+    out.coverage = Some(coverage);
+    let p = Prepared { q, alpha: e.subtense_rad, full_field: e.full_field };
+    let (t, factor) = match duration_and_factor(e) {
+        Ok(x) => x,
+        Err(v) => return with_verdict(out, v),
+    };
+    out.field_of_view_rad = fov_at(h, t);
+    out.c_alpha = p.c_alpha(h);
+    out.averaged = p.averaged(h, t);
+    let Some((dose, allowed, seg)) = p.ratio(h, t, factor) else {
+        let reason = no_limit_reason(h, &p, t);
+        return with_verdict(out, Verdict::NotAssessed(reason));
+    };
+    record_limit(&mut out, h, seg, dose, allowed, t);
+    let ratio = dose / allowed;
     if !coverage.is_complete() {
         out.lower_bound_ratio = Some(ratio);
         let (lo, hi) = spectrum.range_nm();
-        return not(
+        return with_verdict(
             out,
             Verdict::NotAssessed(format!(
                 "spectrum covers {lo}–{hi} nm, hazard needs {}–{} nm",
@@ -396,6 +420,15 @@ pub(super) fn assess(h: &Hazard, e: &Exposure<'_>) -> HazardResult {
     out.t_max = if e.schedule.is_none() { t_max(h, &p) } else { None };
     out.verdict = if ratio <= 1.0 { Verdict::Within } else { Verdict::Exceeds };
     out
+}
+
+/// Evaluates one hazard.
+pub(super) fn assess(h: &Hazard, e: &Exposure<'_>) -> HazardResult {
+    let out = blank_result(h);
+    match applicable_spectrum(h, e) {
+        Ok(spectrum) => evaluate_on(h, e, spectrum, out),
+        Err(v) => with_verdict(out, v),
+    }
 }
 
 /// Evaluates every hazard of `set` for `exposure`.

@@ -192,6 +192,67 @@ fn worst_blue(groups: &[HazardGroup]) -> Option<RiskGroup> {
     groups.iter().filter(|g| g.id.starts_with("blue-light")).filter_map(|g| g.group).max()
 }
 
+/// The assessment distance and why: 200 mm, or for general lighting the distance giving
+/// 500 lx, not below 200 mm (IEC 62471 cl. 5.2).
+fn assessment_distance(source: &MovableSource, general_lighting: bool) -> Result<(Length, String)> {
+    let d200 = Length::new::<meter>(0.2);
+    if !general_lighting {
+        return Ok((d200, "200 mm (IEC 62471 cl. 5.2)".to_string()));
+    }
+    // Find the distance with 500 lx (illuminance falls with distance), not below 200 mm.
+    if source.illuminance_at(d200)? <= 500.0 {
+        return Ok((d200, "general lighting: 500 lx is not reached beyond 200 mm, so 200 mm".to_string()));
+    }
+    let (mut lo, mut hi) = (0.2f64, 0.4f64);
+    while source.illuminance_at(Length::new::<meter>(hi))? > 500.0 && hi < 1e6 {
+        lo = hi;
+        hi *= 2.0;
+    }
+    for _ in 0..80 {
+        let mid = 0.5 * (lo + hi);
+        if source.illuminance_at(Length::new::<meter>(mid))? > 500.0 {
+            lo = mid;
+        } else {
+            hi = mid;
+        }
+    }
+    Ok((
+        Length::new::<meter>(hi),
+        "general lighting: the distance giving 500 lx (IEC 62471 cl. 5.2)".to_string(),
+    ))
+}
+
+/// The distance beyond `distance` where the blue-light group falls to RG1 or below, or
+/// `None` (with a note) if it does not within 100 km.
+fn blue_threshold_distance(
+    set: &LimitSet,
+    source: &MovableSource,
+    distance: Length,
+    notes: &mut Vec<String>,
+) -> Result<Option<Length>> {
+    let ok = |d: f64| -> Result<bool> {
+        Ok(worst_blue(&groups_at(set, source, Length::new::<meter>(d))?).is_none_or(|g| g <= RiskGroup::Rg1))
+    };
+    let (mut lo, mut hi) = (distance.get::<meter>(), distance.get::<meter>() * 2.0);
+    while !ok(hi)? && hi < 1e5 {
+        lo = hi;
+        hi *= 2.0;
+    }
+    if !ok(hi)? {
+        notes.push("the blue-light group stays above RG1 out to 100 km".to_string());
+        return Ok(None);
+    }
+    for _ in 0..60 {
+        let mid = 0.5 * (lo + hi);
+        if ok(mid)? {
+            hi = mid;
+        } else {
+            lo = mid;
+        }
+    }
+    Ok(Some(Length::new::<meter>(hi)))
+}
+
 /// Classifies `source` against the risk-group data of `set`.
 ///
 /// # Errors
@@ -204,33 +265,7 @@ pub fn classify(set: &LimitSet, source: &MovableSource, general_lighting: bool) 
             set.id
         )));
     }
-    let d200 = Length::new::<meter>(0.2);
-    let (distance, basis) = if general_lighting {
-        // Find the distance with 500 lx (illuminance falls with distance), not below 200 mm.
-        if source.illuminance_at(d200)? <= 500.0 {
-            (d200, "general lighting: 500 lx is not reached beyond 200 mm, so 200 mm".to_string())
-        } else {
-            let (mut lo, mut hi) = (0.2f64, 0.4f64);
-            while source.illuminance_at(Length::new::<meter>(hi))? > 500.0 && hi < 1e6 {
-                lo = hi;
-                hi *= 2.0;
-            }
-            for _ in 0..80 {
-                let mid = 0.5 * (lo + hi);
-                if source.illuminance_at(Length::new::<meter>(mid))? > 500.0 {
-                    lo = mid;
-                } else {
-                    hi = mid;
-                }
-            }
-            (
-                Length::new::<meter>(hi),
-                "general lighting: the distance giving 500 lx (IEC 62471 cl. 5.2)".to_string(),
-            )
-        }
-    } else {
-        (d200, "200 mm (IEC 62471 cl. 5.2)".to_string())
-    };
+    let (distance, basis) = assessment_distance(source, general_lighting)?;
     let hazards = groups_at(set, source, distance)?;
     let overall = hazards.iter().filter_map(|g| g.group).max();
     let not_assessed: Vec<String> = hazards
@@ -240,36 +275,16 @@ pub fn classify(set: &LimitSet, source: &MovableSource, general_lighting: bool) 
         .collect();
     let c = corneal(&source.spectrum, &source.geometry_at(distance)?)?;
     let kbv = blue_light_efficacy(&c.irradiance);
-    let mut threshold_distance = None;
     let mut notes = vec![
         "E_thr and the threshold distance follow IEC TR 62778:2014, withdrawn and replaced by IEC 62471-7:2023; \
          the revised exposure times and assessment distances of IEC 62471-7 are not encoded"
             .to_string(),
     ];
-    if worst_blue(&hazards).is_some_and(|g| g > RiskGroup::Rg1) {
-        let ok = |d: f64| -> Result<bool> {
-            Ok(worst_blue(&groups_at(set, source, Length::new::<meter>(d))?)
-                .is_none_or(|g| g <= RiskGroup::Rg1))
-        };
-        let (mut lo, mut hi) = (distance.get::<meter>(), distance.get::<meter>() * 2.0);
-        while !ok(hi)? && hi < 1e5 {
-            lo = hi;
-            hi *= 2.0;
-        }
-        if ok(hi)? {
-            for _ in 0..60 {
-                let mid = 0.5 * (lo + hi);
-                if ok(mid)? {
-                    hi = mid;
-                } else {
-                    lo = mid;
-                }
-            }
-            threshold_distance = Some(Length::new::<meter>(hi));
-        } else {
-            notes.push("the blue-light group stays above RG1 out to 100 km".to_string());
-        }
-    }
+    let threshold_distance = if worst_blue(&hazards).is_some_and(|g| g > RiskGroup::Rg1) {
+        blue_threshold_distance(set, source, distance, &mut notes)?
+    } else {
+        None
+    };
     if !not_assessed.is_empty() {
         notes.push("some hazards could not be grouped, so the overall group is a lower bound".to_string());
     }

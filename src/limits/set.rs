@@ -240,6 +240,9 @@ fn expected_unit(q: LimitQuantity, f: Form) -> &'static [&'static str] {
     }
 }
 
+/// Names a key of one hazard in errors: "origin: key 'hazard[i].k' (id)".
+type KeyName<'a> = &'a dyn Fn(&str) -> String;
+
 /// Parses a limit-set file and checks it: known weightings, ordered contiguous time pieces,
 /// units that fit the quantity and form, a valid C_α rule and band.
 ///
@@ -248,156 +251,12 @@ fn expected_unit(q: LimitQuantity, f: Form) -> &'static [&'static str] {
 pub fn parse_set(text: &str, origin: &str) -> Result<LimitSet> {
     let raw: RawSet =
         toml::from_str(text).map_err(|e| Error::data(crate::base::toml_errors::describe(&e, origin)))?;
-    let mut hazards = Vec::new();
-    for (hi, h) in raw.hazard.iter().enumerate() {
-        let at = |k: &str| format!("{origin}: key 'hazard[{hi}].{k}' ({})", h.id);
-        let quantity = match h.quantity.as_str() {
-            "irradiance" => LimitQuantity::Irradiance,
-            "radiance" => LimitQuantity::Radiance,
-            o => return Err(Error::data(format!("{}: '{o}' is not irradiance or radiance", at("quantity")))),
-        };
-        let weighting = match h.weighting.as_str() {
-            "none" => None,
-            w => {
-                let f = find_weighting(w).ok_or_else(|| {
-                    Error::data(format!(
-                        "{}: unknown weighting '{w}'; built in: S_UV, B, A, R_1997, R_2013, or none",
-                        at("weighting")
-                    ))
-                })?;
-                let (a, b) = f.curve.range_nm();
-                if h.band_nm[0] < a - 1e-9 || h.band_nm[1] > b + 1e-9 {
-                    return Err(Error::data(format!(
-                        "{}: band {}–{} nm reaches outside the weighting {w} ({a}–{b} nm)",
-                        at("band_nm"),
-                        h.band_nm[0],
-                        h.band_nm[1]
-                    )));
-                }
-                Some(w.to_string())
-            }
-        };
-        if !(h.band_nm[0] > 0.0 && h.band_nm[0] < h.band_nm[1]) {
-            return Err(Error::data(format!("{}: band must be increasing and positive", at("band_nm"))));
-        }
-        let mut limits = Vec::new();
-        for (si, s) in h.limit.iter().enumerate() {
-            let k = |f: &str| at(&format!("limit[{si}].{f}"));
-            let form = match s.form.as_str() {
-                "dose" => Form::Dose,
-                "rate" => Form::Rate,
-                o => return Err(Error::data(format!("{}: '{o}' is not dose or rate", k("form")))),
-            };
-            let units = expected_unit(quantity, form);
-            if !units.contains(&s.unit.as_str()) {
-                return Err(Error::data(format!(
-                    "{}: unit '{}' does not fit a {} {}; expected {}",
-                    k("unit"),
-                    s.unit,
-                    h.quantity,
-                    s.form,
-                    units[0]
-                )));
-            }
-            if !(s.coefficient.is_finite() && s.coefficient > 0.0) {
-                return Err(Error::data(format!("{}: must be a finite number above 0", k("coefficient"))));
-            }
-            if !(s.from_s >= 0.0 && s.from_s < s.to_s) {
-                return Err(Error::data(format!("{}: from_s must be ≥ 0 and below to_s", k("from_s"))));
-            }
-            if let Some(prev) = limits.last().map(|p: &Segment| p.to_s)
-                && (s.from_s - prev).abs() > 1e-12 * prev.max(1.0)
-            {
-                return Err(Error::data(format!(
-                    "{}: pieces must follow each other without gap or overlap: this one starts at {} s, the previous ends at {prev} s",
-                    k("from_s"),
-                    s.from_s
-                )));
-            }
-            if s.alpha_exponent != 0.0 && h.c_alpha.is_none() {
-                return Err(Error::data(format!(
-                    "{}: depends on C_α but the hazard has no c_alpha rule",
-                    k("alpha_exponent")
-                )));
-            }
-            limits.push(Segment {
-                from_s: s.from_s,
-                to_s: s.to_s,
-                form,
-                coefficient: s.coefficient,
-                time_exponent: s.time_exponent,
-                alpha_exponent: s.alpha_exponent,
-                status: s.status.clone(),
-                source: s.source.clone(),
-            });
-        }
-        if limits.is_empty() {
-            return Err(Error::data(format!("{}: a hazard needs at least one limit piece", at("limit"))));
-        }
-        let c_alpha = match &h.c_alpha {
-            None => None,
-            Some(c) => {
-                let parse = |t: &str, key: &str| {
-                    crate::base::units::parse_angle(t).map_err(|e| Error::data(format!("{}: {e}", at(key))))
-                };
-                let (min, max) = (parse(&c.min, "c_alpha.min")?, parse(&c.max, "c_alpha.max")?);
-                let in_mrad = match c.unit.as_str() {
-                    "rad" => false,
-                    "mrad" => true,
-                    o => {
-                        return Err(Error::data(format!("{}: '{o}' is not rad or mrad", at("c_alpha.unit"))));
-                    }
-                };
-                use crate::base::quantity::SiValue;
-                if !(min.si() > 0.0 && min.si() < max.si()) {
-                    return Err(Error::data(format!("{}: need 0 < min < max", at("c_alpha"))));
-                }
-                Some(CAlpha { min_rad: min.si(), max_rad: max.si(), in_mrad })
-            }
-        };
-        let mut conditions = Vec::new();
-        if let Some(r) = h.smaller_than_rad {
-            conditions.push(Condition::SmallerThanRad(r));
-        }
-        if let Some(r) = h.at_least_rad {
-            conditions.push(Condition::AtLeastRad(r));
-        }
-        if let Some(l) = h.luminance_below_cd_m2 {
-            conditions.push(Condition::LuminanceBelow(l));
-        }
-        if h.opt_in {
-            conditions.push(Condition::OptIn);
-        }
-        if quantity == LimitQuantity::Irradiance && !h.field_of_view.is_empty() {
-            return Err(Error::data(format!(
-                "{}: only radiance hazards have an averaging field of view",
-                at("field_of_view")
-            )));
-        }
-        hazards.push(Hazard {
-            id: h.id.clone(),
-            name: h.name.clone(),
-            clause: h.clause.clone(),
-            weighting,
-            band_nm: (h.band_nm[0], h.band_nm[1]),
-            quantity,
-            conditions,
-            c_alpha,
-            field_of_view: h
-                .field_of_view
-                .iter()
-                .map(|f| FieldOfView {
-                    from_s: f.from_s,
-                    to_s: f.to_s,
-                    coefficient_rad: f.coefficient_rad,
-                    time_exponent: f.time_exponent,
-                })
-                .collect(),
-            limits,
-            risk_group_time_bases_s: h.risk_group_time_bases_s,
-            status: h.status.clone(),
-        });
-    }
+    let hazards = raw
+        .hazard
+        .iter()
+        .enumerate()
+        .map(|(hi, h)| parse_hazard(h, hi, origin))
+        .collect::<Result<Vec<_>>>()?;
     Ok(LimitSet {
         id: raw.id,
         document: raw.document,
@@ -408,6 +267,191 @@ pub fn parse_set(text: &str, origin: &str) -> Result<LimitSet> {
         hazards,
         origin: origin.to_string(),
     })
+}
+
+/// Parses and checks the `hi`-th `[[hazard]]` table.
+fn parse_hazard(h: &RawHazard, hi: usize, origin: &str) -> Result<Hazard> {
+    let at = |k: &str| format!("{origin}: key 'hazard[{hi}].{k}' ({})", h.id);
+    let quantity = parse_quantity(h, &at)?;
+    let weighting = hazard_weighting(h, &at)?;
+    if !(h.band_nm[0] > 0.0 && h.band_nm[0] < h.band_nm[1]) {
+        return Err(Error::data(format!("{}: band must be increasing and positive", at("band_nm"))));
+    }
+    let limits = parse_segments(h, quantity, &at)?;
+    let c_alpha = h.c_alpha.as_ref().map(|c| parse_c_alpha(c, &at)).transpose()?;
+    let conditions = conditions(h);
+    if quantity == LimitQuantity::Irradiance && !h.field_of_view.is_empty() {
+        return Err(Error::data(format!(
+            "{}: only radiance hazards have an averaging field of view",
+            at("field_of_view")
+        )));
+    }
+    Ok(Hazard {
+        id: h.id.clone(),
+        name: h.name.clone(),
+        clause: h.clause.clone(),
+        weighting,
+        band_nm: (h.band_nm[0], h.band_nm[1]),
+        quantity,
+        conditions,
+        c_alpha,
+        field_of_view: h
+            .field_of_view
+            .iter()
+            .map(|f| FieldOfView {
+                from_s: f.from_s,
+                to_s: f.to_s,
+                coefficient_rad: f.coefficient_rad,
+                time_exponent: f.time_exponent,
+            })
+            .collect(),
+        limits,
+        risk_group_time_bases_s: h.risk_group_time_bases_s,
+        status: h.status.clone(),
+    })
+}
+
+/// The hazard's `quantity`: irradiance or radiance.
+fn parse_quantity(h: &RawHazard, at: KeyName<'_>) -> Result<LimitQuantity> {
+    match h.quantity.as_str() {
+        "irradiance" => Ok(LimitQuantity::Irradiance),
+        "radiance" => Ok(LimitQuantity::Radiance),
+        o => Err(Error::data(format!("{}: '{o}' is not irradiance or radiance", at("quantity")))),
+    }
+}
+
+/// The hazard's `weighting` id (`None` for `none`), checked to be built in and to cover the
+/// hazard's band.
+fn hazard_weighting(h: &RawHazard, at: KeyName<'_>) -> Result<Option<String>> {
+    let w = match h.weighting.as_str() {
+        "none" => return Ok(None),
+        w => w,
+    };
+    let f = find_weighting(w).ok_or_else(|| {
+        Error::data(format!(
+            "{}: unknown weighting '{w}'; built in: S_UV, B, A, R_1997, R_2013, or none",
+            at("weighting")
+        ))
+    })?;
+    let (a, b) = f.curve.range_nm();
+    if h.band_nm[0] < a - 1e-9 || h.band_nm[1] > b + 1e-9 {
+        return Err(Error::data(format!(
+            "{}: band {}–{} nm reaches outside the weighting {w} ({a}–{b} nm)",
+            at("band_nm"),
+            h.band_nm[0],
+            h.band_nm[1]
+        )));
+    }
+    Ok(Some(w.to_string()))
+}
+
+/// The hazard's `[[hazard.limit]]` pieces, checked one by one; at least one is required.
+fn parse_segments(h: &RawHazard, quantity: LimitQuantity, at: KeyName<'_>) -> Result<Vec<Segment>> {
+    let mut limits: Vec<Segment> = Vec::new();
+    for (si, s) in h.limit.iter().enumerate() {
+        let k = |f: &str| at(&format!("limit[{si}].{f}"));
+        let prev = limits.last().map(|p| p.to_s);
+        limits.push(parse_segment(s, h, quantity, prev, &k)?);
+    }
+    if limits.is_empty() {
+        return Err(Error::data(format!("{}: a hazard needs at least one limit piece", at("limit"))));
+    }
+    Ok(limits)
+}
+
+/// One limit piece; `prev` is where the previous piece ends, `k` names this piece's keys.
+fn parse_segment(
+    s: &RawSegment,
+    h: &RawHazard,
+    quantity: LimitQuantity,
+    prev: Option<f64>,
+    k: KeyName<'_>,
+) -> Result<Segment> {
+    let form = match s.form.as_str() {
+        "dose" => Form::Dose,
+        "rate" => Form::Rate,
+        o => return Err(Error::data(format!("{}: '{o}' is not dose or rate", k("form")))),
+    };
+    let units = expected_unit(quantity, form);
+    if !units.contains(&s.unit.as_str()) {
+        return Err(Error::data(format!(
+            "{}: unit '{}' does not fit a {} {}; expected {}",
+            k("unit"),
+            s.unit,
+            h.quantity,
+            s.form,
+            units[0]
+        )));
+    }
+    if !(s.coefficient.is_finite() && s.coefficient > 0.0) {
+        return Err(Error::data(format!("{}: must be a finite number above 0", k("coefficient"))));
+    }
+    if !(s.from_s >= 0.0 && s.from_s < s.to_s) {
+        return Err(Error::data(format!("{}: from_s must be ≥ 0 and below to_s", k("from_s"))));
+    }
+    if let Some(prev) = prev
+        && (s.from_s - prev).abs() > 1e-12 * prev.max(1.0)
+    {
+        return Err(Error::data(format!(
+            "{}: pieces must follow each other without gap or overlap: this one starts at {} s, the previous ends at {prev} s",
+            k("from_s"),
+            s.from_s
+        )));
+    }
+    if s.alpha_exponent != 0.0 && h.c_alpha.is_none() {
+        return Err(Error::data(format!(
+            "{}: depends on C_α but the hazard has no c_alpha rule",
+            k("alpha_exponent")
+        )));
+    }
+    Ok(Segment {
+        from_s: s.from_s,
+        to_s: s.to_s,
+        form,
+        coefficient: s.coefficient,
+        time_exponent: s.time_exponent,
+        alpha_exponent: s.alpha_exponent,
+        status: s.status.clone(),
+        source: s.source.clone(),
+    })
+}
+
+/// The hazard's `c_alpha = { min, max, unit }` rule.
+fn parse_c_alpha(c: &RawCAlpha, at: KeyName<'_>) -> Result<CAlpha> {
+    use crate::base::quantity::SiValue;
+    let parse = |t: &str, key: &str| {
+        crate::base::units::parse_angle(t).map_err(|e| Error::data(format!("{}: {e}", at(key))))
+    };
+    let (min, max) = (parse(&c.min, "c_alpha.min")?, parse(&c.max, "c_alpha.max")?);
+    let in_mrad = match c.unit.as_str() {
+        "rad" => false,
+        "mrad" => true,
+        o => {
+            return Err(Error::data(format!("{}: '{o}' is not rad or mrad", at("c_alpha.unit"))));
+        }
+    };
+    if !(min.si() > 0.0 && min.si() < max.si()) {
+        return Err(Error::data(format!("{}: need 0 < min < max", at("c_alpha"))));
+    }
+    Ok(CAlpha { min_rad: min.si(), max_rad: max.si(), in_mrad })
+}
+
+/// The hazard's conditions of application, in the order the engine checks them.
+fn conditions(h: &RawHazard) -> Vec<Condition> {
+    let mut conditions = Vec::new();
+    if let Some(r) = h.smaller_than_rad {
+        conditions.push(Condition::SmallerThanRad(r));
+    }
+    if let Some(r) = h.at_least_rad {
+        conditions.push(Condition::AtLeastRad(r));
+    }
+    if let Some(l) = h.luminance_below_cd_m2 {
+        conditions.push(Condition::LuminanceBelow(l));
+    }
+    if h.opt_in {
+        conditions.push(Condition::OptIn);
+    }
+    conditions
 }
 
 /// The limit-set files shipped in `limits/`.

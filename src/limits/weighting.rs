@@ -68,6 +68,9 @@ struct RawFormula {
     origin_nm: Option<f64>,
 }
 
+/// Names a key of the file in errors: "origin: key 'k'".
+type KeyName<'a> = &'a dyn Fn(&str) -> String;
+
 /// Parses a weighting file.
 ///
 /// # Errors
@@ -77,6 +80,38 @@ pub fn parse_weighting(text: &str, origin: &str) -> Result<Weighting> {
     let raw: RawWeighting =
         toml::from_str(text).map_err(|e| Error::data(crate::base::toml_errors::describe(&e, origin)))?;
     let at = |k: &str| format!("{origin}: key '{k}'");
+    check_columns(&raw, &at)?;
+    let table = Curve::new(raw.nm.clone(), raw.value.clone()).map_err(|e| e.context(at("nm")))?;
+    let log = match raw.interpolation.as_str() {
+        "linear" => false,
+        "log-linear" => true,
+        other => {
+            return Err(Error::data(format!(
+                "{}: '{other}' is not linear or log-linear",
+                at("interpolation")
+            )));
+        }
+    };
+    let mut nodes = table_nodes(&table, log);
+    let (_, t1) = table.range_nm();
+    formula_nodes(&raw.formula, t1, &mut nodes, &at)?;
+    nodes.sort_by(|a, b| a.0.total_cmp(&b.0));
+    nodes.dedup_by(|a, b| (a.0 - b.0).abs() < 1e-9);
+    let (w, v): (Vec<f64>, Vec<f64>) = nodes.into_iter().unzip();
+    Ok(Weighting {
+        id: raw.id,
+        name: raw.name,
+        source: raw.source,
+        status: raw.status,
+        curve: Curve::new(w, v).map_err(|e| e.context(origin))?,
+        anchor_limits: raw.nm.iter().copied().zip(raw.el_j_per_m2.iter().copied()).collect(),
+        from_memory_nm: raw.from_memory_nm,
+    })
+}
+
+/// Checks that `nm`, `value` and `el_j_per_m2` have matching lengths and that the weights are
+/// finite and not negative.
+fn check_columns(raw: &RawWeighting, at: KeyName<'_>) -> Result<()> {
     if raw.nm.len() != raw.value.len() {
         return Err(Error::data(format!(
             "{}: {} wavelengths but {} values",
@@ -91,19 +126,13 @@ pub fn parse_weighting(text: &str, origin: &str) -> Result<Weighting> {
     if let Some(v) = raw.value.iter().find(|v| !(v.is_finite() && **v >= 0.0)) {
         return Err(Error::data(format!("{}: weight {v} must be a finite number ≥ 0", at("value"))));
     }
-    let table = Curve::new(raw.nm.clone(), raw.value.clone()).map_err(|e| e.context(at("nm")))?;
-    let log = match raw.interpolation.as_str() {
-        "linear" => false,
-        "log-linear" => true,
-        other => {
-            return Err(Error::data(format!(
-                "{}: '{other}' is not linear or log-linear",
-                at("interpolation")
-            )));
-        }
-    };
+    Ok(())
+}
+
+/// The table part as nodes: the tabulated nodes, densified to 1 nm for log-linear
+/// interpolation so that linear use is faithful.
+fn table_nodes(table: &Curve, log: bool) -> Vec<(f64, f64)> {
     let mut nodes: Vec<(f64, f64)> = Vec::new();
-    // Table part, densified to 1 nm for log-linear interpolation so that linear use is faithful.
     let (t0, t1) = table.range_nm();
     if log {
         let w = table.wavelength_nm();
@@ -126,8 +155,19 @@ pub fn parse_weighting(text: &str, origin: &str) -> Result<Weighting> {
     } else {
         nodes.extend(table.wavelength_nm().iter().copied().zip(table.values().iter().copied()));
     }
-    let mut last_end = t1;
-    for (i, f) in raw.formula.iter().enumerate() {
+    nodes
+}
+
+/// Appends the formula segments on a 1 nm grid; each must start at or after `table_end` nm
+/// and after the previous segment.
+fn formula_nodes(
+    formula: &[RawFormula],
+    table_end: f64,
+    nodes: &mut Vec<(f64, f64)>,
+    at: KeyName<'_>,
+) -> Result<()> {
+    let mut last_end = table_end;
+    for (i, f) in formula.iter().enumerate() {
         let k = format!("formula[{i}]");
         if f.from_nm.is_nan() || f.from_nm >= f.to_nm || f.from_nm < last_end - 1e-9 {
             return Err(Error::data(format!(
@@ -138,39 +178,29 @@ pub fn parse_weighting(text: &str, origin: &str) -> Result<Weighting> {
             )));
         }
         last_end = f.to_nm;
-        let value_at = |x: f64| -> Result<f64> {
-            match f.form.as_str() {
-                "constant" => Ok(f.coefficient),
-                "decade-exponential" => {
-                    let per = f.per_nm.ok_or_else(|| Error::data(format!("{}: needs per_nm", at(&k))))?;
-                    let origin =
-                        f.origin_nm.ok_or_else(|| Error::data(format!("{}: needs origin_nm", at(&k))))?;
-                    Ok(f.coefficient * 10f64.powf(per * (x - origin)))
-                }
-                other => Err(Error::data(format!(
-                    "{}: form '{other}' is not constant or decade-exponential",
-                    at(&format!("{k}.form"))
-                ))),
-            }
-        };
         let mut x = f.from_nm;
         while x <= f.to_nm + 1e-9 {
-            nodes.push((x, value_at(x)?));
+            nodes.push((x, formula_value(f, x, &k, at)?));
             x += 1.0;
         }
     }
-    nodes.sort_by(|a, b| a.0.total_cmp(&b.0));
-    nodes.dedup_by(|a, b| (a.0 - b.0).abs() < 1e-9);
-    let (w, v): (Vec<f64>, Vec<f64>) = nodes.into_iter().unzip();
-    Ok(Weighting {
-        id: raw.id,
-        name: raw.name,
-        source: raw.source,
-        status: raw.status,
-        curve: Curve::new(w, v).map_err(|e| e.context(origin))?,
-        anchor_limits: raw.nm.iter().copied().zip(raw.el_j_per_m2.iter().copied()).collect(),
-        from_memory_nm: raw.from_memory_nm,
-    })
+    Ok(())
+}
+
+/// The value of formula segment `f` (key `k`) at `x` nm.
+fn formula_value(f: &RawFormula, x: f64, k: &str, at: KeyName<'_>) -> Result<f64> {
+    match f.form.as_str() {
+        "constant" => Ok(f.coefficient),
+        "decade-exponential" => {
+            let per = f.per_nm.ok_or_else(|| Error::data(format!("{}: needs per_nm", at(k))))?;
+            let origin = f.origin_nm.ok_or_else(|| Error::data(format!("{}: needs origin_nm", at(k))))?;
+            Ok(f.coefficient * 10f64.powf(per * (x - origin)))
+        }
+        other => Err(Error::data(format!(
+            "{}: form '{other}' is not constant or decade-exponential",
+            at(&format!("{k}.form"))
+        ))),
+    }
 }
 
 /// The weighting files shipped in `limits/weightings/`.

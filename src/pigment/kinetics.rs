@@ -445,105 +445,119 @@ pub struct PigmentTable {
 pub fn parse_pigments(text: &str, origin: &str) -> Result<PigmentTable> {
     let raw: RawFile =
         toml::from_str(text).map_err(|e| Error::data(crate::base::toml_errors::describe(&e, origin)))?;
-    let mut pigments = Vec::new();
-    for (i, r) in raw.receptor.iter().enumerate() {
-        let at = |k: &str| format!("{origin}: key 'receptor[{i}].{k}' ({})", r.id);
-        let level_unit = match r.level_unit.as_str() {
-            "scot td" => LevelUnit::ScotopicTrolands,
-            "phot td" => LevelUnit::PhotopicTrolands,
-            "R*/rod/s" => LevelUnit::IsomerisationsPerSecond,
-            o => {
-                return Err(Error::data(format!(
-                    "{}: '{o}' is not scot td, phot td or R*/rod/s",
-                    at("level_unit")
-                )));
-            }
-        };
-        let level = |p: &RawParam, k: &str| match level_unit {
-            LevelUnit::IsomerisationsPerSecond => {
-                param(p, &at(k), |t| parse_isomerisation_rate(t).map(|f| f.si()))
-            }
-            unit => param(p, &at(k), |t| typed_level(t, unit)),
-        };
-        let p = Pigment {
-            id: r.id.clone(),
-            species: Species::parse(&r.species)
-                .map_err(|e| Error::data(format!("{}: {e}", at("species"))))?,
-            level_unit,
-            q_e: r.q_e.as_ref().map(|p| param(p, &at("q_e"), parse_troland_seconds)).transpose()?,
-            i0: r.i0.as_ref().map(|p| param(p, &at("i0"), |t| typed_level(t, level_unit))).transpose()?,
-            pigment_per_cell: r
-                .pigment_per_cell
-                .as_ref()
-                .map(|p| param(p, &at("pigment_per_cell"), parse_number))
-                .transpose()?,
-            tau0: param(&r.tau0, &at("tau0"), parse_time)?,
-            v: param(&r.v, &at("v"), parse_rate)?,
-            k_m: param(&r.k_m, &at("k_m"), parse_number)?,
-            saturating_level: r
-                .saturating_level
-                .as_ref()
-                .map(|p| level(p, "saturating_level"))
-                .transpose()?,
-        };
-        if p.tau0.value.si() <= 0.0 || p.v.value.si() <= 0.0 || p.k_m.value <= 0.0 {
-            return Err(Error::data(format!("{}: τ0, v and K_m must be above 0", at("tau0"))));
-        }
-        match level_unit {
-            LevelUnit::IsomerisationsPerSecond if p.pigment_per_cell.is_none() => {
-                return Err(Error::data(format!(
-                    "{}: a receptor with levels in R*/rod/s needs it",
-                    at("pigment_per_cell")
-                )));
-            }
-            LevelUnit::ScotopicTrolands | LevelUnit::PhotopicTrolands if p.q_e.is_none() => {
-                return Err(Error::data(format!(
-                    "{}: a receptor with levels in trolands needs it",
-                    at("q_e")
-                )));
-            }
-            _ => {}
-        }
-        pigments.push(p);
-    }
-    let rr = &raw.rod_response;
-    let per_s2 = |t: &str| crate::base::units::parse_per_second_squared(t);
+    let pigments = raw
+        .receptor
+        .iter()
+        .enumerate()
+        .map(|(i, r)| parse_receptor(r, i, origin))
+        .collect::<Result<Vec<_>>>()?;
     Ok(PigmentTable {
         pigments,
-        rod_response: RodResponseParams {
-            human_amplification: param(
-                &rr.human_amplification,
-                &format!("{origin}: key 'rod_response.human_amplification'"),
-                per_s2,
-            )?,
-            rodent_amplification: param(
-                &rr.rodent_amplification,
-                &format!("{origin}: key 'rod_response.rodent_amplification'"),
-                per_s2,
-            )?,
-            effective_delay: param(
-                &rr.effective_delay,
-                &format!("{origin}: key 'rod_response.effective_delay'"),
-                parse_time,
-            )?,
-        },
-        dark_adaptation: DarkAdaptationParams {
-            s2_slope: param(
-                &raw.dark_adaptation.s2_slope,
-                &format!("{origin}: key 'dark_adaptation.s2_slope'"),
-                parse_rate,
-            )?,
-            cone_plateau: param(
-                &raw.dark_adaptation.cone_plateau,
-                &format!("{origin}: key 'dark_adaptation.cone_plateau'"),
-                parse_number,
-            )?,
-            dowling_rushton_alpha: param(
-                &raw.dark_adaptation.dowling_rushton_alpha,
-                &format!("{origin}: key 'dark_adaptation.dowling_rushton_alpha'"),
-                parse_number,
-            )?,
-        },
+        rod_response: parse_rod_response(&raw.rod_response, origin)?,
+        dark_adaptation: parse_dark_adaptation(&raw.dark_adaptation, origin)?,
+    })
+}
+
+/// Parses and checks the `i`-th `[[receptor]]` table.
+fn parse_receptor(r: &RawPigment, i: usize, origin: &str) -> Result<Pigment> {
+    let at = |k: &str| format!("{origin}: key 'receptor[{i}].{k}' ({})", r.id);
+    let level_unit = parse_level_unit(&r.level_unit, &at("level_unit"))?;
+    let p = Pigment {
+        id: r.id.clone(),
+        species: Species::parse(&r.species).map_err(|e| Error::data(format!("{}: {e}", at("species"))))?,
+        level_unit,
+        q_e: r.q_e.as_ref().map(|p| param(p, &at("q_e"), parse_troland_seconds)).transpose()?,
+        i0: r.i0.as_ref().map(|p| param(p, &at("i0"), |t| typed_level(t, level_unit))).transpose()?,
+        pigment_per_cell: r
+            .pigment_per_cell
+            .as_ref()
+            .map(|p| param(p, &at("pigment_per_cell"), parse_number))
+            .transpose()?,
+        tau0: param(&r.tau0, &at("tau0"), parse_time)?,
+        v: param(&r.v, &at("v"), parse_rate)?,
+        k_m: param(&r.k_m, &at("k_m"), parse_number)?,
+        saturating_level: r
+            .saturating_level
+            .as_ref()
+            .map(|p| level_param(p, &at("saturating_level"), level_unit))
+            .transpose()?,
+    };
+    check_receptor(&p, &at)?;
+    Ok(p)
+}
+
+/// A receptor's `level_unit`; `at` names the key in errors.
+fn parse_level_unit(text: &str, at: &str) -> Result<LevelUnit> {
+    match text {
+        "scot td" => Ok(LevelUnit::ScotopicTrolands),
+        "phot td" => Ok(LevelUnit::PhotopicTrolands),
+        "R*/rod/s" => Ok(LevelUnit::IsomerisationsPerSecond),
+        o => Err(Error::data(format!("{at}: '{o}' is not scot td, phot td or R*/rod/s"))),
+    }
+}
+
+/// A light level in the receptor's unit: R*/rod/s, or trolands of the receptor's kind.
+fn level_param(p: &RawParam, at: &str, unit: LevelUnit) -> Result<Param<f64>> {
+    match unit {
+        LevelUnit::IsomerisationsPerSecond => param(p, at, |t| parse_isomerisation_rate(t).map(|f| f.si())),
+        unit => param(p, at, |t| typed_level(t, unit)),
+    }
+}
+
+/// Checks that the kinetic constants are positive and that the receptor has what its level
+/// unit needs (Q_e for trolands, pigment per cell for R*/rod/s).
+fn check_receptor(p: &Pigment, at: &dyn Fn(&str) -> String) -> Result<()> {
+    if p.tau0.value.si() <= 0.0 || p.v.value.si() <= 0.0 || p.k_m.value <= 0.0 {
+        return Err(Error::data(format!("{}: τ0, v and K_m must be above 0", at("tau0"))));
+    }
+    match p.level_unit {
+        LevelUnit::IsomerisationsPerSecond if p.pigment_per_cell.is_none() => Err(Error::data(format!(
+            "{}: a receptor with levels in R*/rod/s needs it",
+            at("pigment_per_cell")
+        ))),
+        LevelUnit::ScotopicTrolands | LevelUnit::PhotopicTrolands if p.q_e.is_none() => {
+            Err(Error::data(format!("{}: a receptor with levels in trolands needs it", at("q_e"))))
+        }
+        _ => Ok(()),
+    }
+}
+
+/// The `[rod_response]` table.
+fn parse_rod_response(rr: &RawRodResponse, origin: &str) -> Result<RodResponseParams> {
+    let per_s2 = |t: &str| crate::base::units::parse_per_second_squared(t);
+    Ok(RodResponseParams {
+        human_amplification: param(
+            &rr.human_amplification,
+            &format!("{origin}: key 'rod_response.human_amplification'"),
+            per_s2,
+        )?,
+        rodent_amplification: param(
+            &rr.rodent_amplification,
+            &format!("{origin}: key 'rod_response.rodent_amplification'"),
+            per_s2,
+        )?,
+        effective_delay: param(
+            &rr.effective_delay,
+            &format!("{origin}: key 'rod_response.effective_delay'"),
+            parse_time,
+        )?,
+    })
+}
+
+/// The `[dark_adaptation]` table.
+fn parse_dark_adaptation(da: &RawDarkAdaptation, origin: &str) -> Result<DarkAdaptationParams> {
+    Ok(DarkAdaptationParams {
+        s2_slope: param(&da.s2_slope, &format!("{origin}: key 'dark_adaptation.s2_slope'"), parse_rate)?,
+        cone_plateau: param(
+            &da.cone_plateau,
+            &format!("{origin}: key 'dark_adaptation.cone_plateau'"),
+            parse_number,
+        )?,
+        dowling_rushton_alpha: param(
+            &da.dowling_rushton_alpha,
+            &format!("{origin}: key 'dark_adaptation.dowling_rushton_alpha'"),
+            parse_number,
+        )?,
     })
 }
 

@@ -239,72 +239,22 @@ impl Eye {
     pub fn from_toml(text: &str, origin: &str) -> Result<Eye> {
         let raw: RawEye =
             toml::from_str(text).map_err(|e| Error::data(crate::base::toml_errors::describe(&e, origin)))?;
-        let at = |key: &str| format!("{origin}: key '{key}'");
-        let species =
-            Species::parse(&raw.species).map_err(|e| Error::data(e.context(at("species")).to_string()))?;
-        let length = |p: &RawParam, key: &str| convert(p, key, origin, parse_length);
-        let number = |p: &RawParam, key: &str| convert(p, key, origin, parse_number);
+        let species = Species::parse(&raw.species)
+            .map_err(|e| Error::data(e.context(key_at(origin, "species")).to_string()))?;
         let media_status = Status::parse(&raw.media.status).ok_or_else(|| {
-            Error::data(format!("{}: unknown status '{}'", at("media.status"), raw.media.status))
+            Error::data(format!("{}: unknown status '{}'", key_at(origin, "media.status"), raw.media.status))
         })?;
-        let media = match raw.media.model.as_str() {
-            "van-de-kraats-2007" => Media::HumanAge {
-                default_age: parse_time(raw.media.default_age.as_deref().unwrap_or("32 y"))
-                    .map_err(|e| Error::data(e.context(at("media.default_age")).to_string()))?,
-            },
-            "cut-off" => {
-                let need = |p: &Option<RawParam>, key: &str| {
-                    p.clone()
-                        .ok_or_else(|| Error::data(format!("{}: missing for a cut-off media model", at(key))))
-                };
-                Media::CutOff {
-                    half_transmission: length(
-                        &need(&raw.media.half_transmission, "media.half_transmission")?,
-                        "media.half_transmission",
-                    )?,
-                    edge_width: length(
-                        &need(&raw.media.edge_width, "media.edge_width")?,
-                        "media.edge_width",
-                    )?,
-                    plateau: number(&need(&raw.media.plateau, "media.plateau")?, "media.plateau")?,
-                }
-            }
-            other => {
-                return Err(Error::data(format!(
-                    "{}: unknown media model '{other}'; expected van-de-kraats-2007 or cut-off",
-                    at("media.model")
-                )));
-            }
-        };
+        let media = parse_media(&raw.media, origin)?;
         let receptors = raw
             .receptor
             .iter()
             .enumerate()
-            .map(|(i, r)| {
-                let k = |f: &str| format!("receptor[{i}].{f}");
-                Ok(Receptor {
-                    name: r.name.clone(),
-                    lambda_max: length(&r.lambda_max, &k("lambda_max"))?,
-                    peak_optical_density: number(&r.peak_optical_density, &k("peak_optical_density"))?,
-                    aperture_area: convert(&r.aperture_area, &k("aperture_area"), origin, parse_area)?,
-                    quantum_efficiency: number(&r.quantum_efficiency, &k("quantum_efficiency"))?,
-                    pigment_per_cell: r
-                        .pigment_per_cell
-                        .as_ref()
-                        .map(|p| number(p, &k("pigment_per_cell")))
-                        .transpose()?,
-                })
-            })
+            .map(|(i, r)| parse_receptor(r, i, origin))
             .collect::<Result<Vec<_>>>()?;
         Ok(Eye {
             species,
-            nodal_distance: length(&raw.nodal_distance, "nodal_distance")?,
-            pupil: PupilTable {
-                dark_adapted: length(&raw.pupil.dark_adapted, "pupil.dark_adapted")?,
-                light_adapted: length(&raw.pupil.light_adapted, "pupil.light_adapted")?,
-                dilated: raw.pupil.dilated.as_ref().map(|p| length(p, "pupil.dilated")).transpose()?,
-                maximum: length(&raw.pupil.maximum, "pupil.maximum")?,
-            },
+            nodal_distance: length_param(&raw.nodal_distance, "nodal_distance", origin)?,
+            pupil: parse_pupil(&raw.pupil, origin)?,
             media,
             media_status,
             media_source: raw.media.source,
@@ -312,25 +262,98 @@ impl Eye {
             melanopsin: raw
                 .melanopsin
                 .as_ref()
-                .map(|m| length(&m.lambda_max, "melanopsin.lambda_max"))
+                .map(|m| length_param(&m.lambda_max, "melanopsin.lambda_max", origin))
                 .transpose()?,
-            iris: raw
-                .iris
-                .as_ref()
-                .map(|i| {
-                    Ok::<_, Error>(Iris {
-                        diameter: length(&i.diameter, "iris.diameter")?,
-                        albino_transmittance: number(&i.albino_transmittance, "iris.albino_transmittance")?,
-                    })
-                })
-                .transpose()?,
+            iris: raw.iris.as_ref().map(|i| parse_iris(i, origin)).transpose()?,
             rod_troland_factors: raw
                 .rod_troland_factors
                 .iter()
-                .map(|(k, p)| Ok((k.clone(), number(p, &format!("rod_troland_factors.{k}"))?)))
+                .map(|(k, p)| Ok((k.clone(), number_param(p, &format!("rod_troland_factors.{k}"), origin)?)))
                 .collect::<Result<Vec<_>>>()?,
         })
     }
+}
+
+/// "origin: key 'key'", the way errors name a key of an eye file.
+fn key_at(origin: &str, key: &str) -> String {
+    format!("{origin}: key '{key}'")
+}
+
+/// A parameter whose value is a length.
+fn length_param(p: &RawParam, key: &str, origin: &str) -> Result<Param<Length>> {
+    convert(p, key, origin, parse_length)
+}
+
+/// A parameter whose value is a plain number.
+fn number_param(p: &RawParam, key: &str, origin: &str) -> Result<Param<f64>> {
+    convert(p, key, origin, parse_number)
+}
+
+/// The `[media]` table's model (its status and source are read by the caller).
+fn parse_media(m: &RawMedia, origin: &str) -> Result<Media> {
+    match m.model.as_str() {
+        "van-de-kraats-2007" => Ok(Media::HumanAge {
+            default_age: parse_time(m.default_age.as_deref().unwrap_or("32 y"))
+                .map_err(|e| Error::data(e.context(key_at(origin, "media.default_age")).to_string()))?,
+        }),
+        "cut-off" => parse_cut_off(m, origin),
+        other => Err(Error::data(format!(
+            "{}: unknown media model '{other}'; expected van-de-kraats-2007 or cut-off",
+            key_at(origin, "media.model")
+        ))),
+    }
+}
+
+/// The logistic cut-off media model, whose three parameters are all required.
+fn parse_cut_off(m: &RawMedia, origin: &str) -> Result<Media> {
+    let need = |p: &Option<RawParam>, key: &str| {
+        p.clone()
+            .ok_or_else(|| Error::data(format!("{}: missing for a cut-off media model", key_at(origin, key))))
+    };
+    Ok(Media::CutOff {
+        half_transmission: length_param(
+            &need(&m.half_transmission, "media.half_transmission")?,
+            "media.half_transmission",
+            origin,
+        )?,
+        edge_width: length_param(&need(&m.edge_width, "media.edge_width")?, "media.edge_width", origin)?,
+        plateau: number_param(&need(&m.plateau, "media.plateau")?, "media.plateau", origin)?,
+    })
+}
+
+/// The `i`-th `[[receptor]]` table.
+fn parse_receptor(r: &RawReceptor, i: usize, origin: &str) -> Result<Receptor> {
+    let k = |f: &str| format!("receptor[{i}].{f}");
+    Ok(Receptor {
+        name: r.name.clone(),
+        lambda_max: length_param(&r.lambda_max, &k("lambda_max"), origin)?,
+        peak_optical_density: number_param(&r.peak_optical_density, &k("peak_optical_density"), origin)?,
+        aperture_area: convert(&r.aperture_area, &k("aperture_area"), origin, parse_area)?,
+        quantum_efficiency: number_param(&r.quantum_efficiency, &k("quantum_efficiency"), origin)?,
+        pigment_per_cell: r
+            .pigment_per_cell
+            .as_ref()
+            .map(|p| number_param(p, &k("pigment_per_cell"), origin))
+            .transpose()?,
+    })
+}
+
+/// The `[pupil]` table.
+fn parse_pupil(p: &RawPupil, origin: &str) -> Result<PupilTable> {
+    Ok(PupilTable {
+        dark_adapted: length_param(&p.dark_adapted, "pupil.dark_adapted", origin)?,
+        light_adapted: length_param(&p.light_adapted, "pupil.light_adapted", origin)?,
+        dilated: p.dilated.as_ref().map(|d| length_param(d, "pupil.dilated", origin)).transpose()?,
+        maximum: length_param(&p.maximum, "pupil.maximum", origin)?,
+    })
+}
+
+/// The `[iris]` table.
+fn parse_iris(i: &RawIris, origin: &str) -> Result<Iris> {
+    Ok(Iris {
+        diameter: length_param(&i.diameter, "iris.diameter", origin)?,
+        albino_transmittance: number_param(&i.albino_transmittance, "iris.albino_transmittance", origin)?,
+    })
 }
 
 fn convert<T>(p: &RawParam, key: &str, origin: &str, parse: impl Fn(&str) -> Result<T>) -> Result<Param<T>> {

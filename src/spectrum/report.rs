@@ -72,75 +72,17 @@ pub struct SpectrumReport {
 /// Builds the report of `spectrum`; `scaled_to` records how it was scaled, if it was.
 pub fn report(spectrum: &Spectrum, scaled_to: Option<ScaleTarget>) -> SpectrumReport {
     let energy = spectrum.to_energy();
-    let total = energy.integral();
-    let bands = BANDS
-        .iter()
-        .map(|&(name, band)| {
-            let (v, coverage) = energy.band_integral(band);
-            BandShare { name, band_nm: band, share: (total > 0.0).then(|| v / total), coverage }
-        })
-        .collect::<Vec<_>>();
+    let bands = band_shares(&energy);
     let photopic = photopic(&energy);
     let scotopic = scotopic(&energy);
     let alpha = alpha_opic(&energy);
-    let mut notes = Vec::new();
-    if spectrum.measure() == Measure::Relative {
-        notes.push(
-            "relative spectrum: only ratios (S/P, efficacy, ELR, DER, band shares) are meaningful; \
-             give a measured value (--illuminance, --luminance, --irradiance, --photon-irradiance, --radiance) \
-             for absolute quantities"
-                .to_string(),
-        );
-    }
-    let (lo, hi) = spectrum.range_nm();
-    for (what, cov) in [("photopic V(λ)", photopic.coverage), ("scotopic V′(λ)", scotopic.coverage)] {
-        if !cov.is_complete() {
-            notes.push(format!(
-                "{what} needs {}–{} nm; the spectrum covers {lo}–{hi} nm, so {:.3} % of the function's weight is missing \
-                 and the value is a lower bound",
-                cov.needed_nm.0,
-                cov.needed_nm.1,
-                100.0 * cov.uncovered_weight_share
-            ));
-        }
-    }
-    for a in &alpha {
-        if !a.coverage.is_complete() {
-            notes.push(format!(
-                "{} needs {}–{} nm; the spectrum covers {lo}–{hi} nm ({:.3} % of the weight missing): a lower bound",
-                a.name,
-                a.coverage.needed_nm.0,
-                a.coverage.needed_nm.1,
-                100.0 * a.coverage.uncovered_weight_share
-            ));
-        }
-    }
-    for b in &bands {
-        if !b.coverage.is_complete() && b.name != "ir" {
-            notes.push(format!(
-                "band {} ({}–{} nm) is only partly covered by the spectrum ({lo}–{hi} nm): its share counts the covered part only",
-                b.name, b.band_nm.0, b.band_nm.1
-            ));
-        }
-    }
-    notes.push(format!(
-        "band shares are of the power within the sampled {lo}–{hi} nm; power the lamp emits outside that range is not included"
-    ));
-    if let Some(mel) = action_spectra().iter().find(|f| f.reconstructed) {
-        let dev = 100.0 * (mel.d65_elr.value / mel.published_d65_elr.value - 1.0);
-        notes.push(format!(
-            "the {} function is a reconstruction, not the normative CIE S 026 table (its D65 ELR differs from the \
-             published {:.4} mW/lm, itself from memory, by {dev:+.2} %; the lens model it uses is from memory)",
-            mel.name,
-            mel.published_d65_elr.value * 1e3
-        ));
-    }
+    let notes = notes(spectrum, &photopic, &scotopic, &alpha, &bands);
     SpectrumReport {
         label: spectrum.label().to_string(),
         provenance: spectrum.provenance().map(str::to_string),
         measure: spectrum.measure(),
         basis: spectrum.basis(),
-        range_nm: (lo, hi),
+        range_nm: spectrum.range_nm(),
         samples: spectrum.curve().wavelength_nm().len(),
         scaled_to,
         radiometric: spectrum.radiometric_total(),
@@ -154,4 +96,99 @@ pub fn report(spectrum: &Spectrum, scaled_to: Option<ScaleTarget>) -> SpectrumRe
         bands,
         notes,
     }
+}
+
+/// The share of the radiant power of `energy` (an energy-basis spectrum) in each of [`BANDS`].
+fn band_shares(energy: &Spectrum) -> Vec<BandShare> {
+    let total = energy.integral();
+    BANDS
+        .iter()
+        .map(|&(name, band)| {
+            let (v, coverage) = energy.band_integral(band);
+            BandShare { name, band_nm: band, share: (total > 0.0).then(|| v / total), coverage }
+        })
+        .collect::<Vec<_>>()
+}
+
+/// The cautions of the report, in order: a relative spectrum, partial coverage of each
+/// function and band, what the band shares are of, and the reconstructed melanopic function.
+fn notes(
+    spectrum: &Spectrum,
+    photopic: &PhotometricResult,
+    scotopic: &PhotometricResult,
+    alpha: &[AlphaOpicValue],
+    bands: &[BandShare],
+) -> Vec<String> {
+    let mut notes = Vec::new();
+    if spectrum.measure() == Measure::Relative {
+        notes.push(
+            "relative spectrum: only ratios (S/P, efficacy, ELR, DER, band shares) are meaningful; \
+             give a measured value (--illuminance, --luminance, --irradiance, --photon-irradiance, --radiance) \
+             for absolute quantities"
+                .to_string(),
+        );
+    }
+    let (lo, hi) = spectrum.range_nm();
+    coverage_notes(&mut notes, (lo, hi), photopic, scotopic, alpha, bands);
+    notes.push(format!(
+        "band shares are of the power within the sampled {lo}–{hi} nm; power the lamp emits outside that range is not included"
+    ));
+    if let Some(note) = reconstruction_note() {
+        notes.push(note);
+    }
+    notes
+}
+
+/// One note for each function or band (except IR) the spectrum, sampled over `range`, does
+/// not fully cover.
+fn coverage_notes(
+    notes: &mut Vec<String>,
+    (lo, hi): (f64, f64),
+    photopic: &PhotometricResult,
+    scotopic: &PhotometricResult,
+    alpha: &[AlphaOpicValue],
+    bands: &[BandShare],
+) {
+    for (what, cov) in [("photopic V(λ)", photopic.coverage), ("scotopic V′(λ)", scotopic.coverage)] {
+        if !cov.is_complete() {
+            notes.push(format!(
+                "{what} needs {}–{} nm; the spectrum covers {lo}–{hi} nm, so {:.3} % of the function's weight is missing \
+                 and the value is a lower bound",
+                cov.needed_nm.0,
+                cov.needed_nm.1,
+                100.0 * cov.uncovered_weight_share
+            ));
+        }
+    }
+    for a in alpha {
+        if !a.coverage.is_complete() {
+            notes.push(format!(
+                "{} needs {}–{} nm; the spectrum covers {lo}–{hi} nm ({:.3} % of the weight missing): a lower bound",
+                a.name,
+                a.coverage.needed_nm.0,
+                a.coverage.needed_nm.1,
+                100.0 * a.coverage.uncovered_weight_share
+            ));
+        }
+    }
+    for b in bands {
+        if !b.coverage.is_complete() && b.name != "ir" {
+            notes.push(format!(
+                "band {} ({}–{} nm) is only partly covered by the spectrum ({lo}–{hi} nm): its share counts the covered part only",
+                b.name, b.band_nm.0, b.band_nm.1
+            ));
+        }
+    }
+}
+
+/// The caution on a reconstructed α-opic function (the melanopic one), if there is one.
+fn reconstruction_note() -> Option<String> {
+    let mel = action_spectra().iter().find(|f| f.reconstructed)?;
+    let dev = 100.0 * (mel.d65_elr.value / mel.published_d65_elr.value - 1.0);
+    Some(format!(
+        "the {} function is a reconstruction, not the normative CIE S 026 table (its D65 ELR differs from the \
+         published {:.4} mW/lm, itself from memory, by {dev:+.2} %; the lens model it uses is from memory)",
+        mel.name,
+        mel.published_d65_elr.value * 1e3
+    ))
 }
