@@ -22,6 +22,9 @@ pub struct PlacedSource {
     pub geometry: Geometry,
     /// Its diameter, when given (lets an extended source be placed at another distance).
     pub size: Option<Length>,
+    /// The distance from the source to the eye, when given (lets a measured irradiance be
+    /// turned into an intensity for risk groups).
+    pub distance: Option<Length>,
 }
 
 /// What one source delivers at the cornea after every filter in `filters` (applied in order;
@@ -53,6 +56,7 @@ mod tests {
             spectrum: s,
             geometry: Geometry::AtEye { field: Some(Field::FullField) },
             size: None,
+            distance: None,
         };
         let f = [Filter::flat(0.5, "a").unwrap(), Filter::flat(0.2, "b").unwrap()];
         let c = at_cornea(&p, &f).unwrap();

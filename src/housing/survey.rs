@@ -159,6 +159,7 @@ pub fn per_lux(
         spectrum: one_lux,
         geometry: Geometry::AtEye { field: Some(Field::FullField) },
         size: None,
+        distance: None,
     };
     let scenario =
         RetinaScenario { sources: vec![source], filters: vec![wall.clone()], pupil, ..view.clone() };

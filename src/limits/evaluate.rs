@@ -114,6 +114,9 @@ pub struct HazardResult {
     pub coverage: Option<Coverage>,
     /// Ratio from the covered part only, when the band is not fully covered (a lower bound).
     pub lower_bound_ratio: Option<f64>,
+    /// True when the spectrum covers only part of the band: the ratio is a lower bound and
+    /// t_max an upper bound; a lower bound ≥ 1 is an exceedance on the measured band alone.
+    pub partial: bool,
     /// Parts of this result that rest on values from memory.
     pub from_memory: Vec<String>,
     /// Source of the limit piece used.
@@ -207,7 +210,8 @@ fn t_max(h: &Hazard, p: &Prepared) -> Option<TMax> {
     let last = h.limits.last()?.to_s;
     let top = if last.is_finite() { last } else { 1e9 };
     let r = |t: f64| p.ratio(h, t, 1.0).map(|(d, a, _)| d / a);
-    let steps = ((top / first).log10() * 60.0).ceil().max(1.0) as usize;
+    // At most 60 points per decade over a bounded range (pieces end by 10¹⁰ s or are open).
+    let steps = ((top / first).log10() * 60.0).ceil().clamp(1.0, 2000.0) as usize;
     let mut prev = first;
     if r(first)? > 1.0 {
         return Some(TMax::BelowRange(first));
@@ -248,7 +252,8 @@ fn blank_result(h: &Hazard) -> HazardResult {
         limit: None,
         ratio: None,
         t_max: None,
-        verdict: Verdict::Within,
+        verdict: Verdict::NotAssessed("not evaluated".into()),
+        partial: false,
         coverage: None,
         lower_bound_ratio: None,
         from_memory: Vec::new(),
@@ -405,19 +410,26 @@ fn evaluate_on(h: &Hazard, e: &Exposure<'_>, spectrum: &Spectrum, mut out: Hazar
     };
     record_limit(&mut out, h, seg, dose, allowed, t);
     let ratio = dose / allowed;
+    out.t_max = if e.schedule.is_none() { t_max(h, &p) } else { None };
     if !coverage.is_complete() {
+        // The covered part alone: a lower bound on the ratio. At or above 1 it already exceeds.
         out.lower_bound_ratio = Some(ratio);
+        out.partial = true;
+        if ratio >= 1.0 {
+            out.ratio = Some(ratio);
+            return with_verdict(out, Verdict::Exceeds);
+        }
+        out.t_max = None;
         let (lo, hi) = spectrum.range_nm();
         return with_verdict(
             out,
             Verdict::NotAssessed(format!(
-                "spectrum covers {lo}–{hi} nm, hazard needs {}–{} nm",
+                "spectrum covers {lo}–{hi} nm, hazard needs {}–{} nm; the measured band alone gives {ratio:.3e} of the limit",
                 h.band_nm.0, h.band_nm.1
             )),
         );
     }
     out.ratio = Some(ratio);
-    out.t_max = if e.schedule.is_none() { t_max(h, &p) } else { None };
     out.verdict = if ratio <= 1.0 { Verdict::Within } else { Verdict::Exceeds };
     out
 }

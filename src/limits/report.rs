@@ -59,6 +59,35 @@ pub struct LimitsAssessment {
     pub notes: Vec<String>,
 }
 
+/// The source as one that can be placed at any distance: a spectral intensity, a radiance
+/// with its size, or an irradiance measured at a known distance turned into an intensity by
+/// the inverse-square law (I = E·d²; valid when the distance is several times the source's size).
+/// The filters of the lamp system go with it.
+fn movable_source(
+    source: &PlacedSource,
+    size: Option<crate::base::quantity::Length>,
+    filters: &[Filter],
+) -> std::result::Result<MovableSource, String> {
+    let s = &source.spectrum;
+    let size = size.or(source.size);
+    let spectrum = match (s.measure(), source.distance) {
+        (Measure::Intensity | Measure::Radiance, _) => s.clone(),
+        (Measure::Irradiance, Some(d)) => {
+            let d = d.si();
+            s.scaled_as(d * d, Measure::Intensity).map_err(|e| e.to_string())?
+        }
+        (m, _) => {
+            return Err(format!(
+                "risk groups need the source as a spectral intensity, a radiance with its size, or an irradiance with \
+                 the distance it was measured at, so it can be placed at the assessment distance; this one is a \
+                 spectral {}",
+                m.name()
+            ));
+        }
+    };
+    Ok(MovableSource { spectrum, size, filters: filters.to_vec() })
+}
+
 /// Serialises a classification as `{"classified": …}` or `{"not_classified": "reason"}`.
 fn classification_json<S: serde::Serializer>(
     c: &Option<std::result::Result<Classification, String>>,
@@ -133,20 +162,22 @@ pub fn assess_limits(r: &LimitsRequest<'_>) -> Result<LimitsAssessment> {
         ));
     }
     let classification = r.classify.map(|general| {
-        let s = &r.source.spectrum;
         let size = match &r.source.geometry {
             crate::cornea::geometry::Geometry::Intensity { size, .. } | crate::cornea::geometry::Geometry::Flux { size, .. } => *size,
             crate::cornea::geometry::Geometry::Extended { .. } | crate::cornea::geometry::Geometry::AtEye { .. } => None,
         };
-        let movable = match s.measure() {
-            Measure::Intensity | Measure::Radiance => Ok(MovableSource { spectrum: s.clone(), size: size.or(r.source.size) }),
-            m => Err(format!(
-                "risk groups need the source as a spectral intensity (or a radiance with its size) so it can be placed at \
-                 the assessment distance; this one is a spectral {}",
-                m.name()
-            )),
-        };
-        movable.and_then(|m| classify(r.set, &m, general).map_err(|e| e.to_string()))
+        let movable = movable_source(r.source, size, r.filters);
+        let from_irradiance = r.source.spectrum.measure() == Measure::Irradiance;
+        movable.and_then(|m| classify(r.set, &m, general).map_err(|e| e.to_string())).map(|mut c| {
+            if from_irradiance {
+                c.notes.push(
+                    "classified from the irradiance measured at the stated distance, as an intensity I = E·d² \
+                     (inverse-square law; valid when the distance is several times the source's size)"
+                        .to_string(),
+                );
+            }
+            c
+        })
     });
     Ok(LimitsAssessment {
         set_id: r.set.id.clone(),

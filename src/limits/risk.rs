@@ -19,7 +19,7 @@ use super::set::LimitSet;
 use super::weighting::find_weighting;
 use crate::base::error::{Error, Result};
 use crate::base::quantity::{Angle, Length, SiValue, Time};
-use crate::cornea::geometry::{Geometry, corneal, subtense};
+use crate::cornea::geometry::{Geometry, subtense};
 use crate::spectrum::photometry::photopic;
 use crate::spectrum::{Measure, Spectrum};
 
@@ -58,7 +58,10 @@ pub struct HazardGroup {
     pub name: String,
     /// The group, or `None` when not assessed or not applicable.
     pub group: Option<RiskGroup>,
-    /// Why there is no group ("not assessed: …" or "not applicable: …").
+    /// True when `group` is only a lower bound (the spectrum covers part of the band and the
+    /// measured band alone already exceeds the lower groups' limits).
+    pub lower_bound: bool,
+    /// Why there is no group, or why it is a lower bound ("not assessed: …", "not applicable: …").
     pub reason: Option<String>,
     /// True when the hazard does not apply (so it does not make the overall group a lower bound).
     pub not_applicable: bool,
@@ -76,6 +79,8 @@ pub struct MovableSource {
     pub spectrum: Spectrum,
     /// Source diameter (required for a radiance).
     pub size: Option<Length>,
+    /// Filters that are part of the lamp system (applied at every distance).
+    pub filters: Vec<crate::cornea::filter::Filter>,
 }
 
 impl MovableSource {
@@ -95,8 +100,19 @@ impl MovableSource {
         }
     }
 
+    /// What arrives at distance `d`, through the lamp system's filters.
+    fn at(&self, d: Length) -> Result<crate::cornea::geometry::Corneal> {
+        let placed = crate::cornea::PlacedSource {
+            spectrum: self.spectrum.clone(),
+            geometry: self.geometry_at(d)?,
+            size: self.size,
+            distance: Some(d),
+        };
+        crate::cornea::at_cornea(&placed, &self.filters)
+    }
+
     fn illuminance_at(&self, d: Length) -> Result<f64> {
-        Ok(photopic(&corneal(&self.spectrum, &self.geometry_at(d)?)?.irradiance).raw)
+        Ok(photopic(&self.at(d)?.irradiance).raw)
     }
 }
 
@@ -137,7 +153,7 @@ pub fn blue_light_efficacy(spectrum: &Spectrum) -> Option<f64> {
 }
 
 fn groups_at(set: &LimitSet, source: &MovableSource, d: Length) -> Result<Vec<HazardGroup>> {
-    let c = corneal(&source.spectrum, &source.geometry_at(d)?)?;
+    let c = source.at(d)?;
     Ok(set
         .hazards
         .iter()
@@ -146,7 +162,9 @@ fn groups_at(set: &LimitSet, source: &MovableSource, d: Length) -> Result<Vec<Ha
             let mut ratios = [None; 3];
             let mut reason = None;
             let mut group = None;
+            let mut lower_bound = false;
             let mut not_applicable = false;
+            const GROUPS: [RiskGroup; 3] = [RiskGroup::Exempt, RiskGroup::Rg1, RiskGroup::Rg2];
             for (i, &t) in bases.iter().enumerate() {
                 let e = Exposure {
                     irradiance: &c.irradiance,
@@ -159,26 +177,33 @@ fn groups_at(set: &LimitSet, source: &MovableSource, d: Length) -> Result<Vec<Ha
                 };
                 let r = assess(h, &e);
                 match &r.verdict {
-                    Verdict::Within | Verdict::Exceeds => ratios[i] = r.ratio,
+                    Verdict::Within => {
+                        ratios[i] = r.ratio;
+                        group = Some(GROUPS[i]);
+                        break;
+                    }
+                    // Exceeds at this time base (a lower bound ≥ 1 included): a higher group.
+                    Verdict::Exceeds => ratios[i] = r.ratio,
                     other => {
                         not_applicable = matches!(other, Verdict::NotApplicable(_));
                         reason = Some(other.text());
+                        // Already past the lower groups on the measured band alone: at least GROUPS[i].
+                        if i > 0 {
+                            group = Some(GROUPS[i]);
+                            lower_bound = true;
+                        }
                         break;
                     }
                 }
             }
-            if reason.is_none() {
-                group = Some(match ratios {
-                    [Some(r), _, _] if r <= 1.0 => RiskGroup::Exempt,
-                    [_, Some(r), _] if r <= 1.0 => RiskGroup::Rg1,
-                    [_, _, Some(r)] if r <= 1.0 => RiskGroup::Rg2,
-                    _ => RiskGroup::Rg3,
-                });
+            if group.is_none() && reason.is_none() {
+                group = Some(RiskGroup::Rg3);
             }
             HazardGroup {
                 id: h.id.clone(),
                 name: h.name.clone(),
                 group,
+                lower_bound,
                 reason,
                 not_applicable,
                 ratios,
@@ -270,10 +295,10 @@ pub fn classify(set: &LimitSet, source: &MovableSource, general_lighting: bool) 
     let overall = hazards.iter().filter_map(|g| g.group).max();
     let not_assessed: Vec<String> = hazards
         .iter()
-        .filter(|g| g.group.is_none() && !g.not_applicable)
+        .filter(|g| (g.group.is_none() || g.lower_bound) && !g.not_applicable)
         .map(|g| format!("{} ({})", g.name, g.reason.clone().unwrap_or_default()))
         .collect();
-    let c = corneal(&source.spectrum, &source.geometry_at(distance)?)?;
+    let c = source.at(distance)?;
     let kbv = blue_light_efficacy(&c.irradiance);
     let mut notes = vec![
         "E_thr and the threshold distance follow IEC TR 62778:2014, withdrawn and replaced by IEC 62471-7:2023; \
@@ -287,6 +312,12 @@ pub fn classify(set: &LimitSet, source: &MovableSource, general_lighting: bool) 
     };
     if !not_assessed.is_empty() {
         notes.push("some hazards could not be grouped, so the overall group is a lower bound".to_string());
+    }
+    if !source.filters.is_empty() {
+        notes.push(format!(
+            "filters included as part of the lamp system: {}",
+            source.filters.iter().map(|f| f.label().to_string()).collect::<Vec<_>>().join(", ")
+        ));
     }
     Ok(Classification {
         illuminance_lx: photopic(&c.irradiance).raw,

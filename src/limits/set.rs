@@ -251,12 +251,22 @@ type KeyName<'a> = &'a dyn Fn(&str) -> String;
 pub fn parse_set(text: &str, origin: &str) -> Result<LimitSet> {
     let raw: RawSet =
         toml::from_str(text).map_err(|e| Error::data(crate::base::toml_errors::describe(&e, origin)))?;
+    if raw.hazard.is_empty() {
+        return Err(Error::data(format!(
+            "{origin}: key 'hazard': a limit set needs at least one [[hazard]]"
+        )));
+    }
     let hazards = raw
         .hazard
         .iter()
         .enumerate()
         .map(|(hi, h)| parse_hazard(h, hi, origin))
         .collect::<Result<Vec<_>>>()?;
+    for (i, h) in hazards.iter().enumerate() {
+        if hazards[..i].iter().any(|x| x.id == h.id) {
+            return Err(Error::data(format!("{origin}: key 'hazard[{i}].id': '{}' is used twice", h.id)));
+        }
+    }
     Ok(LimitSet {
         id: raw.id,
         document: raw.document,
@@ -269,13 +279,51 @@ pub fn parse_set(text: &str, origin: &str) -> Result<LimitSet> {
     })
 }
 
+/// The longest duration a limit piece, field of view or time base may name, s (about 317
+/// years; longer pieces are open-ended, `inf`). Keeps every evaluation bounded.
+pub const MAX_LIMIT_S: f64 = 1e10;
+
 /// Parses and checks the `hi`-th `[[hazard]]` table.
 fn parse_hazard(h: &RawHazard, hi: usize, origin: &str) -> Result<Hazard> {
     let at = |k: &str| format!("{origin}: key 'hazard[{hi}].{k}' ({})", h.id);
     let quantity = parse_quantity(h, &at)?;
     let weighting = hazard_weighting(h, &at)?;
-    if !(h.band_nm[0] > 0.0 && h.band_nm[0] < h.band_nm[1]) {
-        return Err(Error::data(format!("{}: band must be increasing and positive", at("band_nm"))));
+    if !(h.band_nm[0] > 0.0 && h.band_nm[0] < h.band_nm[1] && h.band_nm[1] <= 1e6) {
+        return Err(Error::data(format!(
+            "{}: band must be increasing, positive and finite (at most 10⁶ nm)",
+            at("band_nm")
+        )));
+    }
+    for (k, v) in [("smaller_than_rad", h.smaller_than_rad), ("at_least_rad", h.at_least_rad)] {
+        if v.is_some_and(|v| !(v > 0.0 && v < std::f64::consts::PI)) {
+            return Err(Error::data(format!("{}: must be above 0 and below π rad", at(k))));
+        }
+    }
+    if h.luminance_below_cd_m2.is_some_and(|v| !(v > 0.0 && v.is_finite())) {
+        return Err(Error::data(format!("{}: must be a finite number above 0", at("luminance_below_cd_m2"))));
+    }
+    if let Some(tb) = h.risk_group_time_bases_s
+        && tb.iter().any(|v| !(*v > 0.0 && *v <= MAX_LIMIT_S))
+    {
+        return Err(Error::data(format!(
+            "{}: time bases must be above 0 s and at most {MAX_LIMIT_S} s",
+            at("risk_group_time_bases_s")
+        )));
+    }
+    for (fi, f) in h.field_of_view.iter().enumerate() {
+        let ok = f.from_s >= 0.0
+            && f.from_s < f.to_s
+            && (f.to_s <= MAX_LIMIT_S || f.to_s == f64::INFINITY)
+            && f.coefficient_rad > 0.0
+            && f.coefficient_rad.is_finite()
+            && f.time_exponent.is_finite();
+        if !ok {
+            return Err(Error::data(format!(
+                "{}: needs 0 ≤ from_s < to_s (finite up to {MAX_LIMIT_S} s, or inf), a finite coefficient above 0 \
+                 and a finite exponent",
+                at(&format!("field_of_view[{fi}]"))
+            )));
+        }
     }
     let limits = parse_segments(h, quantity, &at)?;
     let c_alpha = h.c_alpha.as_ref().map(|c| parse_c_alpha(c, &at)).transpose()?;
@@ -386,8 +434,20 @@ fn parse_segment(
     if !(s.coefficient.is_finite() && s.coefficient > 0.0) {
         return Err(Error::data(format!("{}: must be a finite number above 0", k("coefficient"))));
     }
-    if !(s.from_s >= 0.0 && s.from_s < s.to_s) {
+    if !(s.from_s >= 0.0 && s.from_s < s.to_s && s.from_s <= MAX_LIMIT_S) {
         return Err(Error::data(format!("{}: from_s must be ≥ 0 and below to_s", k("from_s"))));
+    }
+    if !(s.to_s <= MAX_LIMIT_S || s.to_s == f64::INFINITY) {
+        return Err(Error::data(format!(
+            "{}: {} s is beyond {MAX_LIMIT_S} s (about 300 years); write inf for an open end",
+            k("to_s"),
+            s.to_s
+        )));
+    }
+    for (name, v) in [("time_exponent", s.time_exponent), ("alpha_exponent", s.alpha_exponent)] {
+        if !(v.is_finite() && v.abs() <= 10.0) {
+            return Err(Error::data(format!("{}: {v} must be a finite number within ±10", k(name))));
+        }
     }
     if let Some(prev) = prev
         && (s.from_s - prev).abs() > 1e-12 * prev.max(1.0)
@@ -430,8 +490,8 @@ fn parse_c_alpha(c: &RawCAlpha, at: KeyName<'_>) -> Result<CAlpha> {
             return Err(Error::data(format!("{}: '{o}' is not rad or mrad", at("c_alpha.unit"))));
         }
     };
-    if !(min.si() > 0.0 && min.si() < max.si()) {
-        return Err(Error::data(format!("{}: need 0 < min < max", at("c_alpha"))));
+    if !(min.si() > 0.0 && min.si() < max.si() && max.si() < std::f64::consts::PI) {
+        return Err(Error::data(format!("{}: need 0 < min < max < π rad", at("c_alpha"))));
     }
     Ok(CAlpha { min_rad: min.si(), max_rad: max.si(), in_mrad })
 }

@@ -265,6 +265,10 @@ fn resolve(raw: RawScenario, origin: &str, base: Option<&Path>) -> Result<Scenar
     let limits = raw.limits.map(|l| limits(l, &source_ids)).transpose()?;
     let guidance = match raw.guidance {
         None => Vec::new(),
+        Some(g) if g.sets.is_empty() => {
+            let msg = "an empty list compares nothing: name at least one set (nrc-guide-2011, brown-2022), or leave out [guidance]";
+            return Err(Error::input(msg).key("sets").key("guidance"));
+        }
         Some(g) => g
             .sets
             .iter()
@@ -364,6 +368,10 @@ fn step(st: &RawStep, ids: &[String]) -> Result<Step> {
 
 fn limits(l: RawLimits, ids: &[String]) -> Result<LimitsSpec> {
     let at = |e: Error, key: &str| e.key(key).key("limits");
+    if l.sets.is_empty() {
+        let msg = "an empty list checks nothing: name at least one set (see `retidose limits list`), or leave out [limits]";
+        return Err(at(Error::input(msg), "sets"));
+    }
     let sets = l.sets.iter().map(|s| find_set(s).map_err(|e| at(e, "sets"))).collect::<Result<Vec<_>>>()?;
     let duration = parse_time(&l.duration).map_err(|e| at(e, "duration"))?;
     let sources = match &l.sources {

@@ -186,7 +186,8 @@ pub fn place(spec: &SourceSpec, base: Option<&Path>) -> Result<PlacedSource> {
     let spectrum = scaled_spectrum(spec, base)?;
     let size = opt(&spec.size, "size", parse_length)?;
     let geometry = geometry(spec, &spectrum, size)?;
-    Ok(PlacedSource { spectrum, geometry, size })
+    let distance = opt(&spec.distance, "distance", parse_length)?;
+    Ok(PlacedSource { spectrum, geometry, size, distance })
 }
 
 /// The source's spectrum, resolved and scaled to its one measured value.

@@ -268,6 +268,7 @@ fn scenario(species: Species, lux: &str, filters: Vec<Filter>) -> RetinaScenario
             spectrum: s,
             geometry: Geometry::AtEye { field: Some(Field::FullField) },
             size: None,
+            distance: None,
         }],
         filters,
         pupil: PupilRule::DarkAdapted,

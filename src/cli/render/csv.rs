@@ -102,7 +102,7 @@ fn hazard_rows(o: &mut String, all: &[Assessment]) {
                     csv_field(&h.clause),
                     h.ratio.map_or(String::new(), |r| r.to_string()),
                     tm,
-                    verdict_word(&h.verdict),
+                    verdict_word(h),
                     csv_field(&reason)
                 );
             }

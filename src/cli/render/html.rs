@@ -207,8 +207,8 @@ fn limits_table(o: &mut String, src: &str, l: &LimitsAssessment) {
             esc(&h.name),
             esc(&h.clause),
             h.ratio.map_or("—".into(), num),
-            esc(&t_max(&h.t_max)),
-            verdict_word(&h.verdict),
+            esc(&t_max(h)),
+            verdict_word(h),
             why,
             if h.from_memory.is_empty() { "" } else { " [from memory]" }
         );

@@ -100,8 +100,8 @@ fn limits(o: &mut String, src: &str, l: &LimitsAssessment) {
             md(&h.name),
             md(&h.clause),
             h.ratio.map_or("—".into(), num),
-            t_max(&h.t_max),
-            verdict_word(&h.verdict),
+            t_max(h),
+            verdict_word(h),
             if h.from_memory.is_empty() { "" } else { " (from memory)" }
         );
     }

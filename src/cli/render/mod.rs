@@ -23,7 +23,7 @@ pub mod terminal;
 use std::fmt::Write;
 
 use retidose::assess::{Assessment, GuidanceBasis, GuidanceRow};
-use retidose::limits::{TMax, Verdict};
+use retidose::limits::{HazardResult, TMax, Verdict};
 use retidose::spectrum::Basis;
 
 /// The caution printed under every report.
@@ -53,21 +53,25 @@ fn basis_name(b: Basis) -> &'static str {
     }
 }
 
-/// A limit verdict in one or two words (the `assess` report).
-fn verdict_word(v: &Verdict) -> &'static str {
-    match v {
-        Verdict::Within => "within limit",
-        Verdict::Exceeds => "EXCEEDS",
-        Verdict::NotAssessed(_) => "not assessed",
-        Verdict::NotApplicable(_) => "not applicable",
+/// A limit verdict in a few words (the `assess` report); an exceedance found on a partly
+/// covered band says so.
+fn verdict_word(h: &HazardResult) -> &'static str {
+    match (&h.verdict, h.partial) {
+        (Verdict::Within, _) => "within limit",
+        (Verdict::Exceeds, false) => "EXCEEDS",
+        (Verdict::Exceeds, true) => "EXCEEDS on the measured band alone",
+        (Verdict::NotAssessed(_), _) => "not assessed",
+        (Verdict::NotApplicable(_), _) => "not applicable",
     }
 }
 
-/// The maximum exposure time, short (the `assess` report).
-fn t_max(t: &Option<TMax>) -> String {
-    match t {
+/// The maximum exposure time, short (the `assess` report); at most this when the band is only
+/// partly covered.
+fn t_max(h: &HazardResult) -> String {
+    let at_most = if h.partial { "≤ " } else { "" };
+    match &h.t_max {
         None => "—".into(),
-        Some(TMax::Seconds(s)) => format!("{} s", num(*s)),
+        Some(TMax::Seconds(s)) => format!("{at_most}{} s", num(*s)),
         Some(TMax::NotReached(u)) if u.is_infinite() => "no limit".into(),
         Some(TMax::NotReached(u)) => format!("> {} s", num(*u)),
         Some(TMax::BelowRange(s)) => format!("< {} s", num(*s)),

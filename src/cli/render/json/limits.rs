@@ -54,6 +54,7 @@ pub fn check(r: &LimitsAssessment) -> String {
             "limit": h.limit.map(|(x, u)| json!({ "value": x, "unit": u })),
             "ratio": h.ratio,
             "lower_bound_ratio": h.lower_bound_ratio,
+            "partial_band": h.partial,
             "t_max": t_max_json(&h.t_max),
             "verdict": verdict_json(&h.verdict),
             "coverage": h.coverage.as_ref().map(coverage_json),

@@ -186,7 +186,7 @@ fn limits(o: &mut String, src: &str, l: &LimitsAssessment, colour: bool) {
         .hazards
         .iter()
         .map(|h| {
-            let v = verdict_word(&h.verdict);
+            let v = verdict_word(h);
             let v = match h.verdict {
                 Verdict::Exceeds => paint(v, "31;1", colour),
                 Verdict::Within => paint(v, "32", colour),
@@ -196,7 +196,7 @@ fn limits(o: &mut String, src: &str, l: &LimitsAssessment, colour: bool) {
                 h.name.clone(),
                 h.clause.clone(),
                 h.ratio.map_or("—".into(), num),
-                t_max(&h.t_max),
+                t_max(h),
                 format!("{v}{}", if h.from_memory.is_empty() { "" } else { " [from memory]" }),
             ]
         })

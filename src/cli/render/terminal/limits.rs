@@ -154,9 +154,15 @@ fn hazard(o: &mut String, h: &HazardResult) {
         let _ = writeln!(o, "  ratio of the covered part (a lower bound) {}", num(r));
     }
     if h.t_max.is_some() {
-        let _ = writeln!(o, "  t_max           {}", t_max_text(&h.t_max));
+        let at_most = if h.partial { "at most " } else { "" };
+        let _ = writeln!(o, "  t_max           {at_most}{}", t_max_text(&h.t_max));
     }
-    let _ = writeln!(o, "  verdict         {}{memo}", h.verdict.text());
+    let partial = if h.partial && h.verdict == retidose::limits::Verdict::Exceeds {
+        " — on the measured band alone (the spectrum covers part of the band; the rest can only add)"
+    } else {
+        ""
+    };
+    let _ = writeln!(o, "  verdict         {}{partial}{memo}", h.verdict.text());
     if !h.from_memory.is_empty() {
         let _ = writeln!(o, "  from memory     {}", h.from_memory.join("; "));
     }
