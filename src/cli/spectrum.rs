@@ -17,7 +17,7 @@ use super::render::{json, terminal};
 /// Help shown after `retidose spectrum --help`.
 pub const EXAMPLES: &str = "\
 SOURCE is one of:
-  blackbody:TEMPERATURE   Planck's law, e.g. blackbody:2856K (spectral radiance, 200–3000 nm)
+  blackbody:TEMPERATURE   Planck's law, e.g. blackbody:2856K (spectral radiance, 180–3000 nm)
   cie:A, cie:D65          CIE standard illuminants (relative)
   led:PEAK:WIDTH          one Ohno (2005) LED band, e.g. led:460nm:20nm (relative)
   NAME                    a built-in lamp (see `retidose sources`)

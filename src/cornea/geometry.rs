@@ -169,17 +169,19 @@ pub fn corneal(spectrum: &Spectrum, geometry: &Geometry) -> Result<Corneal> {
             require(spectrum, Measure::Intensity, "intensity")?;
             let d = check_distance(*distance)?;
             let inc = check_angle(*incidence, "angle of incidence")?;
-            small_source(spectrum, 1.0, d, inc, *size, &mut notes)?
+            small_source(spectrum, 1.0, inc.cos(), d, *size, &mut notes)?
         }
         Geometry::Flux { emission, distance, emission_angle, incidence, size } => {
             require(spectrum, Measure::Flux, "flux")?;
             let d = check_distance(*distance)?;
             let inc = check_angle(*incidence, "angle of incidence")?;
-            let factor = match emission {
-                Emission::Isotropic => 1.0 / (4.0 * PI),
-                Emission::Lambertian => check_angle(*emission_angle, "emission angle")?.cos() / PI,
+            // On-axis intensity per watt, and the cosines that only the irradiance carries: a
+            // Lambertian emitter's radiance is the same in every direction.
+            let (factor, emission_cos) = match emission {
+                Emission::Isotropic => (1.0 / (4.0 * PI), 1.0),
+                Emission::Lambertian => (1.0 / PI, check_angle(*emission_angle, "emission angle")?.cos()),
             };
-            small_source(spectrum, factor, d, inc, *size, &mut notes)?
+            small_source(spectrum, factor, emission_cos * inc.cos(), d, *size, &mut notes)?
         }
         Geometry::Extended { subtense } => {
             require(spectrum, Measure::Radiance, "extended-source")?;
@@ -214,22 +216,25 @@ fn derive_radiance(e: &Spectrum, alpha: Option<f64>, notes: &mut Vec<String>) ->
     }
 }
 
-/// A small source of intensity `i_factor` × `spectrum` at `d` m and incidence `incidence`
-/// rad; its radiance is derived when its size is known.
+/// A small source of intensity `i_factor` × `spectrum` at `d` m; the irradiance on the eye
+/// carries `cos_factor` (the cosine of the angle of incidence, and of the emission angle for a
+/// Lambertian emitter), the radiance does not: radiance is invariant with the viewing angle.
+/// The radiance is derived when the source's size is known.
 fn small_source(
     spectrum: &Spectrum,
     i_factor: f64,
+    cos_factor: f64,
     d: f64,
-    incidence: f64,
     size: Option<Length>,
     notes: &mut Vec<String>,
 ) -> Result<Arrival> {
-    let e = spectrum.scaled_as(i_factor * incidence.cos() / (d * d), Measure::Irradiance)?;
+    let normal = spectrum.scaled_as(i_factor / (d * d), Measure::Irradiance)?;
+    let e = normal.scaled_as(cos_factor, Measure::Irradiance)?;
     let alpha = size.map(|s| subtense(s, Length::from_si(d))).transpose()?.map(|a| a.si());
     if alpha.is_none() {
         notes.push("radiance not known: give the source size to derive it".to_string());
     }
-    let radiance = derive_radiance(&e, alpha, notes)?;
+    let radiance = derive_radiance(&normal, alpha, notes)?;
     let derived = radiance.is_some();
     Ok((e, radiance, alpha, derived))
 }
@@ -297,5 +302,45 @@ mod tests {
         let l = flat(Measure::Radiance, 1.0);
         let g = Geometry::AtEye { field: None };
         assert!(corneal(&l, &g).unwrap_err().message().contains("needs a spectral irradiance"));
+    }
+
+    #[test]
+    fn radiance_is_invariant_with_incidence_and_irradiance_carries_the_cosine() {
+        // Radiometry: a source's radiance does not change with the viewing angle; the irradiance
+        // on a surface tilted by θ is E(0)·cos θ (Lambert's cosine law).
+        let i = flat(Measure::Intensity, 2.0);
+        let at = |deg: f64| {
+            let g = Geometry::Intensity {
+                distance: parse_length("0.5 m").unwrap(),
+                incidence: parse_angle(&format!("{deg} deg")).unwrap(),
+                size: Some(parse_length("5 mm").unwrap()),
+            };
+            corneal(&i, &g).unwrap()
+        };
+        let c0 = at(0.0);
+        let total = |s: &Spectrum| s.curve().integral();
+        for deg in [30.0, 60.0] {
+            let c = at(deg);
+            let l0 = total(c0.radiance.as_ref().unwrap());
+            assert!((total(c.radiance.as_ref().unwrap()) - l0).abs() <= 1e-12 * l0, "{deg}°");
+            let want = total(&c0.irradiance) * f64::to_radians(deg).cos();
+            assert!((total(&c.irradiance) - want).abs() <= 1e-12 * want, "{deg}°");
+        }
+        // A Lambertian emitter seen off-axis: same radiance, irradiance × cos φ.
+        let f = flat(Measure::Flux, 1.0);
+        let lam = |deg: f64| {
+            let g = Geometry::Flux {
+                emission: Emission::Lambertian,
+                distance: parse_length("1 m").unwrap(),
+                emission_angle: parse_angle(&format!("{deg} deg")).unwrap(),
+                incidence: Angle::from_si(0.0),
+                size: Some(parse_length("10 mm").unwrap()),
+            };
+            corneal(&f, &g).unwrap()
+        };
+        let (a, b) = (lam(0.0), lam(60.0));
+        let (la, lb) = (total(a.radiance.as_ref().unwrap()), total(b.radiance.as_ref().unwrap()));
+        assert!((la - lb).abs() <= 1e-12 * la);
+        assert!((total(&b.irradiance) - 0.5 * total(&a.irradiance)).abs() <= 1e-12 * total(&a.irradiance));
     }
 }

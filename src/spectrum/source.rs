@@ -51,11 +51,16 @@ pub const BUILTIN_LAMPS: &[BuiltinLamp] = &[
     lamp!("halogen-3000k", "halogen-3000k.toml"),
 ];
 
-/// Default grid for generated spectra: 200–3000 nm at 1 nm for a blackbody (the span of the
-/// photobiological hazard bands), 300–830 nm at 1 nm otherwise (CIE illuminant A's defined
-/// range).
-fn default_grid(blackbody: bool) -> Grid {
-    if blackbody { Grid::nm(200.0, 3000.0, 1.0) } else { Grid::nm(300.0, 830.0, 1.0) }
+/// Default grid for generated spectra (blackbodies and LED models): 180–3000 nm at 1 nm, the
+/// span of the photobiological hazard bands, so a generated source gets every verdict.
+const MODEL_GRID: (f64, f64, f64) = (180.0, 3000.0, 1.0);
+
+/// CIE illuminant A's default grid: 300–830 nm at 1 nm, the range CIE defines it over.
+const CIE_A_GRID: (f64, f64, f64) = (300.0, 830.0, 1.0);
+
+fn default_grid(model: bool) -> Grid {
+    let (a, b, s) = if model { MODEL_GRID } else { CIE_A_GRID };
+    Grid::nm(a, b, s)
 }
 
 /// Resolves a source name to a spectrum. `grid`, if given, replaces a generator's default
@@ -89,7 +94,7 @@ pub fn resolve(spec: &str, grid: Option<Grid>) -> Result<Spectrum> {
         })?;
         let peak = parse_length(peak).map_err(|e| e.context(format!("source '{spec}' peak")))?;
         let width = parse_length(width).map_err(|e| e.context(format!("source '{spec}' width")))?;
-        return ohno_led(peak, width, grid.unwrap_or(default_grid(false)));
+        return ohno_led(peak, width, grid.unwrap_or(default_grid(true)));
     }
     let path = Path::new(spec);
     if path.is_file() {
@@ -171,12 +176,8 @@ pub fn parse_lamp(text: &str, origin: &str, dir: Option<&Path>, grid: Option<Gri
     let raw: RawLamp =
         toml::from_str(text).map_err(|e| Error::data(crate::base::toml_errors::describe(&e, origin)))?;
     let at = |key: &str| format!("{origin}: key '{key}'");
-    let grid_of = |from: &Option<String>,
-                   to: &Option<String>,
-                   step: &Option<String>,
-                   blackbody: bool|
-     -> Result<Grid> {
-        let d = grid.unwrap_or(default_grid(blackbody));
+    let grid_of = |from: &Option<String>, to: &Option<String>, step: &Option<String>| -> Result<Grid> {
+        let d = grid.unwrap_or(default_grid(true));
         Ok(Grid {
             from: from
                 .as_deref()
@@ -213,12 +214,12 @@ pub fn parse_lamp(text: &str, origin: &str, dir: Option<&Path>, grid: Option<Gri
                     })
                 })
                 .collect::<Result<Vec<_>>>()?;
-            multi_band_led(&bands, grid_of(from, to, step, false)?).map_err(|e| e.context(at("model")))?
+            multi_band_led(&bands, grid_of(from, to, step)?).map_err(|e| e.context(at("model")))?
         }
         (Some(RawModel::Blackbody { temperature, from, to, step }), None) => {
             let t = parse_temperature(temperature).map_err(|e| e.context(at("model.temperature")))?;
             // A lamp file describes a shape: the blackbody is used as a relative spectrum.
-            let s = planck_radiance(t, grid_of(from, to, step, true)?, None)?;
+            let s = planck_radiance(t, grid_of(from, to, step)?, None)?;
             s.scaled_as(1.0 / s.curve().values().iter().copied().fold(0.0, f64::max), Measure::Relative)?
         }
         (None, Some(table)) => {

@@ -72,7 +72,7 @@ fn blackbody_luminance_scaling_gives_radiance_quantities() {
     let v = json(&["spectrum", "blackbody:2856K", "--luminance", "100 cd/m2"]);
     assert_eq!(v["photopic"]["unit"], "cd/m²");
     assert!((v["photopic"]["value"].as_f64().unwrap() - 100.0).abs() < 1e-9);
-    assert_eq!(v["source"]["range_nm"], serde_json::json!([200.0, 3000.0]));
+    assert_eq!(v["source"]["range_nm"], serde_json::json!([180.0, 3000.0]));
     assert_eq!(v["alpha_opic"][0]["edi"]["unit"], "cd/m²");
 }
 

@@ -14,14 +14,14 @@ pub fn list() -> String {
     let _ = writeln!(o, "Generators");
     let _ = writeln!(
         o,
-        "  blackbody:TEMPERATURE   Planck's law (spectral radiance), default 200–3000 nm at 1 nm"
+        "  blackbody:TEMPERATURE   Planck's law (spectral radiance), default 180–3000 nm at 1 nm"
     );
     let _ = writeln!(
         o,
         "  cie:A                   CIE illuminant A from its formula (CIE 15:2004), 300–830 nm at 1 nm"
     );
     let _ = writeln!(o, "  cie:D65                 CIE illuminant D65, CIE table 300–830 nm at 5 nm");
-    let _ = writeln!(o, "  led:PEAK:WIDTH          one LED band, Ohno (2005) model, 300–830 nm at 1 nm");
+    let _ = writeln!(o, "  led:PEAK:WIDTH          one LED band, Ohno (2005) model, 180–3000 nm at 1 nm");
     let _ = writeln!(o, "\nBuilt-in lamps (sources/, invented demo data)");
     for l in BUILTIN_LAMPS {
         let _ = writeln!(o, "  {:<22}  sources/{}", l.name, l.file);
