@@ -92,6 +92,10 @@ pub struct PlaceArgs {
     /// A filter in the path: a transmittance ("0.65") or a transmittance file; repeatable
     #[arg(long, value_name = "FILTER")]
     pub filter: Vec<String>,
+    /// State that the source emits nothing outside its measured range ("measured") or outside
+    /// a range ("300-1100 nm"); recorded as an assumption in the report, never the default
+    #[arg(long, value_name = "RANGE")]
+    emission_range: Option<String>,
 }
 
 impl PlaceArgs {
@@ -107,6 +111,7 @@ impl PlaceArgs {
             emission: self.emission.clone(),
             emission_angle: self.emission_angle.clone(),
             incidence: self.incidence.clone(),
+            emission_range: self.emission_range.clone(),
             ..SourceSpec::default()
         };
         if let Some((key, value)) = scale.given() {

@@ -1,5 +1,6 @@
 //! `retidose limits`: list the limit sets, show one, or check a source against one.
 
+use crate::cli::Output;
 use anyhow::{Context, Result};
 use clap::{Args, Subcommand};
 use retidose::base::units;
@@ -71,16 +72,18 @@ pub struct CheckArgs {
     format: Format,
 }
 
-/// Runs `retidose limits list|show|check`.
-pub fn run(command: LimitsCommand) -> Result<String> {
-    match command {
-        LimitsCommand::List => Ok(terminal::limits::sets()),
+/// Runs `retidose limits list|show|check`; a check that finds a limit exceeded (on the whole
+/// band, or on the measured band alone) exits with 1.
+pub fn run(command: LimitsCommand) -> Result<Output> {
+    let text = match command {
+        LimitsCommand::List => terminal::limits::sets(),
         LimitsCommand::Show { set, set_file } => {
             let set = load_set(set.as_deref().unwrap_or(""), set_file.as_deref())?;
-            Ok(terminal::limits::set(&set))
+            terminal::limits::set(&set)
         }
-        LimitsCommand::Check(args) => check(*args),
-    }
+        LimitsCommand::Check(args) => return check(*args),
+    };
+    Ok(Output { text, status: 0 })
 }
 
 /// A built-in limit set by id, or a user limit-set file.
@@ -96,7 +99,7 @@ fn load_set(id: &str, file: Option<&str>) -> Result<LimitSet> {
 }
 
 /// `retidose limits check`: places the source, then evaluates every hazard of the set.
-fn check(a: CheckArgs) -> Result<String> {
+fn check(a: CheckArgs) -> Result<Output> {
     let set = load_set(&a.set, a.set_file.as_deref())?;
     let duration = units::parse_time(&a.duration).context("--for")?;
     let spec = a.place.source_spec(&a.source, &a.scale);
@@ -112,8 +115,10 @@ fn check(a: CheckArgs) -> Result<String> {
         classify: a.classify.then_some(a.general_lighting),
         only: &a.hazard,
     })?;
-    Ok(match a.format {
+    let exceeded = report.hazards.iter().any(|h| h.verdict == retidose::limits::Verdict::Exceeds);
+    let text = match a.format {
         Format::Table => terminal::limits::check(&report),
         Format::Json => json::limits::check(&report),
-    })
+    };
+    Ok(Output { text, status: u8::from(exceeded) })
 }

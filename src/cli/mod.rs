@@ -42,8 +42,9 @@ Examples:
   retidose retina warm-white-led --illuminance \"350 lx\" --full-field --species mouse --pupil dark
   retidose sources
 
-Exit status: 0 on success, 2 on an error (bad input, unreadable file); assess also exits
-with 1 when a limit is exceeded or a guidance flag is raised.
+Exit status: 0 on success, 2 on an error (bad input, unreadable file); assess and limits
+check exit with 1 when a limit is exceeded (on the measured band alone counts), assess also
+when a guidance flag is raised.
 retidose informs; it does not replace the standards, a qualified optical-radiation
 assessment, veterinary advice or local regulations.";
 
@@ -91,7 +92,7 @@ pub fn run(cli: Cli) -> Result<Output> {
         Command::Spectrum(args) => spectrum::run(*args),
         Command::Retina(args) => retina::run(*args),
         Command::Bleach(args) => bleach::run(*args),
-        Command::Limits(command) => limits::run(command),
+        Command::Limits(command) => return limits::run(command),
         Command::Sources => Ok(sources::run()),
     }?;
     Ok(Output { text, status: 0 })

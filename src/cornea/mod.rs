@@ -25,6 +25,8 @@ pub struct PlacedSource {
     /// The distance from the source to the eye, when given (lets a measured irradiance be
     /// turned into an intensity for risk groups).
     pub distance: Option<Length>,
+    /// An assumption the user stated about the source (an emission range), for every report.
+    pub assumption: Option<String>,
 }
 
 /// What one source delivers at the cornea after every filter in `filters` (applied in order;
@@ -35,6 +37,10 @@ pub struct PlacedSource {
 /// filter does not overlap the spectrum.
 pub fn at_cornea(source: &PlacedSource, filters: &[Filter]) -> Result<Corneal> {
     let mut c = corneal(&source.spectrum, &source.geometry)?;
+    c.notes.extend(source.spectrum.sampling_notes());
+    if let Some(a) = &source.assumption {
+        c.notes.push(a.clone());
+    }
     for f in filters {
         c.irradiance = f.apply(&c.irradiance)?;
         c.radiance = c.radiance.map(|l| f.apply(&l)).transpose()?;
@@ -57,6 +63,7 @@ mod tests {
             geometry: Geometry::AtEye { field: Some(Field::FullField) },
             size: None,
             distance: None,
+            assumption: None,
         };
         let f = [Filter::flat(0.5, "a").unwrap(), Filter::flat(0.2, "b").unwrap()];
         let c = at_cornea(&p, &f).unwrap();

@@ -160,6 +160,7 @@ pub fn per_lux(
         geometry: Geometry::AtEye { field: Some(Field::FullField) },
         size: None,
         distance: None,
+        assumption: None,
     };
     let scenario =
         RetinaScenario { sources: vec![source], filters: vec![wall.clone()], pupil, ..view.clone() };

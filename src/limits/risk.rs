@@ -107,6 +107,7 @@ impl MovableSource {
             geometry: self.geometry_at(d)?,
             size: self.size,
             distance: Some(d),
+            assumption: None,
         };
         crate::cornea::at_cornea(&placed, &self.filters)
     }

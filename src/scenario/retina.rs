@@ -76,6 +76,10 @@ pub struct SourceSpec {
     pub emission_angle: Option<String>,
     /// Angle of incidence at the eye.
     pub incidence: Option<String>,
+    /// The user's statement that the source emits nothing outside its measured range
+    /// (`"measured"`, taken out to 180–3000 nm) or outside a range (`"300–1100 nm"`). Never
+    /// assumed; recorded in every report that uses it.
+    pub emission_range: Option<String>,
 }
 
 /// The subject as written.
@@ -138,6 +142,34 @@ fn opt<T>(v: &Option<String>, key: &str, parse: impl Fn(&str) -> Result<T>) -> R
     v.as_deref().map(|t| parse(t).map_err(|e| e.key(key))).transpose()
 }
 
+/// The widest span of the built-in hazard bands, nm: what `emission_range = "measured"` extends to.
+pub const HAZARD_SPAN_NM: (f64, f64) = (180.0, 3000.0);
+
+/// Parses an emission range: `measured` (the hazard span), or `A–B nm` (also `A-B nm`, `A to B nm`).
+fn parse_emission_range(text: &str) -> Result<(f64, f64)> {
+    let t = text.trim();
+    if t.eq_ignore_ascii_case("measured") {
+        return Ok(HAZARD_SPAN_NM);
+    }
+    let bad = || {
+        Error::input(format!(
+            "'{text}' is not an emission range; write \"measured\" (nothing outside the measured range) or a range \
+             such as \"300–1100 nm\""
+        ))
+    };
+    let body = t.strip_suffix("nm").ok_or_else(bad)?.trim();
+    let (a, b) = body
+        .split_once('–')
+        .or_else(|| body.split_once(" to "))
+        .or_else(|| body.split_once('-'))
+        .ok_or_else(bad)?;
+    let (a, b): (f64, f64) = (a.trim().parse().map_err(|_| bad())?, b.trim().parse().map_err(|_| bad())?);
+    if !(a > 0.0 && a < b && b <= 1e6) {
+        return Err(bad());
+    }
+    Ok((a, b))
+}
+
 /// An age with its unit, within 0–120 years (the range the human media and pupil formulas
 /// take; an input bound, common practice, no source).
 fn parse_age(text: &str) -> Result<crate::base::quantity::Time> {
@@ -187,7 +219,21 @@ pub fn place(spec: &SourceSpec, base: Option<&Path>) -> Result<PlacedSource> {
     let size = opt(&spec.size, "size", parse_length)?;
     let geometry = geometry(spec, &spectrum, size)?;
     let distance = opt(&spec.distance, "distance", parse_length)?;
-    Ok(PlacedSource { spectrum, geometry, size, distance })
+    let (spectrum, assumption) = match &spec.emission_range {
+        None => (spectrum, None),
+        Some(text) => {
+            let (lo, hi) = parse_emission_range(text).map_err(|e| e.key("emission_range"))?;
+            let (a, b) = spectrum.range_nm();
+            let s = spectrum.assumed_dark_outside(lo, hi).map_err(|e| e.key("emission_range"))?;
+            let note = format!(
+                "assumption stated by the user: '{}' emits nothing outside its measured {a}–{b} nm (taken as zero \
+                 out to {lo}–{hi} nm)",
+                spec.id.as_deref().unwrap_or(&spec.spectrum)
+            );
+            (s, Some(note))
+        }
+    };
+    Ok(PlacedSource { spectrum, geometry, size, distance, assumption })
 }
 
 /// The source's spectrum, resolved and scaled to its one measured value.

@@ -230,6 +230,14 @@ impl Coverage {
     }
 }
 
+/// A peak needs at least this many samples at or above half its height to be integrated
+/// reliably by the trapezoid rule (common practice, no source).
+pub const MIN_SAMPLES_PER_PEAK: usize = 3;
+
+/// Spacing above which a spectrum is called coarse for hazard weightings, nm (the 5 nm of
+/// the CIE and IEC tables; common practice, no source).
+pub const COARSE_STEP_NM: f64 = 5.0;
+
 /// A sampled spectrum with its declared measure and basis.
 #[derive(Debug, Clone, PartialEq, serde::Serialize)]
 pub struct Spectrum {
@@ -348,6 +356,91 @@ impl Spectrum {
         }
         Ok(Spectrum { curve: self.curve.scaled(factor), measure, ..self.clone() })
     }
+    /// The widest spacing between neighbouring samples, nm.
+    pub fn max_step_nm(&self) -> f64 {
+        self.curve().wavelength_nm().windows(2).map(|w| w[1] - w[0]).fold(0.0, f64::max)
+    }
+
+    /// Peaks too narrow for the sampling: local maxima (above 5 % of the spectrum's maximum)
+    /// with fewer than [`MIN_SAMPLES_PER_PEAK`] samples at or above half their height. Returns
+    /// (peak wavelength nm, samples above half height). A line between two samples cannot be
+    /// seen at all; this catches the peaks that are seen but under-sampled.
+    pub fn undersampled_peaks(&self) -> Vec<(f64, usize)> {
+        let (w, v) = (self.curve().wavelength_nm(), self.curve().values());
+        let top = v.iter().copied().fold(0.0, f64::max);
+        let mut out = Vec::new();
+        for i in 0..v.len() {
+            let left = if i > 0 { v[i - 1] } else { 0.0 };
+            let right = v.get(i + 1).copied().unwrap_or(0.0);
+            if !(v[i] > 0.05 * top && v[i] >= left && v[i] > right) {
+                continue;
+            }
+            let half = 0.5 * v[i];
+            let lo = v[..i].iter().rev().take_while(|x| **x >= half).count();
+            let hi = v[i + 1..].iter().take_while(|x| **x >= half).count();
+            let n = lo + hi + 1;
+            if n < MIN_SAMPLES_PER_PEAK {
+                out.push((w[i], n));
+            }
+        }
+        out
+    }
+
+    /// Warnings about this spectrum's sampling, for reports: peaks narrower than a few samples,
+    /// and a spacing coarser than [`COARSE_STEP_NM`] (too coarse for hazard weightings such as
+    /// B(λ), whose features are a few nm wide).
+    pub fn sampling_notes(&self) -> Vec<String> {
+        let mut notes = Vec::new();
+        let step = self.max_step_nm();
+        let peaks = self.undersampled_peaks();
+        if !peaks.is_empty() {
+            notes.push(format!(
+                "'{}' is sampled too coarsely for its own peaks (fewer than {MIN_SAMPLES_PER_PEAK} samples above half \
+                 height at {} nm; widest spacing {step} nm): integrals and verdicts can be far off; measure or tabulate \
+                 at a finer spacing",
+                self.label(),
+                peaks.iter().map(|p| format!("{}", p.0)).collect::<Vec<_>>().join(", ")
+            ));
+        }
+        if step > COARSE_STEP_NM {
+            notes.push(format!(
+                "'{}' has samples up to {step} nm apart, coarser than {COARSE_STEP_NM} nm: weighted hazard quantities can \
+                 be off by several percent; a verdict within 20 % of its limit is marked",
+                self.label()
+            ));
+        }
+        notes
+    }
+
+    /// The spectrum taken as zero outside its measured range, out to `lo_nm`–`hi_nm`: the
+    /// user's statement that the source emits nothing there. Zero nodes are added just outside
+    /// the measured ends (10⁻⁶ of the wavelength away) and at the new ends, so integrals inside the
+    /// measured range do not change.
+    ///
+    /// # Errors
+    /// [`crate::ErrorKind::InvalidInput`] when the declared range does not contain the measured one.
+    pub fn assumed_dark_outside(&self, lo_nm: f64, hi_nm: f64) -> Result<Spectrum> {
+        let (a, b) = self.range_nm();
+        if !(lo_nm > 0.0 && lo_nm <= a && hi_nm >= b && hi_nm.is_finite()) {
+            return Err(Error::input(format!(
+                "the declared emission range {lo_nm}–{hi_nm} nm must contain the measured range {a}–{b} nm"
+            )));
+        }
+        let (mut w, mut v) = (Vec::new(), Vec::new());
+        if lo_nm < a {
+            let edge = a * (1.0 - 1e-6);
+            w.extend([lo_nm.min(edge * (1.0 - 1e-9)), edge]);
+            v.extend([0.0, 0.0]);
+        }
+        w.extend_from_slice(self.curve().wavelength_nm());
+        v.extend_from_slice(self.curve().values());
+        if hi_nm > b {
+            let edge = b * (1.0 + 1e-6);
+            w.extend([edge, hi_nm.max(edge * (1.0 + 1e-9))]);
+            v.extend([0.0, 0.0]);
+        }
+        Ok(self.with_curve(Curve::new(w, v)?))
+    }
 
     /// The same measure, basis, label and provenance with other sampled values (already
     /// checked to be ≥ 0 by the caller's construction).
@@ -423,6 +516,36 @@ impl Spectrum {
 #[cfg(test)]
 mod tests {
     use super::*;
+
+    #[test]
+    fn coarse_sampling_of_a_narrow_peak_is_flagged() {
+        use crate::spectrum::generate::{Grid, ohno_led};
+        let nm = crate::base::quantity::nm;
+        let fine = ohno_led(nm(450.0), nm(5.0), Grid::nm(380.0, 780.0, 1.0)).unwrap();
+        assert!(fine.undersampled_peaks().is_empty());
+        assert!(fine.sampling_notes().is_empty());
+        let coarse = ohno_led(nm(450.0), nm(5.0), Grid::nm(380.0, 780.0, 10.0)).unwrap();
+        assert_eq!(coarse.undersampled_peaks(), vec![(450.0, 1)]);
+        let notes = coarse.sampling_notes();
+        assert!(notes.iter().any(|n| n.contains("too coarsely for its own peaks")), "{notes:?}");
+        assert!(notes.iter().any(|n| n.contains("coarser than 5 nm")), "{notes:?}");
+    }
+
+    #[test]
+    fn a_declared_emission_range_adds_zeros_and_changes_no_integral_inside() {
+        let s = Spectrum::new(
+            Curve::new(vec![380.0, 500.0, 780.0], vec![1.0, 2.0, 1.0]).unwrap(),
+            Measure::Irradiance,
+            Basis::Energy,
+            "x",
+        )
+        .unwrap();
+        let d = s.assumed_dark_outside(180.0, 3000.0).unwrap();
+        assert_eq!(d.range_nm(), (180.0, 3000.0));
+        let (a, b) = (s.curve().integral(), d.curve().integral());
+        assert!((a - b).abs() < 1e-5 * a, "{a} {b}");
+        assert!(s.assumed_dark_outside(400.0, 3000.0).is_err());
+    }
 
     fn flat(measure: Measure, basis: Basis) -> Spectrum {
         let w: Vec<f64> = (400..=700).map(f64::from).collect();

@@ -269,6 +269,7 @@ fn scenario(species: Species, lux: &str, filters: Vec<Filter>) -> RetinaScenario
             geometry: Geometry::AtEye { field: Some(Field::FullField) },
             size: None,
             distance: None,
+            assumption: None,
         }],
         filters,
         pupil: PupilRule::DarkAdapted,
