@@ -201,6 +201,13 @@ impl Coverage {
         self.uncovered_weight_share == 0.0
     }
 
+    /// True when the missing part can change a reported figure: at least
+    /// [`COVERAGE_MATTERS_SHARE`] of the weighting lies where the spectrum is unmeasured.
+    /// Reports mention coverage only then.
+    pub fn matters(&self) -> bool {
+        self.uncovered_weight_share >= COVERAGE_MATTERS_SHARE
+    }
+
     /// Coverage of `weighting` (defined over its own range) by a spectrum sampled over `spectrum_nm`.
     pub fn of_weighting(spectrum_nm: (f64, f64), weighting: &Curve) -> Coverage {
         let needed = weighting.range_nm();
@@ -229,6 +236,11 @@ impl Coverage {
         Coverage { needed_nm: band_nm, covered_nm: Some((lo, hi)), uncovered_weight_share: share }
     }
 }
+
+/// Below this share of a weighting outside the measured range (0.01 %), the missing part
+/// cannot change a figure printed to four significant digits, so reports do not mention it
+/// (verdicts still treat any uncovered share as partial).
+pub const COVERAGE_MATTERS_SHARE: f64 = 1e-4;
 
 /// A peak needs at least this many samples at or above half its height to be integrated
 /// reliably by the trapezoid rule (common practice, no source).

@@ -76,7 +76,8 @@ pub fn report(spectrum: &Spectrum, scaled_to: Option<ScaleTarget>) -> SpectrumRe
     let photopic = photopic(&energy);
     let scotopic = scotopic(&energy);
     let alpha = alpha_opic(&energy);
-    let notes = notes(spectrum, &photopic, &scotopic, &alpha, &bands);
+    let scaled_photopic = scaled_to.as_ref().is_some_and(ScaleTarget::is_photopic);
+    let notes = notes(spectrum, scaled_photopic, &photopic, &scotopic, &alpha, &bands);
     SpectrumReport {
         label: spectrum.label().to_string(),
         provenance: spectrum.provenance().map(str::to_string),
@@ -114,6 +115,7 @@ fn band_shares(energy: &Spectrum) -> Vec<BandShare> {
 /// function and band, what the band shares are of, and the reconstructed melanopic function.
 fn notes(
     spectrum: &Spectrum,
+    scaled_photopic: bool,
     photopic: &PhotometricResult,
     scotopic: &PhotometricResult,
     alpha: &[AlphaOpicValue],
@@ -129,7 +131,7 @@ fn notes(
         );
     }
     let (lo, hi) = spectrum.range_nm();
-    coverage_notes(&mut notes, (lo, hi), photopic, scotopic, alpha, bands);
+    coverage_notes(&mut notes, (lo, hi), scaled_photopic, photopic, scotopic, alpha, bands);
     notes.push(format!(
         "band shares are of the power within the sampled {lo}–{hi} nm; power the lamp emits outside that range is not included"
     ));
@@ -144,13 +146,17 @@ fn notes(
 fn coverage_notes(
     notes: &mut Vec<String>,
     (lo, hi): (f64, f64),
+    scaled_photopic: bool,
     photopic: &PhotometricResult,
     scotopic: &PhotometricResult,
     alpha: &[AlphaOpicValue],
     bands: &[BandShare],
 ) {
     for (what, cov) in [("photopic V(λ)", photopic.coverage), ("scotopic V′(λ)", scotopic.coverage)] {
-        if !cov.is_complete() {
+        if what.starts_with("photopic") && scaled_photopic {
+            continue;
+        }
+        if cov.matters() {
             notes.push(format!(
                 "{what} needs {}–{} nm; the spectrum covers {lo}–{hi} nm, so {:.3} % of the function's weight is missing \
                  and the value is a lower bound",
@@ -161,7 +167,7 @@ fn coverage_notes(
         }
     }
     for a in alpha {
-        if !a.coverage.is_complete() {
+        if a.coverage.matters() {
             notes.push(format!(
                 "{} needs {}–{} nm; the spectrum covers {lo}–{hi} nm ({:.3} % of the weight missing): a lower bound",
                 a.name,
@@ -172,7 +178,7 @@ fn coverage_notes(
         }
     }
     for b in bands {
-        if !b.coverage.is_complete() && b.name != "ir" {
+        if b.coverage.matters() && b.name != "ir" {
             notes.push(format!(
                 "band {} ({}–{} nm) is only partly covered by the spectrum ({lo}–{hi} nm): its share counts the covered part only",
                 b.name, b.band_nm.0, b.band_nm.1

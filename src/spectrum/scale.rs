@@ -39,6 +39,18 @@ pub enum ScaleTarget {
 }
 
 impl ScaleTarget {
+    /// True when the target is a photopic quantity (lx, cd/m², cd, lm): the spectrum's V(λ)
+    /// total then is the reading itself, whatever the spectrum's coverage.
+    pub fn is_photopic(&self) -> bool {
+        matches!(
+            self,
+            ScaleTarget::Illuminance(_)
+                | ScaleTarget::Luminance(_)
+                | ScaleTarget::LuminousIntensity(_)
+                | ScaleTarget::LuminousFlux(_)
+        )
+    }
+
     /// The measure the scaled spectrum will have.
     pub fn measure(&self) -> Measure {
         match self {

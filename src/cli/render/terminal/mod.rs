@@ -44,13 +44,11 @@ fn table(header: &[&str], rows: Vec<Vec<String>>) -> String {
 /// A remark after a value whose weighting the spectrum covers only in part, or not at all.
 fn coverage_text(c: &Coverage) -> String {
     match c.covered_nm {
-        _ if c.is_complete() => String::new(),
+        _ if !c.matters() => String::new(),
         None => format!("  [not covered: needs {}–{} nm]", c.needed_nm.0, c.needed_nm.1),
         Some((a, b)) => format!(
-            "  [partial: covers {a}–{b} of {}–{} nm, {:.3} % of weight missing]",
-            c.needed_nm.0,
-            c.needed_nm.1,
-            100.0 * c.uncovered_weight_share
+            "  [lower bound: {} % of the weighting lies outside the measured {a}–{b} nm]",
+            num(100.0 * c.uncovered_weight_share)
         ),
     }
 }

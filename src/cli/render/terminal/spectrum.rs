@@ -54,7 +54,16 @@ fn totals(o: &mut String, r: &SpectrumReport) {
             let _ = writeln!(o, "  radiant, photon             — (relative spectrum)");
         }
     }
-    let _ = writeln!(o, "  photopic  (V, 683.002 lm/W) {}", photometric_text(&r.photopic, false));
+    let photopic = if r.scaled_to.as_ref().is_some_and(|t| t.is_photopic()) {
+        // The reading the spectrum was scaled to: exact by construction, whatever the coverage.
+        r.photopic.value.map_or("—".into(), |v| {
+            let (x, u) = v.si_with_unit();
+            format!("{} {u} (the value scaled to)", num(x))
+        })
+    } else {
+        photometric_text(&r.photopic, false)
+    };
+    let _ = writeln!(o, "  photopic  (V, 683.002 lm/W) {photopic}");
     let _ = writeln!(o, "  scotopic (V′, 1700.06 lm/W) {}", photometric_text(&r.scotopic, true));
     let _ = writeln!(o, "  S/P ratio                   {}", r.sp_ratio.map_or("—".into(), num));
     let _ = writeln!(
