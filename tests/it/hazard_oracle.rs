@@ -11,12 +11,21 @@
 //! run the engine (`assess_limits` with the built-in set `iec62471-2006`).
 //!
 //! Agreement within 0.5 % is required on the weighted quantity, the hazard ratio and t_max
-//! (and, checked alongside, the averaged quantity, the field of view and C_α). Where t_max is
-//! ill-conditioned (a limit that is nearly flat in t, or a jump of the limit), the engine's t_max
-//! is accepted when it lies between the oracle's t_max for the weighted quantity ±0.5 %; those
-//! cases are counted. Hazards the engine does not assess (band not covered, no radiance or
-//! subtense) or finds not applicable are skipped and counted, after checking that the oracle
-//! says the same. Run with `--nocapture` to see the counts and the largest deviations.
+//! (and, checked alongside, the averaged quantity, the field of view and C_α). Two allowances,
+//! both counted and printed:
+//! - where the spectrum's sampling does not fix the integral to 0.5 % (a steep integrand, in
+//!   practice far tails at 10⁻³⁵–10⁻²³⁰ of the limit and narrow LEDs on 2 nm steps), the engine's
+//!   value may also lie between the oracle's fine integral and the standard's own sum
+//!   Σ X_λ w(λ) Δλ at the data's samples (ICNIRP 2013 errata Eq. 10 form), ±0.5 %;
+//! - where t_max is ill-conditioned (a limit nearly flat in t, a jump of the limit, or t_max
+//!   moving faster than the quantity, as (50 000/(C_α L_R))⁴ does), the engine's t_max may lie
+//!   between the oracle's t_max at the two ends of that window.
+//!
+//! A band the spectrum covers only partly gives a lower bound on the ratio (the engine's rule:
+//! at least 1 is an exceedance, below 1 "not assessed"); the oracle checks the verdict and the
+//! lower bound. Hazards that do not apply, or lack the radiance or subtense they need, are
+//! skipped and counted after checking that the oracle says the same. Run with `--nocapture` to
+//! see the counts and the largest deviations; `HAZARD_ORACLE_SEED` draws other random cases.
 
 use std::f64::consts::PI;
 use std::sync::LazyLock;
@@ -29,6 +38,7 @@ use retidose::cornea::PlacedSource;
 use retidose::cornea::geometry::{Emission, Field, Geometry};
 use retidose::limits::report::{LimitsRequest, assess_limits};
 use retidose::limits::{HazardResult, TMax, Verdict, find_set};
+use retidose::scenario::retina::{SourceSpec, place};
 use retidose::spectrum::generate::{Grid, LedBand, multi_band_led, ohno_led};
 use retidose::spectrum::scale::{ScaleTarget, scale_to};
 use retidose::spectrum::source::resolve;
@@ -119,7 +129,7 @@ const R_TABLE: [(f64, f64); 24] = [
 /// table; rows marked [M] there — 308, 316–319, 322, 323, 328, 333 nm — are from memory), plus the
 /// Directive 2006/25/EC Annex I Table 1.2 spot values at 228, 276, 324 and 372 nm (Irish
 /// transposition, limits.md §4.2 [C]).
-const S_ANCHORS: [(f64, f64); 59] = [
+const S_ANCHORS: [(f64, f64); 58] = [
     (200.0, 0.030),
     (205.0, 0.051),
     (210.0, 0.075),
@@ -274,6 +284,9 @@ const STEP_NM: f64 = 0.1;
 const TOL: f64 = 0.005;
 /// Values below this are zero for comparison purposes (test's choice: far below any hazard).
 const NEGLIGIBLE: f64 = 1e-250;
+/// Deviations are also reported for hazard ratios of at least this (test's choice: exposures
+/// within three decades of the limit, where a verdict or t_max could depend on them).
+const RELEVANT_RATIO: f64 = 1e-3;
 
 // =====================================================================================
 // Oracle: weighting functions.
@@ -297,7 +310,8 @@ fn b_weight(x: f64) -> f64 {
         table_lerp(&B_TABLE, x)
     } else if x < 500.0 {
         let b500 = 10f64.powf((450.0 - 500.0) / 50.0);
-        0.16 + (b500 - 0.16) * (x - 495.0) / 5.0
+        let b495 = B_TABLE[B_TABLE.len() - 1].1;
+        b495 + (b500 - b495) * (x - 495.0) / 5.0
     } else if x <= 600.0 {
         10f64.powf((450.0 - x) / 50.0)
     } else {
@@ -312,7 +326,8 @@ fn r_weight(x: f64) -> f64 {
     if x <= 495.0 {
         table_lerp(&R_TABLE, x)
     } else if x < 500.0 {
-        1.6 + (1.0 - 1.6) * (x - 495.0) / 5.0
+        let r495 = R_TABLE[R_TABLE.len() - 1].1;
+        r495 + (1.0 - r495) * (x - 495.0) / 5.0
     } else if x <= 700.0 {
         1.0
     } else if x <= 1050.0 {
@@ -374,8 +389,14 @@ impl Sampled {
         Sampled { nm: self.nm.clone(), v: self.v.iter().map(|v| v * k).collect() }
     }
 
-    fn covers(&self, band: (f64, f64)) -> bool {
-        self.nm[0] <= band.0 && self.nm[self.nm.len() - 1] >= band.1
+    fn range(&self) -> (f64, f64) {
+        (self.nm[0], self.nm[self.nm.len() - 1])
+    }
+
+    /// The part of `band` the spectrum covers (empty when lo ≥ hi), and whether it is all of it.
+    fn covered(&self, band: (f64, f64)) -> ((f64, f64), bool) {
+        let (a, b) = self.range();
+        ((band.0.max(a), band.1.min(b)), a <= band.0 && b >= band.1)
     }
 
     /// Linear interpolation at `x`, inside the range.
@@ -389,15 +410,33 @@ impl Sampled {
         y0 + (y1 - y0) * (x - x0) / (x1 - x0)
     }
 
-    /// ∫ X_λ w(λ) dλ over `band`: the spectrum interpolated onto a STEP_NM grid, trapezoid rule.
+    /// ∫ X_λ w(λ) dλ over `band` (inside the spectrum's range): the spectrum interpolated onto a
+    /// STEP_NM grid, trapezoid rule.
     fn integral(&self, band: (f64, f64), w: impl Fn(f64) -> f64) -> f64 {
-        let n = ((band.1 - band.0) / STEP_NM).round() as usize;
+        if band.0 >= band.1 {
+            return 0.0;
+        }
+        let n = ((band.1 - band.0) / STEP_NM).ceil().max(1.0) as usize;
         let f = |k: usize| {
             let x = if k == n { band.1 } else { band.0 + (band.1 - band.0) * k as f64 / n as f64 };
             self.at(x) * w(x)
         };
         let inner: f64 = (1..n).map(f).sum();
         (band.1 - band.0) / n as f64 * (inner + 0.5 * (f(0) + f(n)))
+    }
+
+    /// The standard's sum Σ X_λ w(λ) Δλ taken at the spectrum's own samples (ICNIRP 2013 errata
+    /// Eq. 10 form; trapezoid weights, band ends included). It differs from [`Sampled::integral`]
+    /// only where the data are too coarse for the integrand: the oracle uses the difference as
+    /// the uncertainty the data leave.
+    fn sample_sum(&self, band: (f64, f64), w: impl Fn(f64) -> f64) -> f64 {
+        if band.0 >= band.1 {
+            return 0.0;
+        }
+        let mut x = vec![band.0];
+        x.extend(self.nm.iter().copied().filter(|&n| n > band.0 && n < band.1));
+        x.push(band.1);
+        x.windows(2).map(|p| 0.5 * (p[1] - p[0]) * (self.at(p[0]) * w(p[0]) + self.at(p[1]) * w(p[1]))).sum()
     }
 }
 
@@ -420,12 +459,14 @@ fn disc_factor(alpha: f64) -> f64 {
     PI * (alpha / 2.0).sin().powi(2)
 }
 
-/// A small source of spectral intensity I (W sr⁻¹ nm⁻¹): E = I cos θ / d² (inverse-square and
-/// cosine laws); its apparent size D gives α = 2 atan(D/2d) and L = E / (π sin²(α/2)).
-fn small_source(i: &Sampled, d: f64, incidence: f64, size: Option<f64>) -> Seen {
-    let e = i.scaled(incidence.cos() / (d * d));
+/// A small source of on-axis spectral intensity I (W sr⁻¹ nm⁻¹) at distance d: the irradiance
+/// E = I·c/d² (inverse-square law; c the cosines of incidence, and of emission for a Lambertian
+/// emitter: Lambert's cosine law). Its apparent diameter D gives α = 2 atan(D/2d) and, radiance
+/// being intensity per projected area and the same in every direction, L = I / (π D²/4).
+fn small_source(i_axis: &Sampled, cosines: f64, d: f64, size: Option<f64>) -> Seen {
+    let e = i_axis.scaled(cosines / (d * d));
     let alpha = size.map(|s| 2.0 * (s / (2.0 * d)).atan());
-    let l = alpha.map(|a| e.scaled(1.0 / disc_factor(a)));
+    let l = size.map(|s| i_axis.scaled(1.0 / (PI * s * s / 4.0)));
     Seen { e, l, alpha, full_field: false }
 }
 
@@ -440,16 +481,21 @@ fn seen(p: &PlacedSource) -> Seen {
         }
         Geometry::Intensity { distance, incidence, size } => {
             assert_eq!(p.spectrum.measure(), Measure::Intensity);
-            small_source(&s, distance.si(), incidence.si(), size.map(|x| x.si()))
+            small_source(&s, incidence.si().cos(), distance.si(), size.map(|x| x.si()))
         }
         Geometry::Flux { emission, distance, emission_angle, incidence, size } => {
             assert_eq!(p.spectrum.measure(), Measure::Flux);
-            // Isotropic: I = Φ/(4π); Lambertian: I(θ) = (Φ/π) cos θ (radiometry of the emitters).
-            let k = match emission {
-                Emission::Isotropic => 1.0 / (4.0 * PI),
-                Emission::Lambertian => emission_angle.si().cos() / PI,
+            // Isotropic: I = Φ/(4π) every way; Lambertian: I(θ) = (Φ/π)·cos θ (radiometry).
+            let (k, emission_cos) = match emission {
+                Emission::Isotropic => (1.0 / (4.0 * PI), 1.0),
+                Emission::Lambertian => (1.0 / PI, emission_angle.si().cos()),
             };
-            small_source(&s.scaled(k), distance.si(), incidence.si(), size.map(|x| x.si()))
+            small_source(
+                &s.scaled(k),
+                emission_cos * incidence.si().cos(),
+                distance.si(),
+                size.map(|x| x.si()),
+            )
         }
         Geometry::AtEye { field } => {
             assert_eq!(p.spectrum.measure(), Measure::Irradiance);
@@ -494,23 +540,32 @@ impl Tmax {
 /// What the oracle expects of the engine for one hazard.
 #[derive(Debug)]
 enum Expect {
-    /// No verdict: the band is not covered, or the radiance or subtense is not known.
+    /// No verdict: the radiance or subtense is not known.
     NotAssessed(&'static str),
     /// The hazard does not apply (a small-source limit for a larger source or a full field).
     NotApplicable(&'static str),
-    /// Values to compare.
+    /// Values to compare (for a partly covered band: the covered part, a lower bound).
     Value(Oracle),
 }
 
 #[derive(Debug)]
 struct Oracle {
+    /// The weighted quantity over the (covered) band, fine grid.
     weighted: f64,
     averaged: f64,
     fov: Option<f64>,
     c_alpha: Option<f64>,
     ratio: f64,
+    /// The spectrum covers only part of the band.
+    partial: bool,
     t_max: Tmax,
-    /// t_max for the weighted quantity × (1 + TOL) and × (1 − TOL).
+    /// Range of engine/oracle factors accepted for the quantities linear in the weighted
+    /// quantity: 1 ± TOL, widened to the standard's sum at the data's own samples when the data
+    /// are too coarse for the integrand.
+    window: (f64, f64),
+    /// True when the window was widened (the data do not fix the integral to TOL).
+    under_resolved: bool,
+    /// t_max at the two ends of the window (t_max falls as the quantity grows).
     t_max_band: (Tmax, Tmax),
 }
 
@@ -591,37 +646,54 @@ fn oracle(id: &str, x: &Seen, t: f64) -> Expect {
     }
 }
 
-/// Fills an [`Oracle`] from the weighted quantity and the hazard's functions of it.
+/// A weighted quantity over a hazard's band: the fine integral over the covered part, the
+/// standard's sum at the data's samples, and whether the band is only partly covered.
+struct Weighted {
+    fine: f64,
+    samples: f64,
+    partial: bool,
+}
+
+fn weigh(s: &Sampled, band: (f64, f64), w: impl Fn(f64) -> f64 + Copy) -> Weighted {
+    let (part, complete) = s.covered(band);
+    Weighted { fine: s.integral(part, w), samples: s.sample_sum(part, w), partial: !complete }
+}
+
+/// Fills an [`Oracle`] from the weighted quantity and the hazard's functions of it: `at(q)`
+/// gives (averaged, ratio) at the exposure duration, `t_max(q)` the longest duration.
 fn value(
-    q: f64,
+    q: &Weighted,
     at: impl Fn(f64) -> (f64, f64),
     t_max: impl Fn(f64) -> Tmax,
     fov: Option<f64>,
     c_alpha: Option<f64>,
 ) -> Expect {
-    let (averaged, ratio) = at(q);
+    let (averaged, ratio) = at(q.fine);
+    let k = if q.fine > 0.0 { q.samples / q.fine } else { 1.0 };
+    let under_resolved = (k - 1.0).abs() > TOL / 2.0;
+    let window = ((1.0 - TOL) * k.min(1.0), (1.0 + TOL) * k.max(1.0));
     Expect::Value(Oracle {
-        weighted: q,
+        weighted: q.fine,
         averaged,
         fov,
         c_alpha,
         ratio,
-        t_max: t_max(q),
-        t_max_band: (t_max(q * (1.0 + TOL)), t_max(q * (1.0 - TOL))),
+        partial: q.partial,
+        t_max: t_max(q.fine),
+        window,
+        under_resolved,
+        t_max_band: (t_max(q.fine * window.1), t_max(q.fine * window.0)),
     })
 }
 
 fn oracle_blue(x: &Seen, t: f64) -> Expect {
     let Some(l) = &x.l else { return Expect::NotAssessed("no radiance") };
-    if !l.covers(BLUE_BAND) {
-        return Expect::NotAssessed("band not covered");
-    }
-    let q = l.integral(BLUE_BAND, b_weight);
+    let q = weigh(l, BLUE_BAND, b_weight);
     let (alpha, ff) = (x.alpha, x.full_field);
     let avg = move |q: f64, t: f64| q * blue_average_factor(alpha, ff, t);
     let breaks = [FOV_FIRST_UNTIL_S, FOV_SECOND_UNTIL_S, BLUE_DOSE_UNTIL_S];
     value(
-        q,
+        &q,
         |q| (avg(q, t), blue_ratio(avg(q, t), t)),
         |q| first_crossing(|s| blue_ratio(avg(q, s), s), 1e-12, &breaks, f64::INFINITY),
         Some(blue_fov(t)),
@@ -638,10 +710,7 @@ fn oracle_blue_small(x: &Seen, t: f64) -> Expect {
         Some(a) if a >= SMALL_SOURCE_BELOW_RAD => return Expect::NotApplicable("not a small source"),
         Some(_) => {}
     }
-    if !x.e.covers(BLUE_BAND) {
-        return Expect::NotAssessed("band not covered");
-    }
-    let q = x.e.integral(BLUE_BAND, b_weight);
+    let q = weigh(&x.e, BLUE_BAND, b_weight);
     let ratio = |q: f64| if t <= SMALL_DOSE_UNTIL_S { q * t / SMALL_DOSE_J_M2 } else { q / SMALL_RATE_W_M2 };
     // E_B·t = 100 J/m² at t = 100/E_B; if that is beyond 100 s then E_B < 1 W/m² and the rate
     // limit is never exceeded.
@@ -649,34 +718,28 @@ fn oracle_blue_small(x: &Seen, t: f64) -> Expect {
         let s = SMALL_DOSE_J_M2 / q;
         if s <= SMALL_DOSE_UNTIL_S { Tmax::Seconds(s) } else { Tmax::NotReached(f64::INFINITY) }
     };
-    value(q, |q| (q, ratio(q)), t_max, None, None)
+    value(&q, |q| (q, ratio(q)), t_max, None, None)
 }
 
 fn oracle_uva(x: &Seen, t: f64) -> Expect {
-    if !x.e.covers(UVA_BAND) {
-        return Expect::NotAssessed("band not covered");
-    }
     assert!(t <= UV_LIMITS_UNTIL_S);
-    let q = x.e.integral(UVA_BAND, unweighted);
+    let q = weigh(&x.e, UVA_BAND, unweighted);
     let ratio = |q: f64| if t <= UVA_DOSE_UNTIL_S { q * t / UVA_DOSE_J_M2 } else { q / UVA_RATE_W_M2 };
     let t_max = |q: f64| {
         let s = UVA_DOSE_J_M2 / q;
         if s <= UVA_DOSE_UNTIL_S { Tmax::Seconds(s) } else { Tmax::NotReached(UV_LIMITS_UNTIL_S) }
     };
-    value(q, |q| (q, ratio(q)), t_max, None, None)
+    value(&q, |q| (q, ratio(q)), t_max, None, None)
 }
 
 fn oracle_actinic(x: &Seen, t: f64) -> Expect {
-    if !x.e.covers(ACTINIC_BAND) {
-        return Expect::NotAssessed("band not covered");
-    }
     assert!(t <= UV_LIMITS_UNTIL_S);
-    let q = x.e.integral(ACTINIC_BAND, s_weight);
+    let q = weigh(&x.e, ACTINIC_BAND, s_weight);
     let t_max = |q: f64| {
         let s = ACTINIC_DOSE_J_M2 / q;
         if s <= UV_LIMITS_UNTIL_S { Tmax::Seconds(s) } else { Tmax::NotReached(UV_LIMITS_UNTIL_S) }
     };
-    value(q, |q| (q, q * t / ACTINIC_DOSE_J_M2), t_max, None, None)
+    value(&q, |q| (q, q * t / ACTINIC_DOSE_J_M2), t_max, None, None)
 }
 
 /// The retinal thermal limit, W m⁻² sr⁻¹, for C_α at t (cl. 4.3.5; the 10 s value beyond 10 s).
@@ -686,9 +749,6 @@ fn thermal_limit(c_alpha: f64, t: f64) -> f64 {
 
 fn oracle_thermal(x: &Seen, t: f64) -> Expect {
     let Some(l) = &x.l else { return Expect::NotAssessed("no radiance") };
-    if !l.covers(THERMAL_BAND) {
-        return Expect::NotAssessed("band not covered");
-    }
     assert!(t >= THERMAL_FROM_S);
     // C_α: α limited to [0.0017, 0.1] rad; a full field is larger than any α_max.
     let c = if x.full_field {
@@ -696,7 +756,7 @@ fn oracle_thermal(x: &Seen, t: f64) -> Expect {
     } else {
         x.alpha.expect("a radiance comes with a subtense").clamp(C_ALPHA_MIN_RAD, C_ALPHA_MAX_RAD)
     };
-    let q = l.integral(THERMAL_BAND, r_weight);
+    let q = weigh(l, THERMAL_BAND, r_weight);
     // L_R = 50 000/(C_α t^0.25) at t = (50 000/(C_α L_R))⁴.
     let t_max = move |q: f64| {
         let s = (THERMAL_COEFF / (c * q)).powf(1.0 / -THERMAL_TIME_EXPONENT);
@@ -708,7 +768,7 @@ fn oracle_thermal(x: &Seen, t: f64) -> Expect {
             Tmax::NotReached(f64::INFINITY)
         }
     };
-    value(q, |q| (q, q / thermal_limit(c, t)), t_max, None, Some(c))
+    value(&q, |q| (q, q / thermal_limit(c, t)), t_max, None, Some(c))
 }
 
 /// The IR eye limit, W/m², at t (cl. 4.3.7).
@@ -717,10 +777,7 @@ fn ir_limit(t: f64) -> f64 {
 }
 
 fn oracle_ir(x: &Seen, t: f64) -> Expect {
-    if !x.e.covers(IR_BAND) {
-        return Expect::NotAssessed("band not covered");
-    }
-    let q = x.e.integral(IR_BAND, unweighted);
+    let q = weigh(&x.e, IR_BAND, unweighted);
     // 18 000 t^−0.75 = E at t = (18 000/E)^(4/3); past 1000 s the limit drops from 101.2 to
     // 100 W/m², so 100 < E ≤ 101.2 W/m² reaches it at 1000 s.
     let t_max = |q: f64| {
@@ -733,7 +790,7 @@ fn oracle_ir(x: &Seen, t: f64) -> Expect {
             Tmax::NotReached(f64::INFINITY)
         }
     };
-    value(q, |q| (q, q / ir_limit(t)), t_max, None, None)
+    value(&q, |q| (q, q / ir_limit(t)), t_max, None, None)
 }
 
 // =====================================================================================
@@ -760,24 +817,32 @@ fn oracle_reproduces_the_reference_check_values() {
     // limits.md §6.3 item 2 (derived): S(254) = 0.50, E = 0.1 W/m² gives t_max = 600 s.
     assert!(rel(s_weight(254.0), 0.5) < 1e-12);
     assert!(rel(ACTINIC_DOSE_J_M2 / (0.1 * s_weight(254.0)), 600.0) < 1e-12);
-    // limits.md §4.2 [D]: log-linear interpolation reproduces the Directive's 181/276/324/372 nm
-    // digits; check one that is not an anchor here (the 1 nm table between 270 and 275 nm).
-    assert!(s_weight(272.0) < 1.0 && s_weight(272.0) > 0.96);
+    // limits.md §4.2 [D]: log-linear interpolation of the anchors gives 181 → 0.012564,
+    // 276 → 0.943438, 324 → 0.000520, 372 → 0.000086 (here 276, 324 and 372 are anchors
+    // themselves; check the log-linear rule on the anchors around them).
+    let loglin = |x: f64, (x0, y0): (f64, f64), (x1, y1): (f64, f64)| {
+        (f64::ln(y0) + (f64::ln(y1) - f64::ln(y0)) * (x - x0) / (x1 - x0)).exp()
+    };
+    assert!(rel(loglin(276.0, (275.0, 0.96), (280.0, 0.88)), 0.943438) < 1e-5);
+    assert!(rel(loglin(372.0, (370.0, 0.000093), (375.0, 0.000077)), 0.000086) < 5e-3);
+    assert!(rel(s_weight(272.0), loglin(272.0, (270.0, 1.0), (275.0, 0.96))) < 1e-12);
     // limits.md §6.3 item 3 (derived): E_IR = 570 → 99.8 s; 1000 → 47.2 s.
     let ir = |e: f64| first_crossing(|s| e / ir_limit(s), 1e-9, &[IR_UNTIL_S], f64::INFINITY);
     assert!(rel(seconds(ir(570.0)), 99.8) < 1e-3);
     assert!(rel(seconds(ir(1000.0)), 47.2) < 1e-3);
-    // limits.md §6.2 (derived): IR limits at 1000 / 100 / 10 s = 101.2 / 569.2 / 3200.9 W/m².
+    // limits.md §6.2 (derived, to the printed digits): IR limits at 1000 / 100 / 10 s =
+    // 101.2 / 569.2 / 3200.9 W/m².
     for (s, v) in [(1000.0, 101.2), (100.0, 569.2), (10.0, 3200.9)] {
-        assert!(rel(ir_limit(s), v) < 1e-4, "{s} s");
+        assert!(rel(ir_limit(s), v) < 5e-4, "{s} s: {}", ir_limit(s));
     }
-    // limits.md §6.2: L_R·α at 10 / 0.25 s = 28 117 / 70 711.
+    // limits.md §6.2 (derived): L_R·α at 10 / 0.25 s = 28 117 / 70 711.
     assert!(rel(thermal_limit(1.0, 10.0), 28_117.0) < 1e-4);
     assert!(rel(thermal_limit(1.0, 0.25), 70_711.0) < 1e-4);
     // limits.md §6.3 item 4 (derived): α = 0.01 rad, L_R = 2·10⁶ → 39.06 s (beyond 10 s: not
     // reached); α = 0.05 rad → 0.0625 s.
-    let th =
-        |c: f64, l: f64| first_crossing(|s| l / thermal_limit(c, s), THERMAL_FROM_S, &[10.0], f64::INFINITY);
+    let th = |c: f64, l: f64| {
+        first_crossing(|s| l / thermal_limit(c, s), THERMAL_FROM_S, &[THERMAL_UNTIL_S], f64::INFINITY)
+    };
     assert_eq!(th(0.01, 2e6), Tmax::NotReached(f64::INFINITY));
     assert!(rel((THERMAL_COEFF / (0.01 * 2e6)).powi(4), 39.06) < 1e-3);
     assert!(rel(seconds(th(0.05, 2e6)), 0.0625) < 1e-6);
@@ -798,12 +863,16 @@ fn oracle_integration_is_exact_for_a_flat_spectrum() {
     // ∫ B over 300–700 nm for a flat unit spectrum: the table part is piecewise linear (exact by
     // the trapezoid rule on its 5 nm nodes), the 500–600 nm part is ∫ 10^((450−λ)/50) dλ =
     // 50/ln 10 · (10⁻¹ − 10⁻³), and 600–700 nm adds 0.1.
-    let flat = Sampled { nm: vec![200.0, 3000.0], v: vec![1.0, 1.0] };
+    let flat = Sampled { nm: vec![180.0, 3000.0], v: vec![1.0, 1.0] };
     let mut table: f64 = B_TABLE.windows(2).map(|w| 0.5 * (w[1].0 - w[0].0) * (w[0].1 + w[1].1)).sum();
     table += 0.5 * 5.0 * (0.16 + 0.1);
     let exact = table + 50.0 / 10f64.ln() * (0.1 - 0.001) + 0.1;
     assert!(rel(flat.integral(BLUE_BAND, b_weight), exact) < 1e-6);
     assert!(rel(flat.integral(IR_BAND, unweighted), 2220.0) < 1e-12);
+    // A spectrum that covers part of a band is integrated over that part only.
+    let part = Sampled { nm: vec![350.0, 500.0], v: vec![2.0, 2.0] };
+    assert_eq!(part.covered(UVA_BAND), ((350.0, 400.0), false));
+    assert!(rel(part.integral(part.covered(UVA_BAND).0, unweighted), 100.0) < 1e-12);
 }
 
 // =====================================================================================
@@ -849,11 +918,11 @@ impl Rng {
 /// Number of random cases (test's choice).
 const CASES: usize = 600;
 /// Seed (test's choice); `HAZARD_ORACLE_SEED` overrides it for exploration.
-const SEED: u64 = 0x62_471_2006;
+const SEED: u64 = 0x0006_2471_2006;
 /// At least this many cases must be compared per hazard (test's choice).
 const MIN_COMPARED: usize = 60;
 
-/// One random case: a placed source, a duration, the engine's results and the oracle's view.
+/// One random case: the engine's results and the oracle's view of the same placed source.
 struct Case {
     label: String,
     duration_s: f64,
@@ -872,15 +941,15 @@ fn random_spectrum(rng: &mut Rng) -> (Spectrum, String, bool) {
             let visible = (420.0..=700.0).contains(&peak);
             if rng.chance(0.25) {
                 let spec = format!("led:{peak:.3} nm:{width:.3} nm");
-                (resolve(&spec, None).unwrap(), format!("{spec} (300–830 nm)"), visible)
+                (resolve(&spec, None).unwrap(), spec, visible)
             } else {
                 let step = rng.pick(&[0.5, 1.0, 1.0, 2.0]);
                 let s = ohno_led(nm(peak), nm(width), wide(step)).unwrap();
-                (s, format!("LED {peak:.2}/{width:.2} nm on 200–3000 nm, {step} nm"), visible)
+                (s, format!("LED {peak:.2}/{width:.2} nm, {step} nm steps"), visible)
             }
         }
         1 => {
-            // A blackbody, 2000–6500 K (the brief), on the generator's 200–3000 nm, 1 nm grid.
+            // A blackbody, 2000–6500 K (the brief), on the generator's default grid.
             let spec = format!("blackbody:{:.1} K", rng.uniform(2000.0, 6500.0));
             (resolve(&spec, None).unwrap(), spec, true)
         }
@@ -905,12 +974,8 @@ fn random_spectrum(rng: &mut Rng) -> (Spectrum, String, bool) {
                     ratio: rng.uniform(0.1, 0.8),
                 });
             }
-            let (grid, g) = if rng.chance(0.8) {
-                (wide(1.0), "200–3000 nm, 1 nm")
-            } else {
-                (Grid::nm(380.0, 780.0, 5.0), "380–780 nm, 5 nm")
-            };
-            (multi_band_led(&bands, grid).unwrap(), format!("white LED {} bands on {g}", bands.len()), true)
+            let grid = if rng.chance(0.8) { wide(1.0) } else { Grid::nm(380.0, 780.0, 5.0) };
+            (multi_band_led(&bands, grid).unwrap(), format!("white LED, {} bands", bands.len()), true)
         }
         _ => {
             // A built-in demo lamp, on its own grid or regridded to 200–3000 nm.
@@ -924,28 +989,46 @@ fn random_spectrum(rng: &mut Rng) -> (Spectrum, String, bool) {
                 "halogen-3000k",
             ]);
             let s = if rng.chance(0.5) { resolve(name, Some(wide(1.0))).ok() } else { None };
-            let regridded = s.is_some();
             let s = s.unwrap_or_else(|| resolve(name, None).unwrap());
-            let visible = name != "uva-365-led";
-            (s, format!("lamp {name}{}", if regridded { " on 200–3000 nm" } else { "" }), visible)
+            (s, format!("lamp {name}"), name != "uva-365-led")
         }
     };
-    (s.declared_as(Measure::Relative, Basis::Energy), label, visible)
+    let (a, b) = s.range_nm();
+    (s.declared_as(Measure::Relative, Basis::Energy), format!("{label} on {a}–{b} nm"), visible)
+}
+
+/// A placed source with these fields; the others (for reports and risk groups) as the
+/// scenario builder leaves them for a plain source.
+fn placed(spectrum: Spectrum, geometry: Geometry, size: Option<Length>) -> PlacedSource {
+    static BASE: LazyLock<PlacedSource> = LazyLock::new(|| {
+        let spec = SourceSpec {
+            spectrum: "led:450 nm:20 nm".to_string(),
+            luminance: Some("1 cd/m2".to_string()),
+            subtense: Some("0.1 rad".to_string()),
+            ..SourceSpec::default()
+        };
+        place(&spec, None).expect("a plain extended source")
+    });
+    let mut p = BASE.clone();
+    p.spectrum = spectrum;
+    p.geometry = geometry;
+    p.size = size;
+    p
 }
 
 /// A random placement of a relative spectrum: an extended source, a small source at a distance
 /// (intensity or flux), or a full field; scaled photometrically when `visible` (mostly).
 fn random_placement(rng: &mut Rng, rel_spectrum: &Spectrum, visible: bool) -> (PlacedSource, String) {
     let photometric = visible && rng.chance(0.75);
-    let mut kind = rng.pick(&["extended", "extended", "extended", "intensity", "flux", "flux", "full-field"]);
+    let mut kind = rng.pick(&["extended", "extended", "extended", "intensity", "flux", "flux", "at-eye"]);
     if kind == "intensity" && !photometric {
         kind = "flux";
     }
     let scale = |t: ScaleTarget| scale_to(rel_spectrum, t).unwrap();
-    let zero = Angle::from_si(0.0);
     match kind {
         "extended" => {
-            // Subtense 0.005–0.5 rad (the brief); luminance 10²–10⁹ cd/m² or radiance 0.1–10⁶ W m⁻² sr⁻¹.
+            // Subtense 0.005–0.5 rad (the brief); luminance 10²–10⁹ cd/m² or radiance
+            // 0.1–10⁶ W m⁻² sr⁻¹ (test's choice).
             let a = rng.log_uniform(0.005, 0.5);
             let (t, what) = if photometric {
                 let v = rng.log_uniform(1e2, 1e9);
@@ -954,11 +1037,7 @@ fn random_placement(rng: &mut Rng, rel_spectrum: &Spectrum, visible: bool) -> (P
                 let v = rng.log_uniform(0.1, 1e6);
                 (ScaleTarget::Radiance(Radiance::from_si(v)), format!("{v:.4e} W/m²/sr"))
             };
-            let p = PlacedSource {
-                spectrum: scale(t),
-                geometry: Geometry::Extended { subtense: Angle::from_si(a) },
-                size: None,
-            };
+            let p = placed(scale(t), Geometry::Extended { subtense: Angle::from_si(a) }, None);
             (p, format!("extended α = {a:.5} rad, {what}"))
         }
         "intensity" | "flux" => {
@@ -970,16 +1049,17 @@ fn random_placement(rng: &mut Rng, rel_spectrum: &Spectrum, visible: bool) -> (P
             let incidence = Angle::from_si(rng.uniform(0.0, 0.8));
             let distance = Length::from_si(d);
             let where_ = format!(
-                "at {d:.4} m, {}",
+                "at {d:.4} m, incidence {:.3} rad, {}",
+                incidence.si(),
                 if size.is_some() { format!("α = {a:.5} rad") } else { "size unknown".to_string() }
             );
             if kind == "intensity" {
                 let v = rng.log_uniform(0.1, 1e5);
-                let p = PlacedSource {
-                    spectrum: scale(ScaleTarget::LuminousIntensity(LuminousIntensity::from_si(v))),
-                    geometry: Geometry::Intensity { distance, incidence, size },
+                let p = placed(
+                    scale(ScaleTarget::LuminousIntensity(LuminousIntensity::from_si(v))),
+                    Geometry::Intensity { distance, incidence, size },
                     size,
-                };
+                );
                 (p, format!("intensity {v:.4e} cd {where_}"))
             } else {
                 let (t, what) = if photometric {
@@ -990,21 +1070,24 @@ fn random_placement(rng: &mut Rng, rel_spectrum: &Spectrum, visible: bool) -> (P
                     (ScaleTarget::RadiantFlux(Power::from_si(v)), format!("{v:.4e} W"))
                 };
                 let emission = if rng.chance(0.5) { Emission::Isotropic } else { Emission::Lambertian };
-                let emission_angle = if emission == Emission::Lambertian {
-                    Angle::from_si(rng.uniform(0.0, 1.0))
-                } else {
-                    zero
-                };
-                let p = PlacedSource {
-                    spectrum: scale(t),
-                    geometry: Geometry::Flux { emission, distance, emission_angle, incidence, size },
+                let theta = if emission == Emission::Lambertian { rng.uniform(0.0, 1.0) } else { 0.0 };
+                let p = placed(
+                    scale(t),
+                    Geometry::Flux {
+                        emission,
+                        distance,
+                        emission_angle: Angle::from_si(theta),
+                        incidence,
+                        size,
+                    },
                     size,
-                };
-                (p, format!("flux {what} ({emission:?}) {where_}"))
+                );
+                (p, format!("flux {what} ({emission:?}, emission angle {theta:.3} rad) {where_}"))
             }
         }
         _ => {
-            // Light from the whole field: 1–10⁵ lx or 0.1–10³ W/m² (test's choice).
+            // An irradiance at the eye, 1–10⁵ lx or 0.1–10³ W/m², from the whole field or (one in
+            // three) from a source of subtense 10⁻³–0.5 rad (test's choice).
             let (t, what) = if photometric {
                 let v = rng.log_uniform(1.0, 1e5);
                 (ScaleTarget::Illuminance(Illuminance::from_si(v)), format!("{v:.4e} lx"))
@@ -1012,12 +1095,14 @@ fn random_placement(rng: &mut Rng, rel_spectrum: &Spectrum, visible: bool) -> (P
                 let v = rng.log_uniform(0.1, 1e3);
                 (ScaleTarget::Irradiance(Irradiance::from_si(v)), format!("{v:.4e} W/m²"))
             };
-            let p = PlacedSource {
-                spectrum: scale(t),
-                geometry: Geometry::AtEye { field: Some(Field::FullField) },
-                size: None,
+            let (field, seen_as) = if rng.chance(1.0 / 3.0) {
+                let a = rng.log_uniform(1e-3, 0.5);
+                (Field::Subtense(Angle::from_si(a)), format!("from α = {a:.5} rad"))
+            } else {
+                (Field::FullField, "from the full field".to_string())
             };
-            (p, format!("full field {what}"))
+            let p = placed(scale(t), Geometry::AtEye { field: Some(field) }, None);
+            (p, format!("at the eye {what} {seen_as}"))
         }
     }
 }
@@ -1032,31 +1117,31 @@ fn random_duration(rng: &mut Rng) -> f64 {
     }
 }
 
+/// Runs the engine on `placed` for `duration_s` and pairs its results with the oracle's view.
+fn case(label: String, placed: &PlacedSource, duration_s: f64) -> Case {
+    let set = find_set("iec62471-2006").expect("built-in set");
+    let request = LimitsRequest {
+        source: placed,
+        filters: &[],
+        set,
+        duration: Time::from_si(duration_s),
+        aphakic: false,
+        classify: None,
+        only: &[],
+    };
+    let results = assess_limits(&request).unwrap_or_else(|e| panic!("{label}: {e}")).hazards;
+    Case { label, duration_s, seen: seen(placed), results }
+}
+
 fn build_cases() -> Vec<Case> {
     let seed = std::env::var("HAZARD_ORACLE_SEED").ok().and_then(|s| s.parse().ok()).unwrap_or(SEED);
     let mut rng = Rng(seed.max(1));
-    let set = find_set("iec62471-2006").expect("built-in set");
     (0..CASES)
         .map(|i| {
             let (rel_spectrum, source, visible) = random_spectrum(&mut rng);
             let (placed, geometry) = random_placement(&mut rng, &rel_spectrum, visible);
             let duration_s = random_duration(&mut rng);
-            let request = LimitsRequest {
-                source: &placed,
-                filters: &[],
-                set,
-                duration: Time::from_si(duration_s),
-                aphakic: false,
-                classify: None,
-                only: &[],
-            };
-            let results = assess_limits(&request).unwrap_or_else(|e| panic!("case {i}: {e}")).hazards;
-            Case {
-                label: format!("case {i}: {source}; {geometry}; t = {duration_s:.6} s"),
-                duration_s,
-                seen: seen(&placed),
-                results,
-            }
+            case(format!("case {i}: {source}; {geometry}; t = {duration_s:.6} s"), &placed, duration_s)
         })
         .collect()
 }
@@ -1083,19 +1168,31 @@ impl Worst {
     }
 }
 
+/// Largest deviations of one quantity: within TOL, and accepted only through the window of an
+/// under-resolved integrand or an ill-conditioned t_max.
+#[derive(Default)]
+struct Devs {
+    direct: Worst,
+    /// Largest deviation, within TOL or not, where the ratio is at least RELEVANT_RATIO.
+    relevant: Worst,
+    widened: Worst,
+    widened_count: usize,
+}
+
 #[derive(Default)]
 struct Tally {
     compared: usize,
+    compared_partial: usize,
     not_assessed: usize,
+    not_assessed_partial: usize,
     not_applicable: usize,
+    under_resolved: usize,
     t_max_seconds: usize,
     t_max_other: usize,
-    t_max_bracketed: usize,
-    weighted: Worst,
-    averaged: Worst,
-    ratio: Worst,
-    t_max: Worst,
-    t_max_bracketed_worst: Worst,
+    weighted: Devs,
+    averaged: Devs,
+    ratio: Devs,
+    t_max: Devs,
     failures: Vec<String>,
 }
 
@@ -1107,73 +1204,117 @@ fn engine_tmax(t: TMax) -> Tmax {
     }
 }
 
-/// Compares the engine's t_max with the oracle's; a mismatch is accepted when the engine's lies
-/// between the oracle's t_max for the weighted quantity ±TOL (t_max falls as the quantity grows).
-fn compare_tmax(tally: &mut Tally, case: &Case, engine: Tmax, o: &Oracle) {
+/// Compares a quantity linear in the weighted quantity: within TOL, or inside the oracle's window.
+fn compare_linear(tally: &mut Tally, which: &str, case: &Case, engine: Option<f64>, oracle: f64, o: &Oracle) {
+    let Some(e) = engine else {
+        tally.failures.push(format!("{}: engine gives no {which}", case.label));
+        return;
+    };
+    let d = rel(e, oracle);
+    let devs = match which {
+        "weighted" => &mut tally.weighted,
+        "averaged" => &mut tally.averaged,
+        _ => &mut tally.ratio,
+    };
+    if o.ratio >= RELEVANT_RATIO {
+        devs.relevant.add(d, case, e, oracle);
+    }
+    if d <= TOL {
+        devs.direct.add(d, case, e, oracle);
+        return;
+    }
+    let k = e / oracle;
+    if k >= o.window.0 && k <= o.window.1 {
+        devs.widened.add(d, case, e, oracle);
+        devs.widened_count += 1;
+    } else {
+        tally.failures.push(format!(
+            "{}: {which} engine {e:.9e}, oracle {oracle:.9e} (rel {d:.3e}; accepted factors {:.6}–{:.6})",
+            case.label, o.window.0, o.window.1
+        ));
+    }
+}
+
+/// Compares the engine's t_max with the oracle's: within TOL and of the same kind, or between
+/// the oracle's t_max at the ends of its window (ill-conditioned: a nearly flat limit, a jump,
+/// or a t_max that moves faster than the quantity).
+fn compare_tmax(tally: &mut Tally, case: &Case, engine: Option<TMax>, o: &Oracle) {
+    let Some(engine) = engine.map(engine_tmax) else {
+        tally.failures.push(format!("{}: engine gives no t_max", case.label));
+        return;
+    };
     match o.t_max {
         Tmax::Seconds(_) => tally.t_max_seconds += 1,
         _ => tally.t_max_other += 1,
     }
-    let same_kind = std::mem::discriminant(&engine) == std::mem::discriminant(&o.t_max);
     let dev = rel(engine.position(), o.t_max.position());
-    let direct = same_kind
-        && match (engine, o.t_max) {
-            (Tmax::Seconds(a), Tmax::Seconds(b)) => rel(a, b) <= TOL,
-            (Tmax::NotReached(a), Tmax::NotReached(b)) | (Tmax::BelowRange(a), Tmax::BelowRange(b)) => a == b,
-            _ => false,
-        };
+    let direct = match (engine, o.t_max) {
+        (Tmax::Seconds(a), Tmax::Seconds(b)) => rel(a, b) <= TOL,
+        (Tmax::NotReached(a), Tmax::NotReached(b)) | (Tmax::BelowRange(a), Tmax::BelowRange(b)) => a == b,
+        _ => false,
+    };
     if direct {
         if let (Tmax::Seconds(a), Tmax::Seconds(b)) = (engine, o.t_max) {
-            tally.t_max.add(dev, case, a, b);
+            tally.t_max.direct.add(dev, case, a, b);
         }
         return;
     }
     let (lo, hi) = (o.t_max_band.0.position(), o.t_max_band.1.position());
     let p = engine.position();
     if p >= lo * (1.0 - 1e-9) && p <= hi * (1.0 + 1e-9) {
-        tally.t_max_bracketed += 1;
-        tally.t_max_bracketed_worst.add(dev, case, p, o.t_max.position());
+        tally.t_max.widened_count += 1;
+        tally.t_max.widened.add(dev, case, p, o.t_max.position());
     } else {
         tally.failures.push(format!(
-            "{}: t_max engine {engine:?}, oracle {:?} (for ±{TOL}: {:?} … {:?})",
+            "{}: t_max engine {engine:?}, oracle {:?} (window: {:?} … {:?})",
             case.label, o.t_max, o.t_max_band.0, o.t_max_band.1
         ));
     }
 }
 
+/// Compares one hazard where the oracle has values. A partly covered band gives a lower bound
+/// on the ratio: the engine reports an exceedance when it is at least 1, and "not assessed"
+/// (with the lower bound) otherwise.
 fn compare_value(tally: &mut Tally, case: &Case, h: &HazardResult, o: &Oracle) {
-    let fail = |tally: &mut Tally, what: &str, e: f64, x: f64| {
-        tally.failures.push(format!(
-            "{}: {what} engine {e:.9e}, oracle {x:.9e} (rel {:.3e})",
-            case.label,
-            rel(e, x)
-        ));
-    };
-    if !matches!(h.verdict, Verdict::Within | Verdict::Exceeds) {
-        tally.failures.push(format!("{}: engine verdict {:?}, oracle has values", case.label, h.verdict));
-        return;
+    if o.under_resolved {
+        tally.under_resolved += 1;
+    }
+    if h.partial != o.partial {
+        tally.failures.push(format!("{}: engine partial = {}, oracle {}", case.label, h.partial, o.partial));
+    }
+    compare_linear(tally, "weighted", case, h.weighted, o.weighted, o);
+    let near_one = (o.ratio - 1.0).abs() <= TOL;
+    match (&h.verdict, o.partial) {
+        (Verdict::NotAssessed(_), true) if o.ratio < 1.0 || near_one => {
+            tally.not_assessed_partial += 1;
+            compare_linear(tally, "ratio", case, h.lower_bound_ratio, o.ratio, o);
+            return;
+        }
+        (Verdict::Exceeds, true) if o.ratio >= 1.0 || near_one => {
+            tally.compared_partial += 1;
+            compare_linear(tally, "ratio", case, h.lower_bound_ratio, o.ratio, o);
+        }
+        (Verdict::Within | Verdict::Exceeds, false) => {
+            let exceeds = matches!(h.verdict, Verdict::Exceeds);
+            if !near_one && exceeds != (o.ratio > 1.0) {
+                tally
+                    .failures
+                    .push(format!("{}: verdict {:?} but oracle ratio {}", case.label, h.verdict, o.ratio));
+            }
+        }
+        (v, partial) => {
+            tally.failures.push(format!(
+                "{}: engine verdict {v:?}; oracle ratio {} (band {})",
+                case.label,
+                o.ratio,
+                if partial { "partly covered" } else { "covered" }
+            ));
+            return;
+        }
     }
     tally.compared += 1;
-    let pairs = [
-        ("weighted", h.weighted, o.weighted),
-        ("averaged", h.averaged, o.averaged),
-        ("ratio", h.ratio, o.ratio),
-    ];
-    for (what, e, x) in pairs {
-        let Some(e) = e else {
-            tally.failures.push(format!("{}: engine gives no {what}", case.label));
-            continue;
-        };
-        let d = rel(e, x);
-        match what {
-            "weighted" => tally.weighted.add(d, case, e, x),
-            "averaged" => tally.averaged.add(d, case, e, x),
-            _ => tally.ratio.add(d, case, e, x),
-        }
-        if d > TOL {
-            fail(tally, what, e, x);
-        }
-    }
+    compare_linear(tally, "averaged", case, h.averaged, o.averaged, o);
+    compare_linear(tally, "ratio", case, h.ratio, o.ratio, o);
     // The field of view and C_α are inputs of the arithmetic: they must agree to rounding.
     for (what, e, x) in [("field of view", h.field_of_view_rad, o.fov), ("C_α", h.c_alpha, o.c_alpha)] {
         match (e, x) {
@@ -1182,21 +1323,13 @@ fn compare_value(tally: &mut Tally, case: &Case, h: &HazardResult, o: &Oracle) {
             _ => tally.failures.push(format!("{}: {what} engine {e:?}, oracle {x:?}", case.label)),
         }
     }
-    // The verdict follows the ratio, unless the ratio is within the tolerance of 1.
-    let exceeds = matches!(h.verdict, Verdict::Exceeds);
-    if (o.ratio - 1.0).abs() > TOL && exceeds != (o.ratio > 1.0) {
-        tally.failures.push(format!("{}: verdict {:?} but oracle ratio {}", case.label, h.verdict, o.ratio));
-    }
-    match h.t_max {
-        Some(t) => compare_tmax(tally, case, engine_tmax(t), o),
-        None => tally.failures.push(format!("{}: engine gives no t_max", case.label)),
-    }
+    compare_tmax(tally, case, h.t_max, o);
 }
 
-/// Runs the oracle for hazard `id` on every random case and compares it with the engine.
-fn check_hazard(id: &str) {
+/// Runs the oracle for hazard `id` on `cases` and compares it with the engine.
+fn tally_cases(id: &str, cases: &[Case]) -> Tally {
     let mut tally = Tally::default();
-    for case in RANDOM_CASES.iter() {
+    for case in cases {
         let h = case.results.iter().find(|h| h.id == id).unwrap_or_else(|| panic!("engine has no {id}"));
         match oracle(id, &case.seen, case.duration_s) {
             Expect::NotAssessed(why) => {
@@ -1220,24 +1353,51 @@ fn check_hazard(id: &str) {
             Expect::Value(o) => compare_value(&mut tally, case, h, &o),
         }
     }
+    tally
+}
+
+/// Runs the oracle for hazard `id` on every random case, compares it with the engine and prints
+/// the counts and the largest deviations.
+fn check_hazard(id: &str) {
+    let tally = tally_cases(id, &RANDOM_CASES);
     println!(
-        "hazard_oracle {id}: {} cases: {} compared, {} not assessed, {} not applicable; t_max {} finite, {} not reached or below range, {} accepted by the ±{TOL} bracket",
+        "hazard_oracle {id}: {} cases: {} compared (of which {} exceed on a partly covered band), {} not \
+         assessed on a partly covered band (lower bound compared), {} not assessed (no radiance or subtense), \
+         {} not applicable; {} with an integrand the data do not resolve to ±{TOL}; t_max: {} finite, {} not \
+         reached or below range",
         RANDOM_CASES.len(),
         tally.compared,
+        tally.compared_partial,
+        tally.not_assessed_partial,
         tally.not_assessed,
         tally.not_applicable,
+        tally.under_resolved,
         tally.t_max_seconds,
         tally.t_max_other,
-        tally.t_max_bracketed
     );
-    for (what, w) in [
+    for (what, d) in [
         ("weighted", &tally.weighted),
         ("averaged", &tally.averaged),
         ("ratio", &tally.ratio),
         ("t_max", &tally.t_max),
-        ("t_max (bracketed)", &tally.t_max_bracketed_worst),
     ] {
-        println!("  max rel dev {what}: {:.3e} at {}", w.dev, if w.at.is_empty() { "-" } else { &w.at });
+        println!(
+            "  {what}: max rel dev {:.3e} at {}",
+            d.direct.dev,
+            if d.direct.at.is_empty() { "-" } else { &d.direct.at }
+        );
+        if !d.relevant.at.is_empty() {
+            println!(
+                "  {what}: where the ratio ≥ {RELEVANT_RATIO:e}, max rel dev {:.3e} at {}",
+                d.relevant.dev, d.relevant.at
+            );
+        }
+        if d.widened_count > 0 {
+            println!(
+                "  {what}: {} beyond ±{TOL} but inside the oracle's window, max rel dev {:.3e} at {}",
+                d.widened_count, d.widened.dev, d.widened.at
+            );
+        }
     }
     assert!(
         tally.failures.is_empty(),
@@ -1246,6 +1406,69 @@ fn check_hazard(id: &str) {
         tally.failures.join("\n")
     );
     assert!(tally.compared >= MIN_COMPARED, "{id}: only {} cases compared", tally.compared);
+}
+
+/// The hazards compared.
+const HAZARDS: [&str; 6] =
+    ["blue-light", "blue-light-small", "uva-eye", "actinic-uv", "retinal-thermal", "ir-eye"];
+
+/// A source scaled so that the oracle's weighted quantity for `id` is `target` (the engine's
+/// input is built with retidose's radiance scaling; the oracle only measures it).
+fn extended_with(id: &str, spec: &str, alpha: f64, target: f64) -> PlacedSource {
+    let rel_spectrum = resolve(spec, None).unwrap().declared_as(Measure::Relative, Basis::Energy);
+    let at = |radiance: f64| {
+        let s = scale_to(&rel_spectrum, ScaleTarget::Radiance(Radiance::from_si(radiance))).unwrap();
+        placed(s, Geometry::Extended { subtense: Angle::from_si(alpha) }, None)
+    };
+    let unit = at(1.0);
+    let Expect::Value(o) = oracle(id, &seen(&unit), 1.0) else { panic!("{id}: {spec} is not assessed") };
+    at(target / o.weighted)
+}
+
+#[test]
+fn edge_cases_agree_with_the_oracle() {
+    let mut cases = Vec::new();
+    // The IR limit drops from 18 000·1000^−0.75 = 101.2 to 100 W/m² after 1000 s (limits.md §3.2):
+    // E_IR = 100.5 W/m² reaches it at 1000 s.
+    let p = extended_with("ir-eye", "blackbody:2000 K", 0.2, 100.5);
+    cases.push(case("IR eye, E_IR = 100.5 W/m², t = 2000 s".into(), &p, 2000.0));
+    // The field of view is 0.0011·√10⁴ = 0.11 rad up to 10⁴ s and 0.1 rad beyond (limits.md §3.2):
+    // a 0.05 rad source with L_B = 440 W m⁻² sr⁻¹ averages to 440·Ω(0.05)/Ω(0.11) = 90.9 at 10⁴ s
+    // (ratio 0.91) and to 110 beyond (ratio 1.1), so t_max is 10⁴ s.
+    let p = extended_with("blue-light", "led:450 nm:20 nm", 0.05, 440.0);
+    for t in [5000.0, 10_000.0, 20_000.0] {
+        cases.push(case(format!("blue light across the 10⁴ s field-of-view step, t = {t} s"), &p, t));
+    }
+    // C_α at its floor (α = 0.001 rad < 1.7 mrad) and beyond its ceiling (α = 0.3 rad > 0.1 rad);
+    // a retinal radiance above 50 000/(C_α·10⁻⁵^0.25) gives t_max below 10 µs.
+    for (alpha, l_r) in [(0.001, 1e8), (0.001, 1e10), (0.3, 1e6), (0.3, 1e7)] {
+        let p = extended_with("retinal-thermal", "blackbody:3000 K", alpha, l_r);
+        cases.push(case(format!("retinal thermal, α = {alpha} rad, L_R = {l_r:e}"), &p, 1.0));
+    }
+    // Durations on the pieces' ends (limits.md §3.2: "t ≤" holds the lower piece).
+    let p = extended_with("uva-eye", "led:380 nm:20 nm", 0.3, 12.0);
+    for t in [0.25, 10.0, 100.0, 1000.0, 10_000.0] {
+        cases.push(case(format!("UV LED, E_UVA = 12 W/m², t = {t} s"), &p, t));
+    }
+    // The oracle itself puts the jumps where the limits do.
+    let t_max_of = |id: &str, c: &Case| match oracle(id, &c.seen, c.duration_s) {
+        Expect::Value(o) => o.t_max,
+        other => panic!("{}: {other:?}", c.label),
+    };
+    assert!(rel(seconds(t_max_of("ir-eye", &cases[0])), IR_UNTIL_S) < 1e-9);
+    assert!(rel(seconds(t_max_of("blue-light", &cases[1])), BLUE_DOSE_UNTIL_S) < 1e-9);
+    assert_eq!(t_max_of("retinal-thermal", &cases[5]), Tmax::BelowRange(THERMAL_FROM_S));
+    assert_eq!(t_max_of("retinal-thermal", &cases[7]), Tmax::BelowRange(THERMAL_FROM_S));
+    let mut failures = Vec::new();
+    for id in HAZARDS {
+        let tally = tally_cases(id, &cases);
+        failures.extend(tally.failures);
+        println!(
+            "hazard_oracle edge cases {id}: {} compared, t_max {} finite, {} accepted by the window",
+            tally.compared, tally.t_max_seconds, tally.t_max.widened_count
+        );
+    }
+    assert!(failures.is_empty(), "{} disagreements:\n{}", failures.len(), failures.join("\n"));
 }
 
 #[test]

@@ -11,3 +11,4 @@ mod limits_reference;
 mod properties;
 mod reference;
 mod retina_reference;
+mod verdicts;
