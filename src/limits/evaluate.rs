@@ -15,7 +15,9 @@
 
 use std::f64::consts::FRAC_PI_2;
 
-use super::set::{Condition, Form, Hazard, LimitQuantity, LimitSet, Segment};
+use super::set::{
+    Condition, FieldOfView, Form, GroupFieldOfView, Hazard, LimitQuantity, LimitSet, Provenance, Segment,
+};
 use super::weighting::find_weighting;
 use crate::base::curve::Curve;
 use crate::base::quantity::{SiValue, Time};
@@ -98,8 +100,12 @@ pub struct HazardResult {
     pub averaged: Option<f64>,
     /// Averaging field of view at the exposure duration, rad.
     pub field_of_view_rad: Option<f64>,
+    /// Status and source of that field of view.
+    pub field_of_view_provenance: Option<Provenance>,
     /// C_α used, in the document's unit (rad or mrad).
     pub c_alpha: Option<f64>,
+    /// Status and source of the C_α bounds.
+    pub c_alpha_provenance: Option<Provenance>,
     /// Exposure in the limit's form at the duration (dose or rate) with its unit.
     pub exposure: Option<(f64, &'static str)>,
     /// Limit at the duration, same form and unit.
@@ -119,6 +125,9 @@ pub struct HazardResult {
     pub partial: bool,
     /// Parts of this result that rest on values from memory.
     pub from_memory: Vec<String>,
+    /// Values this result used that are the stricter of candidates the sources do not settle:
+    /// what, the value and why.
+    pub stricter_choices: Vec<String>,
     /// Source of the limit piece used.
     pub source: String,
 }
@@ -139,10 +148,25 @@ fn segment_at(h: &Hazard, t: f64) -> Option<&Segment> {
     })
 }
 
-fn fov_at(h: &Hazard, t: f64) -> Option<f64> {
+/// `x` with four significant digits, without trailing zeros (100, 11, 1.739, 0.25; 3.281e-6
+/// below 10⁻³ and 1.2e7 from 10⁶).
+pub(super) fn short(x: f64) -> String {
+    if x == 0.0 || !x.is_finite() {
+        return format!("{x}");
+    }
+    if !(1e-3..1e6).contains(&x.abs()) {
+        return format!("{x:.3e}");
+    }
+    let digits = (3 - x.abs().log10().floor() as i32).max(0) as usize;
+    let t = format!("{x:.digits$}");
+    if t.contains('.') { t.trim_end_matches('0').trim_end_matches('.').to_string() } else { t }
+}
+
+/// The field-of-view piece that holds at duration `t`.
+fn fov_piece(h: &Hazard, t: f64) -> Option<&FieldOfView> {
     h.field_of_view.iter().enumerate().find_map(|(i, f)| {
         let inside = (t > f.from_s || (i == 0 && t >= f.from_s)) && t <= f.to_s;
-        inside.then(|| f.coefficient_rad * t.powf(f.time_exponent))
+        inside.then_some(f)
     })
 }
 
@@ -161,16 +185,34 @@ fn band_weighting(h: &Hazard) -> Curve {
 }
 
 /// Everything about the exposure that does not depend on t.
-struct Prepared {
+struct Prepared<'h> {
     q: f64,
     alpha: Option<f64>,
     full_field: bool,
+    /// A field of view that replaces the hazard's at every t (a risk group's own, at its time base).
+    fov_override: Option<&'h GroupFieldOfView>,
 }
 
-impl Prepared {
+impl Prepared<'_> {
+    /// The averaging field of view at duration t, rad, with its provenance.
+    fn fov<'a>(&'a self, h: &'a Hazard, t: f64) -> Option<(f64, &'a Provenance)> {
+        match self.fov_override {
+            Some(g) => Some((g.rad, &g.provenance)),
+            None => fov_piece(h, t).map(|f| (f.at(t), &f.provenance)),
+        }
+    }
+
+    /// True when the radiance is averaged over a field of view larger than the source at t.
+    fn averages(&self, h: &Hazard, t: f64) -> bool {
+        match (self.fov(h, t), self.alpha) {
+            (Some((g, _)), Some(a)) => !self.full_field && a < g,
+            _ => false,
+        }
+    }
+
     /// The quantity after field-of-view averaging at duration t.
     fn averaged(&self, h: &Hazard, t: f64) -> Option<f64> {
-        match (fov_at(h, t), self.alpha) {
+        match (self.fov(h, t).map(|f| f.0), self.alpha) {
             (None, _) => Some(self.q),
             (Some(_), _) if self.full_field => Some(self.q),
             (Some(g), Some(a)) if a < g => {
@@ -183,7 +225,7 @@ impl Prepared {
     }
 
     fn c_alpha(&self, h: &Hazard) -> Option<f64> {
-        let c = h.c_alpha?;
+        let c = h.c_alpha.as_ref()?;
         if self.full_field {
             return Some(c.value(c.max_rad));
         }
@@ -247,7 +289,9 @@ fn blank_result(h: &Hazard) -> HazardResult {
         weighted: None,
         averaged: None,
         field_of_view_rad: None,
+        field_of_view_provenance: None,
         c_alpha: None,
+        c_alpha_provenance: None,
         exposure: None,
         limit: None,
         ratio: None,
@@ -257,6 +301,7 @@ fn blank_result(h: &Hazard) -> HazardResult {
         coverage: None,
         lower_bound_ratio: None,
         from_memory: Vec::new(),
+        stricter_choices: Vec::new(),
         source: String::new(),
     };
     if let Some(w) = h.weighting.as_deref().and_then(find_weighting)
@@ -265,7 +310,8 @@ fn blank_result(h: &Hazard) -> HazardResult {
         out.from_memory.push(format!("weighting {}", w.name));
     }
     if h.status.starts_with("from memory") {
-        out.from_memory.push(format!("hazard definition ({})", h.clause));
+        let why = h.status.split_once(':').map_or(String::new(), |(_, w)| format!(": {}", w.trim()));
+        out.from_memory.push(format!("hazard definition ({}){why}", h.clause));
     }
     out
 }
@@ -376,10 +422,14 @@ fn no_limit_reason(h: &Hazard, p: &Prepared, t: f64) -> String {
 
 /// Records the limit piece used, and the exposure and limit in its form at duration `t`.
 fn record_limit(out: &mut HazardResult, h: &Hazard, seg: &Segment, dose: f64, allowed: f64, t: f64) {
-    if seg.status.starts_with("from memory") {
-        out.from_memory.push(format!("limit {}", seg.source));
+    let p = &seg.provenance;
+    if p.is_from_memory() {
+        out.from_memory.push(format!("limit {}", p.source));
     }
-    out.source = seg.source.clone();
+    if let Some(why) = &p.stricter_choice {
+        out.stricter_choices.push(format!("limit: {why}"));
+    }
+    out.source = p.source.clone();
     out.exposure = Some(match seg.form {
         Form::Dose => (dose, unit(h.quantity, Form::Dose)),
         Form::Rate => (dose / t, unit(h.quantity, Form::Rate)),
@@ -390,27 +440,72 @@ fn record_limit(out: &mut HazardResult, h: &Hazard, seg: &Segment, dose: f64, al
     });
 }
 
-/// Evaluates a hazard that applies to the exposure, on `spectrum`, filling `out`.
-fn evaluate_on(h: &Hazard, e: &Exposure<'_>, spectrum: &Spectrum, mut out: HazardResult) -> HazardResult {
+/// Records the field of view and C_α in use at duration `t` with their provenance; flags the
+/// from-memory ones that can raise the result and lists the stricter choices that shaped it.
+///
+/// A field of view matters when the source has a size and does not fill the field: a
+/// from-memory field is flagged when it averages (a smaller true field would average less), a
+/// stricter choice is listed whenever it could have averaged. C_α matters when the limit piece
+/// used depends on it.
+fn record_geometry(out: &mut HazardResult, h: &Hazard, p: &Prepared<'_>, seg: Option<&Segment>, t: f64) {
+    if let Some((g, prov)) = p.fov(h, t) {
+        out.field_of_view_rad = Some(g);
+        out.field_of_view_provenance = Some(prov.clone());
+        let mrad = format!("{} mrad", short(g * 1e3));
+        if prov.is_from_memory() && p.averages(h, t) {
+            out.from_memory.push(format!("field of view {mrad} ({})", prov.source));
+        }
+        if let Some(why) = &prov.stricter_choice
+            && !p.full_field
+            && p.alpha.is_some()
+        {
+            out.stricter_choices.push(format!("field of view {mrad}: {why}"));
+        }
+    }
+    out.c_alpha = p.c_alpha(h);
+    if let Some(c) = &h.c_alpha {
+        out.c_alpha_provenance = Some(c.provenance.clone());
+        if seg.is_some_and(|s| s.alpha_exponent != 0.0) && out.c_alpha.is_some() {
+            let bounds = format!("C_α bounds {}–{} mrad", short(c.min_rad * 1e3), short(c.max_rad * 1e3));
+            if c.provenance.is_from_memory() {
+                out.from_memory.push(format!("{bounds} ({})", c.provenance.source));
+            }
+            if let Some(why) = &c.provenance.stricter_choice {
+                out.stricter_choices.push(format!("{bounds}: {why}"));
+            }
+        }
+    }
+}
+
+/// Evaluates a hazard that applies to the exposure, on `spectrum`, filling `out`; `fov` replaces
+/// the hazard's field of view (a risk group's own at its time base).
+fn evaluate_on(
+    h: &Hazard,
+    e: &Exposure<'_>,
+    spectrum: &Spectrum,
+    fov: Option<&GroupFieldOfView>,
+    mut out: HazardResult,
+) -> HazardResult {
     let w = band_weighting(h);
     let (q, coverage) = spectrum.to_energy().weighted(&w);
     out.weighted = Some(q);
     out.coverage = Some(coverage);
-    let p = Prepared { q, alpha: e.subtense_rad, full_field: e.full_field };
+    let p = Prepared { q, alpha: e.subtense_rad, full_field: e.full_field, fov_override: fov };
     let (t, factor) = match duration_and_factor(e) {
         Ok(x) => x,
         Err(v) => return with_verdict(out, v),
     };
-    out.field_of_view_rad = fov_at(h, t);
-    out.c_alpha = p.c_alpha(h);
     out.averaged = p.averaged(h, t);
-    let Some((dose, allowed, seg)) = p.ratio(h, t, factor) else {
+    let ratio = p.ratio(h, t, factor);
+    record_geometry(&mut out, h, &p, ratio.map(|r| r.2), t);
+    let Some((dose, allowed, seg)) = ratio else {
         let reason = no_limit_reason(h, &p, t);
         return with_verdict(out, Verdict::NotAssessed(reason));
     };
     record_limit(&mut out, h, seg, dose, allowed, t);
     let ratio = dose / allowed;
-    out.t_max = if e.schedule.is_none() { t_max(h, &p) } else { None };
+    // A group's own field of view holds at its time base only, so no t_max with one.
+    out.t_max = if e.schedule.is_none() && fov.is_none() { t_max(h, &p) } else { None };
     if !coverage.is_complete() {
         // The covered part alone: a lower bound on the ratio. At or above 1 it already exceeds.
         out.lower_bound_ratio = Some(ratio);
@@ -434,16 +529,17 @@ fn evaluate_on(h: &Hazard, e: &Exposure<'_>, spectrum: &Spectrum, mut out: Hazar
     out
 }
 
-/// Evaluates one hazard.
-pub(super) fn assess(h: &Hazard, e: &Exposure<'_>) -> HazardResult {
+/// Evaluates one hazard; `fov` replaces the hazard's field of view (a risk group's own field at
+/// its time base).
+pub(super) fn assess(h: &Hazard, e: &Exposure<'_>, fov: Option<&GroupFieldOfView>) -> HazardResult {
     let out = blank_result(h);
     match applicable_spectrum(h, e) {
-        Ok(spectrum) => evaluate_on(h, e, spectrum, out),
+        Ok(spectrum) => evaluate_on(h, e, spectrum, fov, out),
         Err(v) => with_verdict(out, v),
     }
 }
 
 /// Evaluates every hazard of `set` for `exposure`.
 pub fn evaluate_set(set: &LimitSet, exposure: &Exposure<'_>) -> Vec<HazardResult> {
-    set.hazards.iter().map(|h| assess(h, exposure)).collect()
+    set.hazards.iter().map(|h| assess(h, exposure, None)).collect()
 }

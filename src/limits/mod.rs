@@ -16,9 +16,12 @@ mod set;
 mod weighting;
 
 pub use evaluate::{Exposure, HazardResult, TMax, Verdict, evaluate_set};
-pub use risk::{Classification, HazardGroup, MovableSource, RiskGroup, blue_light_efficacy, classify};
+pub use risk::{
+    Classification, HazardGroup, MovableSource, RiskGroup, blue_light_efficacy, classify,
+    explain_exposure_check,
+};
 pub use set::{
-    CAlpha, Condition, FieldOfView, Form, Hazard, LimitQuantity, LimitSet, Segment, builtin_sets, find_set,
-    parse_set,
+    CAlpha, Condition, FieldOfView, Form, GROUP_NAMES, GroupFieldOfView, Hazard, LimitQuantity, LimitSet,
+    MAX_LIMIT_S, Provenance, RiskGroupBases, STATUS_TAGS, Segment, builtin_sets, find_set, parse_set,
 };
 pub use weighting::{Weighting, builtin_weightings, find_weighting, parse_weighting};

@@ -5,6 +5,7 @@ use crate::base::quantity::{SiValue, Time};
 use crate::cornea::PlacedSource;
 use crate::cornea::at_cornea;
 use crate::cornea::filter::Filter;
+use crate::limits::risk::explain_exposure_check;
 use crate::limits::{
     Classification, Exposure, HazardResult, LimitSet, MovableSource, Verdict, classify, evaluate_set,
 };
@@ -155,6 +156,13 @@ pub fn assess_limits(r: &LimitsRequest<'_>) -> Result<LimitsAssessment> {
             "verdicts marked [from memory] rest on values not checked against the published text".to_string(),
         );
     }
+    if hazards.iter().any(|h| !h.stricter_choices.is_empty()) {
+        notes.push(
+            "where the sources leave a value open between candidates, the stricter is used; each hazard lists \
+             the ones it used (stricter choices)"
+                .to_string(),
+        );
+    }
     if !r.filters.is_empty() {
         notes.push(format!(
             "filters applied: {}",
@@ -169,6 +177,7 @@ pub fn assess_limits(r: &LimitsRequest<'_>) -> Result<LimitsAssessment> {
         let movable = movable_source(r.source, size, r.filters);
         let from_irradiance = r.source.spectrum.measure() == Measure::Irradiance;
         movable.and_then(|m| classify(r.set, &m, general).map_err(|e| e.to_string())).map(|mut c| {
+            explain_exposure_check(&mut c, &hazards, t);
             if from_irradiance {
                 c.notes.push(
                     "classified from the irradiance measured at the stated distance, as an intensity I = E·d² \

@@ -7,6 +7,13 @@
 //! or for lamps for general lighting the distance at which the lamp gives 500 lx, not less than
 //! 200 mm (IEC 62471:2006 cl. 5.2).
 //!
+//! A hazard's time bases carry their status and source, and a group may have a field of view of
+//! its own at its time base (`[[hazard.risk_groups.field_of_view]]`): the IEC 62471 Exempt
+//! blue-light group is evaluated with 0.1 rad at 10⁴ s, where the exposure field of view reaches
+//! 0.11 rad, the stricter of the two candidates. When the exposure check of a report and the
+//! risk-group check use different durations or fields of view, the classification says which
+//! each used ([`explain_exposure_check`]).
+//!
 //! The blue-light threshold illuminance E_thr = 1 W·m⁻² / K_B,v (K_B,v the spectrum's blue-light
 //! hazard efficacy of luminous radiation, CIE e-ILV 17-26-061) and the threshold distance follow
 //! IEC TR 62778:2014, which IEC 62471-7:2023 has replaced; the 62471-7 revised exposure times and
@@ -14,8 +21,8 @@
 
 use uom::si::length::meter;
 
-use super::evaluate::{Exposure, Verdict, assess};
-use super::set::LimitSet;
+use super::evaluate::{Exposure, HazardResult, Verdict, assess, short};
+use super::set::{GROUP_NAMES, LimitSet, Provenance};
 use super::weighting::find_weighting;
 use crate::base::error::{Error, Result};
 use crate::base::quantity::{Angle, Length, SiValue, Time};
@@ -39,7 +46,7 @@ pub enum RiskGroup {
 
 impl RiskGroup {
     /// The name as IEC 62471 writes it.
-    pub fn name(self) -> &'static str {
+    pub const fn name(self) -> &'static str {
         match self {
             RiskGroup::Exempt => "Exempt",
             RiskGroup::Rg1 => "RG1",
@@ -69,6 +76,16 @@ pub struct HazardGroup {
     pub ratios: [Option<f64>; 3],
     /// Time bases, s.
     pub time_bases_s: [f64; 3],
+    /// Status and source of the time bases.
+    pub time_bases: Provenance,
+    /// Averaging field of view used at each time base evaluated, rad.
+    pub fields_of_view_rad: [Option<f64>; 3],
+    /// Status and source of each of those fields of view.
+    pub field_of_view_provenance: [Option<Provenance>; 3],
+    /// Values the evaluation rests on that are from memory (time bases, limits, fields of view).
+    pub from_memory: Vec<String>,
+    /// Values the evaluation used that are the stricter of candidates, with why.
+    pub stricter_choices: Vec<String>,
 }
 
 /// A source that can be placed at any distance: a spectral intensity (a small source, with an
@@ -158,13 +175,21 @@ fn groups_at(set: &LimitSet, source: &MovableSource, d: Length) -> Result<Vec<Ha
     Ok(set
         .hazards
         .iter()
-        .filter_map(|h| h.risk_group_time_bases_s.map(|b| (h, b)))
-        .map(|(h, bases)| {
+        .filter_map(|h| h.risk_groups.as_ref().map(|b| (h, b)))
+        .map(|(h, rg)| {
+            let bases = rg.time_bases_s;
             let mut ratios = [None; 3];
             let mut reason = None;
             let mut group = None;
             let mut lower_bound = false;
             let mut not_applicable = false;
+            let mut fields_of_view_rad = [None; 3];
+            let mut field_of_view_provenance: [Option<Provenance>; 3] = [None, None, None];
+            let mut from_memory: Vec<String> = Vec::new();
+            let mut stricter_choices: Vec<String> = Vec::new();
+            if rg.provenance.is_from_memory() {
+                from_memory.push(format!("risk-group time bases ({})", rg.provenance.source));
+            }
             const GROUPS: [RiskGroup; 3] = [RiskGroup::Exempt, RiskGroup::Rg1, RiskGroup::Rg2];
             for (i, &t) in bases.iter().enumerate() {
                 let e = Exposure {
@@ -176,7 +201,21 @@ fn groups_at(set: &LimitSet, source: &MovableSource, d: Length) -> Result<Vec<Ha
                     schedule: None,
                     aphakic: false,
                 };
-                let r = assess(h, &e);
+                let r = assess(h, &e, rg.field_of_view[i].as_ref());
+                fields_of_view_rad[i] = r.field_of_view_rad;
+                field_of_view_provenance[i].clone_from(&r.field_of_view_provenance);
+                for (list, new) in
+                    [(&mut from_memory, &r.from_memory), (&mut stricter_choices, &r.stricter_choices)]
+                {
+                    for x in new {
+                        // Values of the hazard as a whole are not tied to a time base.
+                        let whole = x.starts_with("hazard definition") || x.starts_with("weighting");
+                        let x = if whole { x.clone() } else { format!("{}: {x}", GROUP_NAMES[i]) };
+                        if !list.contains(&x) {
+                            list.push(x);
+                        }
+                    }
+                }
                 match &r.verdict {
                     Verdict::Within => {
                         ratios[i] = r.ratio;
@@ -209,6 +248,11 @@ fn groups_at(set: &LimitSet, source: &MovableSource, d: Length) -> Result<Vec<Ha
                 not_applicable,
                 ratios,
                 time_bases_s: bases,
+                time_bases: rg.provenance.clone(),
+                fields_of_view_rad,
+                field_of_view_provenance,
+                from_memory,
+                stricter_choices,
             }
         })
         .collect())
@@ -285,7 +329,7 @@ fn blue_threshold_distance(
 /// [`crate::ErrorKind::InvalidInput`] if the set has no risk-group data or the source cannot be
 /// placed at a distance.
 pub fn classify(set: &LimitSet, source: &MovableSource, general_lighting: bool) -> Result<Classification> {
-    if set.hazards.iter().all(|h| h.risk_group_time_bases_s.is_none()) {
+    if set.hazards.iter().all(|h| h.risk_groups.is_none()) {
         return Err(Error::input(format!(
             "the set '{}' has no risk-group time bases; risk groups are defined by IEC 62471 (set iec62471-2006)",
             set.id
@@ -332,4 +376,74 @@ pub fn classify(set: &LimitSet, source: &MovableSource, general_lighting: bool) 
         threshold_distance,
         notes,
     })
+}
+
+/// " with a 100 mrad field of view (status)", " with no field-of-view averaging", or nothing
+/// when neither check averages (`any` false).
+fn field_text(rad: Option<f64>, p: Option<&Provenance>, any: bool) -> String {
+    match (rad, p) {
+        (Some(g), Some(p)) => format!(" with a {} mrad field of view ({})", short(g * 1e3), p.tag()),
+        (Some(g), None) => format!(" with a {} mrad field of view", short(g * 1e3)),
+        (None, _) if any => " with no field-of-view averaging".to_string(),
+        (None, _) => String::new(),
+    }
+}
+
+/// Adds a note to `c` for every hazard whose exposure check (the `exposure` results, for
+/// `duration_s` as the source is placed) and risk-group check used a different duration or
+/// field of view, saying which each used and what each found. The exposure verdict answers
+/// whether this exposure is within the limit; the group classifies the lamp at the assessment
+/// distance over the standard's time bases, so the two can differ (e.g. a blue-light exposure
+/// of 8 h exceeds the limit while the lamp is RG1, or Exempt at 10⁴ s).
+pub fn explain_exposure_check(c: &mut Classification, exposure: &[HazardResult], duration_s: f64) {
+    let distance_mm = c.distance.get::<meter>() * 1e3;
+    for g in &c.hazards {
+        let (Some(group), false) = (g.group, g.lower_bound) else { continue };
+        let Some(r) = exposure.iter().find(|r| r.id == g.id) else { continue };
+        let verdict = match (&r.verdict, r.ratio) {
+            (Verdict::Within | Verdict::Exceeds, Some(x)) => {
+                format!("{} (ratio {})", r.verdict.text(), short(x))
+            }
+            _ => continue,
+        };
+        // The time base that decided the group (RG3: exceeded up to the RG2 time base).
+        let decisive = match group {
+            RiskGroup::Exempt => 0,
+            RiskGroup::Rg1 => 1,
+            RiskGroup::Rg2 | RiskGroup::Rg3 => 2,
+        };
+        let same_time = (g.time_bases_s[decisive] - duration_s).abs() <= 1e-9 * duration_s;
+        let same_field = match (g.fields_of_view_rad[decisive], r.field_of_view_rad) {
+            (Some(a), Some(b)) => (a - b).abs() <= 1e-12,
+            (a, b) => a.is_none() && b.is_none(),
+        };
+        if same_time && same_field {
+            continue;
+        }
+        let any = r.field_of_view_rad.is_some() || g.fields_of_view_rad.iter().any(Option::is_some);
+        let steps: Vec<String> = (0..=decisive)
+            .filter_map(|i| {
+                let x = g.ratios[i]?;
+                let found = if x > 1.0 { "exceeds" } else { "within" };
+                Some(format!(
+                    "the {} time base {} s{}: {found} (ratio {})",
+                    GROUP_NAMES[i],
+                    short(g.time_bases_s[i]),
+                    field_text(g.fields_of_view_rad[i], g.field_of_view_provenance[i].as_ref(), any),
+                    short(x)
+                ))
+            })
+            .collect();
+        c.notes.push(format!(
+            "{}: the exposure check used t = {} s{} as the source is placed: {verdict}; the risk-group check at \
+             {} mm used {}, so {}. The exposure verdict says whether this exposure is within the limit; the \
+             group classifies the lamp at the standard's time bases",
+            g.name,
+            short(duration_s),
+            field_text(r.field_of_view_rad, r.field_of_view_provenance.as_ref(), any),
+            short(distance_mm),
+            steps.join("; "),
+            group.name()
+        ));
+    }
 }

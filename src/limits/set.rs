@@ -25,6 +25,43 @@ pub enum Form {
     Rate,
 }
 
+/// The status tags a value may carry (project rule): the tag alone, or followed by `: why`.
+pub const STATUS_TAGS: [&str; 4] = ["confirmed", "derived", "from memory", "common practice, no source"];
+
+/// Where a value comes from and how far it can be trusted.
+#[derive(Debug, Clone, PartialEq, serde::Serialize)]
+pub struct Provenance {
+    /// One of [`STATUS_TAGS`], optionally followed by `: why`.
+    pub status: String,
+    /// Document, edition and table, clause, equation or page.
+    pub source: String,
+    /// When the value is the stricter of candidates the sources do not settle: the candidates and
+    /// why this one was taken.
+    pub stricter_choice: Option<String>,
+}
+
+impl Provenance {
+    /// The status tag (the text before any `:`).
+    pub fn tag(&self) -> &str {
+        self.status.split(':').next().unwrap_or("").trim()
+    }
+
+    /// True when the value is from memory.
+    pub fn is_from_memory(&self) -> bool {
+        self.tag() == "from memory"
+    }
+
+    /// `[status]  source`, then `stricter choice: why` on a new line after `pad` when the value
+    /// is a stricter choice; for reports.
+    pub fn labelled(&self, pad: &str) -> String {
+        let mut t = format!("[{}]  {}", self.status, self.source);
+        if let Some(why) = &self.stricter_choice {
+            t.push_str(&format!("\n{pad}stricter choice: {why}"));
+        }
+        t
+    }
+}
+
 /// One piece of a limit, valid for `from_s < t ≤ to_s` (the first piece includes `from_s`).
 #[derive(Debug, Clone, PartialEq)]
 pub struct Segment {
@@ -41,14 +78,12 @@ pub struct Segment {
     pub time_exponent: f64,
     /// Exponent k of C_α (0 or −1).
     pub alpha_exponent: f64,
-    /// Status of this piece.
-    pub status: String,
-    /// Where the piece comes from (row, clause, equation).
-    pub source: String,
+    /// Status and source of this piece (row, clause, equation).
+    pub provenance: Provenance,
 }
 
 /// The C_α rule: α clamped to [min, max], expressed in rad or mrad for the coefficient.
-#[derive(Debug, Clone, Copy, PartialEq)]
+#[derive(Debug, Clone, PartialEq)]
 pub struct CAlpha {
     /// Smallest C_α, rad.
     pub min_rad: f64,
@@ -56,6 +91,8 @@ pub struct CAlpha {
     pub max_rad: f64,
     /// True when the document writes C_α in mrad (Directive 2006/25/EC).
     pub in_mrad: bool,
+    /// Status and source of the bounds.
+    pub provenance: Provenance,
 }
 
 impl CAlpha {
@@ -67,7 +104,7 @@ impl CAlpha {
 }
 
 /// One piece of the averaging field of view γ(t) = c·t^e rad, for `from_s < t ≤ to_s`.
-#[derive(Debug, Clone, Copy, PartialEq)]
+#[derive(Debug, Clone, PartialEq)]
 pub struct FieldOfView {
     /// Start, s.
     pub from_s: f64,
@@ -77,6 +114,40 @@ pub struct FieldOfView {
     pub coefficient_rad: f64,
     /// e.
     pub time_exponent: f64,
+    /// Status and source of this piece.
+    pub provenance: Provenance,
+}
+
+impl FieldOfView {
+    /// γ at duration `t`, rad.
+    pub fn at(&self, t: f64) -> f64 {
+        self.coefficient_rad * t.powf(self.time_exponent)
+    }
+}
+
+/// The IEC 62471 risk groups a hazard's time bases stand for, in order.
+pub const GROUP_NAMES: [&str; 3] = ["Exempt", "RG1", "RG2"];
+
+/// A field of view the set gives for one risk-group time base, in place of the hazard's
+/// `field_of_view` at that time.
+#[derive(Debug, Clone, PartialEq)]
+pub struct GroupFieldOfView {
+    /// γ, rad.
+    pub rad: f64,
+    /// Status and source.
+    pub provenance: Provenance,
+}
+
+/// The IEC 62471 risk-group data of a hazard: time bases and, where they differ from the
+/// exposure field of view at those times, the fields of view of the groups.
+#[derive(Debug, Clone, PartialEq)]
+pub struct RiskGroupBases {
+    /// Exempt, RG1 and RG2 time bases, s.
+    pub time_bases_s: [f64; 3],
+    /// Status and source of the time bases.
+    pub provenance: Provenance,
+    /// Field of view at each time base where the set gives one of its own (Exempt, RG1, RG2).
+    pub field_of_view: [Option<GroupFieldOfView>; 3],
 }
 
 /// When a hazard applies.
@@ -115,8 +186,8 @@ pub struct Hazard {
     pub field_of_view: Vec<FieldOfView>,
     /// The limit, piecewise in t.
     pub limits: Vec<Segment>,
-    /// IEC 62471 risk-group time bases (Exempt, RG1, RG2), s.
-    pub risk_group_time_bases_s: Option<[f64; 3]>,
+    /// IEC 62471 risk-group time bases (Exempt, RG1, RG2) with their status and fields of view.
+    pub risk_groups: Option<RiskGroupBases>,
     /// Status of the hazard's values as a whole.
     pub status: String,
 }
@@ -142,18 +213,58 @@ pub struct LimitSet {
     pub origin: String,
 }
 
+impl Hazard {
+    /// Every value of the hazard that carries its own status, as (what, provenance): limit
+    /// pieces, field-of-view pieces, the C_α rule, the risk-group time bases and their fields of
+    /// view.
+    pub fn values(&self) -> Vec<(String, &Provenance)> {
+        let mut out: Vec<(String, &Provenance)> = Vec::new();
+        for (i, s) in self.limits.iter().enumerate() {
+            out.push((format!("limit[{i}]"), &s.provenance));
+        }
+        for (i, f) in self.field_of_view.iter().enumerate() {
+            out.push((format!("field_of_view[{i}]"), &f.provenance));
+        }
+        if let Some(c) = &self.c_alpha {
+            out.push(("c_alpha".to_string(), &c.provenance));
+        }
+        if let Some(rg) = &self.risk_groups {
+            out.push(("risk_groups.time_bases_s".to_string(), &rg.provenance));
+            for (g, f) in GROUP_NAMES.iter().zip(&rg.field_of_view) {
+                if let Some(f) = f {
+                    out.push((format!("risk_groups.field_of_view ({g})"), &f.provenance));
+                }
+            }
+        }
+        out
+    }
+}
+
 impl LimitSet {
-    /// Counts of segments by status text (confirmed, from memory, derived …).
+    /// Counts of the set's values by status tag (confirmed, derived, from memory …): limit
+    /// pieces, field-of-view pieces, C_α rules and risk-group time bases and fields of view.
     pub fn status_counts(&self) -> Vec<(String, usize)> {
         let mut out: Vec<(String, usize)> = Vec::new();
-        for s in self.hazards.iter().flat_map(|h| &h.limits) {
-            let key = s.status.split(':').next().unwrap_or("").trim().to_string();
+        for (_, p) in self.hazards.iter().flat_map(Hazard::values) {
+            let key = p.tag().to_string();
             match out.iter_mut().find(|(k, _)| *k == key) {
                 Some((_, n)) => *n += 1,
                 None => out.push((key, 1)),
             }
         }
         out
+    }
+
+    /// Every value taken as the stricter of candidates, as "hazard id, key: why".
+    pub fn stricter_choices(&self) -> Vec<String> {
+        self.hazards
+            .iter()
+            .flat_map(|h| {
+                h.values().into_iter().filter_map(move |(k, p)| {
+                    p.stricter_choice.as_ref().map(|why| format!("{}, {k}: {why}", h.id))
+                })
+            })
+            .collect()
     }
 
     /// A hazard by id.
@@ -193,7 +304,7 @@ struct RawHazard {
     c_alpha: Option<RawCAlpha>,
     #[serde(default)]
     field_of_view: Vec<RawFov>,
-    risk_group_time_bases_s: Option<[f64; 3]>,
+    risk_groups: Option<RawRiskGroups>,
     limit: Vec<RawSegment>,
 }
 
@@ -203,6 +314,9 @@ struct RawCAlpha {
     min: String,
     max: String,
     unit: String,
+    status: String,
+    source: String,
+    stricter_choice: Option<String>,
 }
 
 #[derive(Deserialize)]
@@ -213,6 +327,30 @@ struct RawFov {
     coefficient_rad: f64,
     #[serde(default)]
     time_exponent: f64,
+    status: String,
+    source: String,
+    stricter_choice: Option<String>,
+}
+
+#[derive(Deserialize)]
+#[serde(deny_unknown_fields)]
+struct RawRiskGroups {
+    time_bases_s: [f64; 3],
+    status: String,
+    source: String,
+    stricter_choice: Option<String>,
+    #[serde(default)]
+    field_of_view: Vec<RawGroupFov>,
+}
+
+#[derive(Deserialize)]
+#[serde(deny_unknown_fields)]
+struct RawGroupFov {
+    group: String,
+    rad: f64,
+    status: String,
+    source: String,
+    stricter_choice: Option<String>,
 }
 
 #[derive(Deserialize)]
@@ -229,6 +367,48 @@ struct RawSegment {
     alpha_exponent: f64,
     status: String,
     source: String,
+    stricter_choice: Option<String>,
+}
+
+/// Checks a `status`: one of [`STATUS_TAGS`], alone or followed by `: why`.
+fn check_status(status: &str, k: KeyName<'_>) -> Result<()> {
+    let tag = status.split(':').next().unwrap_or("").trim();
+    let rest = status.trim_start().strip_prefix(tag).unwrap_or("");
+    if STATUS_TAGS.contains(&tag) && (rest.trim().is_empty() || rest.starts_with(':')) {
+        return Ok(());
+    }
+    Err(Error::data(format!(
+        "{}: '{status}' is not a status; write confirmed, derived, from memory or common practice, no source, \
+         optionally followed by ': why'",
+        k("status")
+    )))
+}
+
+/// Checks a value's `status`, `source` and optional `stricter_choice` (keys named by `k`).
+fn provenance(
+    status: &str,
+    source: &str,
+    stricter_choice: Option<&String>,
+    k: KeyName<'_>,
+) -> Result<Provenance> {
+    check_status(status, k)?;
+    if source.trim().is_empty() {
+        return Err(Error::data(format!(
+            "{}: must name the document, edition and table, clause or page the value comes from",
+            k("source")
+        )));
+    }
+    if stricter_choice.is_some_and(|w| w.trim().is_empty()) {
+        return Err(Error::data(format!(
+            "{}: must name the candidates and why this one is the stricter (or leave the key out)",
+            k("stricter_choice")
+        )));
+    }
+    Ok(Provenance {
+        status: status.to_string(),
+        source: source.to_string(),
+        stricter_choice: stricter_choice.cloned(),
+    })
 }
 
 fn expected_unit(q: LimitQuantity, f: Form) -> &'static [&'static str] {
@@ -302,15 +482,42 @@ fn parse_hazard(h: &RawHazard, hi: usize, origin: &str) -> Result<Hazard> {
     if h.luminance_below_cd_m2.is_some_and(|v| !(v > 0.0 && v.is_finite())) {
         return Err(Error::data(format!("{}: must be a finite number above 0", at("luminance_below_cd_m2"))));
     }
-    if let Some(tb) = h.risk_group_time_bases_s
-        && tb.iter().any(|v| !(*v > 0.0 && *v <= MAX_LIMIT_S))
-    {
+    check_status(&h.status, &at)?;
+    let field_of_view = parse_fields_of_view(h, &at)?;
+    let risk_groups = h.risk_groups.as_ref().map(|r| parse_risk_groups(r, &at)).transpose()?;
+    let limits = parse_segments(h, quantity, &at)?;
+    let c_alpha = h.c_alpha.as_ref().map(|c| parse_c_alpha(c, &at)).transpose()?;
+    let conditions = conditions(h);
+    let group_fov = risk_groups.as_ref().is_some_and(|r| r.field_of_view.iter().any(Option::is_some));
+    if quantity == LimitQuantity::Irradiance && (!h.field_of_view.is_empty() || group_fov) {
+        let key = if group_fov { "risk_groups.field_of_view" } else { "field_of_view" };
         return Err(Error::data(format!(
-            "{}: time bases must be above 0 s and at most {MAX_LIMIT_S} s",
-            at("risk_group_time_bases_s")
+            "{}: only radiance hazards have an averaging field of view",
+            at(key)
         )));
     }
+    Ok(Hazard {
+        id: h.id.clone(),
+        name: h.name.clone(),
+        clause: h.clause.clone(),
+        weighting,
+        band_nm: (h.band_nm[0], h.band_nm[1]),
+        quantity,
+        conditions,
+        c_alpha,
+        field_of_view,
+        limits,
+        risk_groups,
+        status: h.status.clone(),
+    })
+}
+
+/// The hazard's `[[hazard.field_of_view]]` pieces: bounded, positive, each with its status and
+/// source, following each other without gap or overlap.
+fn parse_fields_of_view(h: &RawHazard, at: KeyName<'_>) -> Result<Vec<FieldOfView>> {
+    let mut out: Vec<FieldOfView> = Vec::new();
     for (fi, f) in h.field_of_view.iter().enumerate() {
+        let k = |x: &str| at(&format!("field_of_view[{fi}].{x}"));
         let ok = f.from_s >= 0.0
             && f.from_s < f.to_s
             && (f.to_s <= MAX_LIMIT_S || f.to_s == f64::INFINITY)
@@ -324,38 +531,60 @@ fn parse_hazard(h: &RawHazard, hi: usize, origin: &str) -> Result<Hazard> {
                 at(&format!("field_of_view[{fi}]"))
             )));
         }
+        if let Some(prev) = out.last()
+            && (f.from_s - prev.to_s).abs() > 1e-12 * prev.to_s.max(1.0)
+        {
+            return Err(Error::data(format!(
+                "{}: field-of-view pieces must follow each other without gap or overlap: this one starts at {} s, \
+                 the previous ends at {} s",
+                k("from_s"),
+                f.from_s,
+                prev.to_s
+            )));
+        }
+        out.push(FieldOfView {
+            from_s: f.from_s,
+            to_s: f.to_s,
+            coefficient_rad: f.coefficient_rad,
+            time_exponent: f.time_exponent,
+            provenance: provenance(&f.status, &f.source, f.stricter_choice.as_ref(), &k)?,
+        });
     }
-    let limits = parse_segments(h, quantity, &at)?;
-    let c_alpha = h.c_alpha.as_ref().map(|c| parse_c_alpha(c, &at)).transpose()?;
-    let conditions = conditions(h);
-    if quantity == LimitQuantity::Irradiance && !h.field_of_view.is_empty() {
+    Ok(out)
+}
+
+/// The hazard's `[hazard.risk_groups]` table: three time bases with their status and source, and
+/// the groups' own fields of view (`[[hazard.risk_groups.field_of_view]]`, `group` = Exempt, RG1
+/// or RG2, at most once each).
+fn parse_risk_groups(r: &RawRiskGroups, at: KeyName<'_>) -> Result<RiskGroupBases> {
+    if r.time_bases_s.iter().any(|v| !(*v > 0.0 && *v <= MAX_LIMIT_S)) {
         return Err(Error::data(format!(
-            "{}: only radiance hazards have an averaging field of view",
-            at("field_of_view")
+            "{}: time bases must be above 0 s and at most {MAX_LIMIT_S} s",
+            at("risk_groups.time_bases_s")
         )));
     }
-    Ok(Hazard {
-        id: h.id.clone(),
-        name: h.name.clone(),
-        clause: h.clause.clone(),
-        weighting,
-        band_nm: (h.band_nm[0], h.band_nm[1]),
-        quantity,
-        conditions,
-        c_alpha,
-        field_of_view: h
-            .field_of_view
-            .iter()
-            .map(|f| FieldOfView {
-                from_s: f.from_s,
-                to_s: f.to_s,
-                coefficient_rad: f.coefficient_rad,
-                time_exponent: f.time_exponent,
-            })
-            .collect(),
-        limits,
-        risk_group_time_bases_s: h.risk_group_time_bases_s,
-        status: h.status.clone(),
+    let k = |x: &str| at(&format!("risk_groups.{x}"));
+    let mut field_of_view: [Option<GroupFieldOfView>; 3] = [None, None, None];
+    for (i, f) in r.field_of_view.iter().enumerate() {
+        let kf = |x: &str| at(&format!("risk_groups.field_of_view[{i}].{x}"));
+        let Some(g) = GROUP_NAMES.iter().position(|n| *n == f.group) else {
+            return Err(Error::data(format!("{}: '{}' is not Exempt, RG1 or RG2", kf("group"), f.group)));
+        };
+        if field_of_view[g].is_some() {
+            return Err(Error::data(format!("{}: {} is given twice", kf("group"), f.group)));
+        }
+        if !(f.rad > 0.0 && f.rad < std::f64::consts::PI) {
+            return Err(Error::data(format!("{}: must be above 0 and below π rad", kf("rad"))));
+        }
+        field_of_view[g] = Some(GroupFieldOfView {
+            rad: f.rad,
+            provenance: provenance(&f.status, &f.source, f.stricter_choice.as_ref(), &kf)?,
+        });
+    }
+    Ok(RiskGroupBases {
+        time_bases_s: r.time_bases_s,
+        provenance: provenance(&r.status, &r.source, r.stricter_choice.as_ref(), &k)?,
+        field_of_view,
     })
 }
 
@@ -471,12 +700,12 @@ fn parse_segment(
         coefficient: s.coefficient,
         time_exponent: s.time_exponent,
         alpha_exponent: s.alpha_exponent,
-        status: s.status.clone(),
-        source: s.source.clone(),
+        provenance: provenance(&s.status, &s.source, s.stricter_choice.as_ref(), k)?,
     })
 }
 
-/// The hazard's `c_alpha = { min, max, unit }` rule.
+/// The hazard's `[hazard.c_alpha]` rule: `min`, `max`, `unit`, `status`, `source` and an
+/// optional `stricter_choice`.
 fn parse_c_alpha(c: &RawCAlpha, at: KeyName<'_>) -> Result<CAlpha> {
     use crate::base::quantity::SiValue;
     let parse = |t: &str, key: &str| {
@@ -493,7 +722,9 @@ fn parse_c_alpha(c: &RawCAlpha, at: KeyName<'_>) -> Result<CAlpha> {
     if !(min.si() > 0.0 && min.si() < max.si() && max.si() < std::f64::consts::PI) {
         return Err(Error::data(format!("{}: need 0 < min < max < π rad", at("c_alpha"))));
     }
-    Ok(CAlpha { min_rad: min.si(), max_rad: max.si(), in_mrad })
+    let k = |x: &str| at(&format!("c_alpha.{x}"));
+    let provenance = provenance(&c.status, &c.source, c.stricter_choice.as_ref(), &k)?;
+    Ok(CAlpha { min_rad: min.si(), max_rad: max.si(), in_mrad, provenance })
 }
 
 /// The hazard's conditions of application, in the order the engine checks them.

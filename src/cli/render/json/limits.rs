@@ -23,8 +23,14 @@ pub fn check(r: &LimitsAssessment) -> String {
                 "group": g.group.map(|x| x.name()),
                 "reason": g.reason,
                 "not_applicable": g.not_applicable,
+                "lower_bound": g.lower_bound,
                 "ratios": g.ratios,
                 "time_bases_s": g.time_bases_s,
+                "time_bases": provenance_json(&g.time_bases),
+                "fields_of_view_rad": g.fields_of_view_rad,
+                "field_of_view_provenance": provenance_json(&g.field_of_view_provenance),
+                "from_memory": g.from_memory,
+                "stricter_choices": g.stricter_choices,
             })).collect::<Vec<_>>(),
             "overall": c.overall.map(|x| x.name()),
             "not_assessed": c.not_assessed,
@@ -49,7 +55,9 @@ pub fn check(r: &LimitsAssessment) -> String {
             "weighted": h.weighted.map(|q| json!({ "value": q, "unit": h.quantity_unit })),
             "averaged": h.averaged.map(|q| json!({ "value": q, "unit": h.quantity_unit })),
             "field_of_view_rad": h.field_of_view_rad,
+            "field_of_view_provenance": provenance_json(&h.field_of_view_provenance),
             "c_alpha": h.c_alpha,
+            "c_alpha_provenance": provenance_json(&h.c_alpha_provenance),
             "exposure": h.exposure.map(|(x, u)| json!({ "value": x, "unit": u })),
             "limit": h.limit.map(|(x, u)| json!({ "value": x, "unit": u })),
             "ratio": h.ratio,
@@ -59,12 +67,18 @@ pub fn check(r: &LimitsAssessment) -> String {
             "verdict": verdict_json(&h.verdict),
             "coverage": h.coverage.as_ref().map(coverage_json),
             "from_memory": h.from_memory,
+            "stricter_choices": h.stricter_choices,
             "limit_source": h.source,
         })).collect::<Vec<_>>(),
         "risk_group": classification,
         "notes": r.notes,
     });
     pretty(&doc)
+}
+
+/// A value's `{status, source, stricter_choice}` (or null, or a list of them).
+fn provenance_json<T: serde::Serialize>(p: &T) -> Value {
+    serde_json::to_value(p).unwrap_or(Value::Null)
 }
 
 /// The maximum exposure time: seconds, not reached, or below the range.

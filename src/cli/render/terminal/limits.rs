@@ -5,7 +5,8 @@ use std::fmt::Write;
 use retidose::base::quantity::SiValue;
 use retidose::limits::report::{LIMITS_CAUTION, LimitsAssessment};
 use retidose::limits::{
-    Classification, Form, Hazard, HazardResult, LimitQuantity, LimitSet, builtin_sets, builtin_weightings,
+    Classification, Form, Hazard, HazardResult, LimitQuantity, LimitSet, RiskGroup, builtin_sets,
+    builtin_weightings,
 };
 
 use super::{duration_text, notes_and_caution, t_max_text};
@@ -20,8 +21,21 @@ pub fn sets() -> String {
         let _ = writeln!(o, "{}", s.id);
         let _ = writeln!(o, "  {}", s.document);
         let _ = writeln!(o, "  edition: {}; errata: {}", s.edition, s.errata);
-        let _ =
-            writeln!(o, "  {} hazards; limit pieces: {}  ({})", s.hazards.len(), counts.join(", "), s.origin);
+        let _ = writeln!(
+            o,
+            "  {} hazards; values (limit pieces, fields of view, C_α, risk-group time bases): {}  ({})",
+            s.hazards.len(),
+            counts.join(", "),
+            s.origin
+        );
+        let stricter = s.stricter_choices().len();
+        if stricter > 0 {
+            let _ = writeln!(
+                o,
+                "  {stricter} value(s) taken as the stricter of candidates (see `retidose limits show {}`)",
+                s.id
+            );
+        }
     }
     let _ = writeln!(o, "\nWeighting functions");
     for w in builtin_weightings() {
@@ -46,6 +60,9 @@ pub fn set(s: &LimitSet) -> String {
     o
 }
 
+/// The risk groups a hazard's time bases stand for, in order.
+const GROUP_NAMES: [&str; 3] = [RiskGroup::Exempt.name(), RiskGroup::Rg1.name(), RiskGroup::Rg2.name()];
+
 /// One hazard of a set: band, weighting, conditions, C_α, field of view and limit pieces.
 fn hazard_definition(o: &mut String, h: &Hazard) {
     let w = h.weighting.as_deref().unwrap_or("unweighted");
@@ -61,23 +78,26 @@ fn hazard_definition(o: &mut String, h: &Hazard) {
     for c in &h.conditions {
         let _ = writeln!(o, "  applies: {c:?}");
     }
-    if let Some(c) = h.c_alpha {
+    let _ = writeln!(o, "  status: {}", h.status);
+    if let Some(c) = &h.c_alpha {
         let _ = writeln!(
             o,
-            "  C_α = α limited to {}–{} mrad{}",
+            "  C_α = α limited to {}–{} mrad{}  {}",
             num(c.min_rad * 1e3),
             num(c.max_rad * 1e3),
-            if c.in_mrad { " (coefficients with C_α in mrad)" } else { " (coefficients with C_α in rad)" }
+            if c.in_mrad { " (coefficients with C_α in mrad)" } else { " (coefficients with C_α in rad)" },
+            c.provenance.labelled("    ")
         );
     }
     for f in &h.field_of_view {
         let _ = writeln!(
             o,
-            "  field of view {}–{} s: {} rad × t^{}",
+            "  field of view {}–{} s: {} rad × t^{}  {}",
             num(f.from_s),
             num(f.to_s),
             num(f.coefficient_rad),
-            f.time_exponent
+            f.time_exponent,
+            f.provenance.labelled("    ")
         );
     }
     for l in &h.limits {
@@ -87,24 +107,37 @@ fn hazard_definition(o: &mut String, h: &Hazard) {
         };
         let _ = writeln!(
             o,
-            "  {}–{} s: {form} ≤ {} × t^{} × C_α^{}  [{}]  {}",
+            "  {}–{} s: {form} ≤ {} × t^{} × C_α^{}  {}",
             num(l.from_s),
             num(l.to_s),
             num(l.coefficient),
             l.time_exponent,
             l.alpha_exponent,
-            l.status,
-            l.source
+            l.provenance.labelled("    ")
         );
     }
-    if let Some(b) = h.risk_group_time_bases_s {
+    if let Some(rg) = &h.risk_groups {
+        let b = rg.time_bases_s;
         let _ = writeln!(
             o,
-            "  risk-group time bases (Exempt, RG1, RG2): {} s, {} s, {} s",
+            "  risk-group time bases (Exempt, RG1, RG2): {} s, {} s, {} s  {}",
             num(b[0]),
             num(b[1]),
-            num(b[2])
+            num(b[2]),
+            rg.provenance.labelled("    ")
         );
+        for (i, f) in rg.field_of_view.iter().enumerate() {
+            if let Some(f) = f {
+                let _ = writeln!(
+                    o,
+                    "  risk-group field of view, {} ({} s): {} mrad  {}",
+                    GROUP_NAMES[i],
+                    num(b[i]),
+                    num(f.rad * 1e3),
+                    f.provenance.labelled("    ")
+                );
+            }
+        }
     }
 }
 
@@ -141,8 +174,18 @@ fn hazard(o: &mut String, h: &HazardResult) {
     if let (Some(a), Some(g)) = (h.averaged, h.field_of_view_rad) {
         let _ = writeln!(o, "  averaged        {} {} over {} mrad", num(a), h.quantity_unit, num(g * 1e3));
     }
+    if let (Some(g), Some(p)) = (h.field_of_view_rad, &h.field_of_view_provenance) {
+        let _ = writeln!(o, "  field of view   {} mrad  [{}]  {}", num(g * 1e3), p.status, p.source);
+    }
     if let Some(c) = h.c_alpha {
-        let _ = writeln!(o, "  C_α             {}", num(c));
+        match &h.c_alpha_provenance {
+            Some(p) => {
+                let _ = writeln!(o, "  C_α             {}  [{}]  {}", num(c), p.status, p.source);
+            }
+            None => {
+                let _ = writeln!(o, "  C_α             {}", num(c));
+            }
+        }
     }
     if let (Some((x, u)), Some((l, _))) = (h.exposure, h.limit) {
         let _ = writeln!(o, "  exposure/limit  {} / {} {u}", num(x), num(l));
@@ -165,6 +208,9 @@ fn hazard(o: &mut String, h: &HazardResult) {
     let _ = writeln!(o, "  verdict         {}{partial}{memo}", h.verdict.text());
     if !h.from_memory.is_empty() {
         let _ = writeln!(o, "  from memory     {}", h.from_memory.join("; "));
+    }
+    for c in &h.stricter_choices {
+        let _ = writeln!(o, "  stricter choice {c}");
     }
     if !h.source.is_empty() {
         let _ = writeln!(o, "  limit from      {}", h.source);
@@ -193,6 +239,25 @@ fn risk_group(o: &mut String, c: &Classification) {
             num(g.time_bases_s[2]),
             ratios.join(", ")
         );
+        let _ = writeln!(o, "    time bases [{}]  {}", g.time_bases.status, g.time_bases.source);
+        for (i, name) in GROUP_NAMES.iter().enumerate() {
+            if let (Some(f), Some(p)) = (g.fields_of_view_rad[i], &g.field_of_view_provenance[i]) {
+                let _ = writeln!(
+                    o,
+                    "    field of view at {name} ({} s): {} mrad  [{}]  {}",
+                    num(g.time_bases_s[i]),
+                    num(f * 1e3),
+                    p.status,
+                    p.source
+                );
+            }
+        }
+        if !g.from_memory.is_empty() {
+            let _ = writeln!(o, "    from memory: {}", g.from_memory.join("; "));
+        }
+        for x in &g.stricter_choices {
+            let _ = writeln!(o, "    stricter choice: {x}");
+        }
     }
     let overall = c.overall.map_or("—", |x| x.name());
     let lb = if c.not_assessed.is_empty() { "" } else { " (lower bound: some hazards not assessed)" };
