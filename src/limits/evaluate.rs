@@ -128,6 +128,9 @@ pub struct HazardResult {
     /// Values this result used that are the stricter of candidates the sources do not settle:
     /// what, the value and why.
     pub stricter_choices: Vec<String>,
+    /// True when the ratio lies within 20 % of 1 (0.8–1.25) on a spectrum sampled coarser than
+    /// [`crate::spectrum::COARSE_STEP_NM`]: the sampling alone could move it across the limit.
+    pub near_limit_on_coarse_spectrum: bool,
     /// Source of the limit piece used.
     pub source: String,
 }
@@ -302,6 +305,7 @@ fn blank_result(h: &Hazard) -> HazardResult {
         lower_bound_ratio: None,
         from_memory: Vec::new(),
         stricter_choices: Vec::new(),
+        near_limit_on_coarse_spectrum: false,
         source: String::new(),
     };
     if let Some(w) = h.weighting.as_deref().and_then(find_weighting)
@@ -525,6 +529,8 @@ fn evaluate_on(
         );
     }
     out.ratio = Some(ratio);
+    out.near_limit_on_coarse_spectrum =
+        spectrum.max_step_nm() > crate::spectrum::COARSE_STEP_NM && (0.8..=1.25).contains(&ratio);
     out.verdict = if ratio <= 1.0 { Verdict::Within } else { Verdict::Exceeds };
     out
 }

@@ -125,6 +125,16 @@ pub fn assess_limits(r: &LimitsRequest<'_>) -> Result<LimitsAssessment> {
         )));
     }
     let c = at_cornea(r.source, r.filters)?;
+    let source_notes: Vec<String> = c
+        .notes
+        .iter()
+        .filter(|n| {
+            n.starts_with("assumption stated by the user")
+                || n.contains("sampled too coarsely")
+                || n.contains("coarser than")
+        })
+        .cloned()
+        .collect();
     let e = Exposure {
         irradiance: &c.irradiance,
         radiance: c.radiance.as_ref(),
@@ -137,6 +147,14 @@ pub fn assess_limits(r: &LimitsRequest<'_>) -> Result<LimitsAssessment> {
     let hazards: Vec<HazardResult> =
         evaluate_set(r.set, &e).into_iter().filter(|h| r.only.is_empty() || r.only.contains(&h.id)).collect();
     let mut notes = r.set.notes.clone();
+    notes.extend(source_notes);
+    if hazards.iter().any(|h| h.near_limit_on_coarse_spectrum) {
+        notes.push(format!(
+            "a verdict lies within 20 % of its limit on a spectrum sampled coarser than {} nm: the sampling alone could \
+             move it across the limit; measure at a finer spacing",
+            crate::spectrum::COARSE_STEP_NM
+        ));
+    }
     let unassessed: Vec<&str> = hazards
         .iter()
         .filter(|h| matches!(h.verdict, Verdict::NotAssessed(_)))

@@ -95,7 +95,11 @@ fn a_declared_emission_range_gives_full_verdicts_and_is_recorded() {
         assert!(!h.partial, "{}", h.id);
     }
     let r = a.retina.as_ref().unwrap();
-    assert!(r.sources[0].notes.iter().any(|n| n.contains("assumption stated by the user")), "{:?}", r.sources[0].notes);
+    assert!(
+        r.sources[0].notes.iter().any(|n| n.contains("assumption stated by the user")),
+        "{:?}",
+        r.sources[0].notes
+    );
 }
 
 #[test]
@@ -108,16 +112,26 @@ fn a_filter_tabulated_over_part_of_the_band_cannot_hide_an_exceedance() {
 }
 
 #[test]
-fn coarse_sampling_is_reported() {
-    led_file("led450-10nm.csv", 10);
+fn coarse_sampling_is_reported_and_a_near_limit_verdict_marked() {
+    let p = led_file("led450-10nm.csv", 10);
     let a = run(&scenario("led450-10nm.csv", "", ""));
     let notes = &a.retina.as_ref().unwrap().sources[0].notes;
     assert!(notes.iter().any(|n| n.contains("coarser than 5 nm")), "{notes:?}");
+    // 1 W/m² of this LED over 1 h through a 0.05 rad source: L_B/limit ≈ 0.94, within 20 % of 1.
+    Command::cargo_bin("retidose")
+        .unwrap()
+        .args(["limits", "check", p.to_str().unwrap(), "--irradiance", "1 W/m2", "--subtense", "0.05 rad"])
+        .args(["--for", "1 h", "--hazard", "blue-light", "--emission-range", "measured"])
+        .assert()
+        .code(0)
+        .stdout(predicate::str::contains("the sampling could decide it"))
+        .stdout(predicate::str::contains("assumption stated by the user"));
 }
 
 #[test]
 fn a_built_in_blackbody_gets_a_retinal_thermal_verdict() {
-    let text = scenario("blackbody:3000K", "", "").replace("irradiance = \"2 W/m2\"\nsubtense", "radiance = \"1e4 W/m2/sr\"\nsubtense");
+    let text = scenario("blackbody:3000K", "", "")
+        .replace("irradiance = \"2 W/m2\"\nsubtense", "radiance = \"1e4 W/m2/sr\"\nsubtense");
     let a = run(&text);
     let h = a.limits[0].hazards.iter().find(|h| h.id == "retinal-thermal").unwrap();
     assert!(matches!(h.verdict, Verdict::Within | Verdict::Exceeds), "{:?}", h.verdict);

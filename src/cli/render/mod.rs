@@ -57,7 +57,11 @@ fn basis_name(b: Basis) -> &'static str {
 /// covered band says so.
 fn verdict_word(h: &HazardResult) -> &'static str {
     match (&h.verdict, h.partial) {
+        (Verdict::Within, _) if h.near_limit_on_coarse_spectrum => "within limit (near it, coarse spectrum)",
         (Verdict::Within, _) => "within limit",
+        (Verdict::Exceeds, false) if h.near_limit_on_coarse_spectrum => {
+            "EXCEEDS (near the limit, coarse spectrum)"
+        }
         (Verdict::Exceeds, false) => "EXCEEDS",
         (Verdict::Exceeds, true) => "EXCEEDS on the measured band alone",
         (Verdict::NotAssessed(_), _) => "not assessed",

@@ -63,6 +63,7 @@ pub fn check(r: &LimitsAssessment) -> String {
             "ratio": h.ratio,
             "lower_bound_ratio": h.lower_bound_ratio,
             "partial_band": h.partial,
+            "near_limit_on_coarse_spectrum": h.near_limit_on_coarse_spectrum,
             "t_max": t_max_json(&h.t_max),
             "verdict": verdict_json(&h.verdict),
             "coverage": h.coverage.as_ref().map(coverage_json),

@@ -205,7 +205,12 @@ fn hazard(o: &mut String, h: &HazardResult) {
     } else {
         ""
     };
-    let _ = writeln!(o, "  verdict         {}{partial}{memo}", h.verdict.text());
+    let coarse = if h.near_limit_on_coarse_spectrum {
+        " — within 20 % of the limit on a spectrum sampled coarser than 5 nm: the sampling could decide it"
+    } else {
+        ""
+    };
+    let _ = writeln!(o, "  verdict         {}{partial}{coarse}{memo}", h.verdict.text());
     if !h.from_memory.is_empty() {
         let _ = writeln!(o, "  from memory     {}", h.from_memory.join("; "));
     }
