@@ -11,7 +11,7 @@ use retidose::pigment::bleach::BleachReport;
 use retidose::spectrum::Spectrum;
 
 use super::svg::{self, Series};
-use super::{STEP_HEADER, basis_text, num, pupil_line, step_rows, t_max, verdict_word};
+use super::{STEP_HEADER, basis_text, fov_and_c_alpha, num, pupil_line, step_rows, t_max, verdict_word};
 
 /// The document head with its style sheet.
 const HEAD: &str = "<!DOCTYPE html><html lang=\"en\"><head><meta charset=\"utf-8\"><title>retidose assessment</title><style>body{font-family:sans-serif;max-width:980px;margin:2em auto;padding:0 1em;color:#222}table{border-collapse:collapse;margin:.5em 0}td,th{border:1px solid #bbb;padding:3px 7px;font-size:13px}th{background:#eee}.caution{background:#fff4e5;border-left:4px solid #e65100;padding:.4em .8em}.flag{color:#b71c1c;font-weight:bold}svg{max-width:100%;background:#fafafa;margin:.6em 0}</style></head><body>";
@@ -191,7 +191,7 @@ fn limits(o: &mut String, a: &Assessment) {
 fn limits_table(o: &mut String, src: &str, l: &LimitsAssessment) {
     let _ = write!(
         o,
-        "<h3>{} against {}</h3><table><tr><th>hazard</th><th>clause</th><th>ratio</th><th>t_max</th><th>verdict</th></tr>",
+        "<h3>{} against {}</h3><table><tr><th>hazard</th><th>clause</th><th>ratio</th><th>t_max</th><th>field / C_α</th><th>verdict</th></tr>",
         esc(src),
         esc(&l.set_id)
     );
@@ -203,11 +203,12 @@ fn limits_table(o: &mut String, src: &str, l: &LimitsAssessment) {
         };
         let _ = write!(
             o,
-            "<tr><td>{}</td><td>{}</td><td>{}</td><td>{}</td><td{cls}>{}{}{}</td></tr>",
+            "<tr><td>{}</td><td>{}</td><td>{}</td><td>{}</td><td>{}</td><td{cls}>{}{}{}</td></tr>",
             esc(&h.name),
             esc(&h.clause),
             h.ratio.map_or("—".into(), num),
             esc(&t_max(h)),
+            esc(&fov_and_c_alpha(h)),
             verdict_word(h),
             why,
             if h.from_memory.is_empty() { "" } else { " [from memory]" }
@@ -222,6 +223,21 @@ fn limits_table(o: &mut String, src: &str, l: &LimitsAssessment) {
             c.overall.map_or("—", |g| g.name()),
             if c.not_assessed.is_empty() { "" } else { " (a lower bound: some hazards were not assessed)" }
         );
+        if !c.notes.is_empty() {
+            let items: String = c.notes.iter().map(|n| format!("<li>{}</li>", esc(n))).collect();
+            let _ = write!(o, "<ul>{items}</ul>");
+        }
+    }
+    let stricter: Vec<String> = l
+        .hazards
+        .iter()
+        .filter(|h| !h.stricter_choices.is_empty())
+        .map(|h| {
+            format!("<li>stricter choice ({}): {}</li>", esc(&h.name), esc(&h.stricter_choices.join("; ")))
+        })
+        .collect();
+    if !stricter.is_empty() {
+        let _ = write!(o, "<ul>{}</ul>", stricter.concat());
     }
 }
 

@@ -6,7 +6,9 @@ use retidose::assess::{Assessment, SurveyResult};
 use retidose::limits::report::LimitsAssessment;
 use retidose::pigment::bleach::BleachReport;
 
-use super::{STEP_HEADER, basis_text, num, pupil_line, recovery_text, step_rows, t_max, verdict_word};
+use super::{
+    STEP_HEADER, basis_text, fov_and_c_alpha, num, pupil_line, recovery_text, step_rows, t_max, verdict_word,
+};
 
 /// Markdown.
 pub fn assessment(all: &[Assessment]) -> String {
@@ -89,23 +91,37 @@ fn pigment(o: &mut String, b: &BleachReport) {
 fn limits(o: &mut String, src: &str, l: &LimitsAssessment) {
     let _ = writeln!(
         o,
-        "## Exposure limits: {} against {}\n\n| hazard | clause | ratio | t_max | verdict |\n|---|---|---|---|---|",
+        "## Exposure limits: {} against {}\n\n| hazard | clause | ratio | t_max | field / C_α | verdict |\n|---|---|---|---|---|---|",
         md(src),
         l.set_id
     );
     for h in &l.hazards {
         let _ = writeln!(
             o,
-            "| {} | {} | {} | {} | {}{} |",
+            "| {} | {} | {} | {} | {} | {}{} |",
             md(&h.name),
             md(&h.clause),
             h.ratio.map_or("—".into(), num),
             t_max(h),
+            md(&fov_and_c_alpha(h)),
             verdict_word(h),
             if h.from_memory.is_empty() { "" } else { " (from memory)" }
         );
     }
     let _ = writeln!(o);
+    if let Some(Ok(c)) = &l.classification {
+        let _ = writeln!(
+            o,
+            "Risk group (IEC 62471) at {} mm: **{}**{}\n",
+            num(c.distance.get::<uom::si::length::millimeter>()),
+            c.overall.map_or("—", |g| g.name()),
+            if c.not_assessed.is_empty() { "" } else { " (a lower bound: some hazards were not assessed)" }
+        );
+        for n in &c.notes {
+            let _ = writeln!(o, "- {}", md(n));
+        }
+        let _ = writeln!(o);
+    }
 }
 
 /// The guidance comparisons, a row per rule and phase.

@@ -69,6 +69,24 @@ fn verdict_word(h: &HazardResult) -> &'static str {
     }
 }
 
+/// The averaging field of view and C_α a hazard used, each with its status and, when it was
+/// the stricter of unsettled candidates, a mark; "—" when neither applies.
+fn fov_and_c_alpha(h: &HazardResult) -> String {
+    let tag = |p: &Option<retidose::limits::Provenance>| {
+        p.as_ref().map_or(String::new(), |p| {
+            format!(" [{}{}]", p.tag(), if p.stricter_choice.is_some() { ", stricter choice" } else { "" })
+        })
+    };
+    let mut parts = Vec::new();
+    if let Some(g) = h.field_of_view_rad {
+        parts.push(format!("field {} mrad{}", num(g * 1e3), tag(&h.field_of_view_provenance)));
+    }
+    if let Some(c) = h.c_alpha {
+        parts.push(format!("C_α {}{}", num(c), tag(&h.c_alpha_provenance)));
+    }
+    if parts.is_empty() { "—".into() } else { parts.join("; ") }
+}
+
 /// The maximum exposure time, short (the `assess` report); at most this when the band is only
 /// partly covered.
 fn t_max(h: &HazardResult) -> String {

@@ -12,7 +12,7 @@ use retidose::retina::report::RetinaReport;
 
 use super::{paint, table};
 use crate::cli::render::{
-    STEP_HEADER, basis_text, num, pupil_line, recovery_text, step_rows, t_max, verdict_word,
+    STEP_HEADER, basis_text, fov_and_c_alpha, num, pupil_line, recovery_text, step_rows, t_max, verdict_word,
 };
 
 /// The terminal summary.
@@ -197,11 +197,15 @@ fn limits(o: &mut String, src: &str, l: &LimitsAssessment, colour: bool) {
                 h.clause.clone(),
                 h.ratio.map_or("—".into(), num),
                 t_max(h),
+                fov_and_c_alpha(h),
                 format!("{v}{}", if h.from_memory.is_empty() { "" } else { " [from memory]" }),
             ]
         })
         .collect();
-    let _ = writeln!(o, "{}", table(&["hazard", "clause", "ratio", "t_max", "verdict"], rows));
+    let _ = writeln!(o, "{}", table(&["hazard", "clause", "ratio", "t_max", "field / C_α", "verdict"], rows));
+    for h in l.hazards.iter().filter(|h| !h.stricter_choices.is_empty()) {
+        let _ = writeln!(o, "stricter choice ({}): {}", h.name, h.stricter_choices.join("; "));
+    }
     if let Some(Ok(c)) = &l.classification {
         let _ = writeln!(
             o,
@@ -215,6 +219,9 @@ fn limits(o: &mut String, src: &str, l: &LimitsAssessment, colour: bool) {
         }
         if let Some(d) = c.threshold_distance {
             let _ = writeln!(o, "blue-light group at most RG1 beyond {} m", num(d.si()));
+        }
+        for n in &c.notes {
+            let _ = writeln!(o, "  - {n}");
         }
     }
 }
