@@ -5,6 +5,7 @@ use crate::base::quantity::{SiValue, Time};
 use crate::cornea::PlacedSource;
 use crate::cornea::at_cornea;
 use crate::cornea::filter::Filter;
+use crate::cornea::geometry::{Emission, Geometry};
 use crate::limits::risk::explain_exposure_check;
 use crate::limits::{
     Classification, Exposure, HazardResult, LimitSet, MovableSource, Verdict, classify, evaluate_set,
@@ -61,7 +62,8 @@ pub struct LimitsAssessment {
 }
 
 /// The source as one that can be placed at any distance: a spectral intensity, a radiance
-/// with its size, or an irradiance measured at a known distance turned into an intensity by
+/// with its size, a flux as its on-axis intensity, or an irradiance measured at a known
+/// distance turned into an intensity by
 /// the inverse-square law (I = E·d²; valid when the distance is several times the source's size).
 /// The filters of the lamp system go with it.
 fn movable_source(
@@ -76,6 +78,15 @@ fn movable_source(
         (Measure::Irradiance, Some(d)) => {
             let d = d.si();
             s.scaled_as(d * d, Measure::Intensity).map_err(|e| e.to_string())?
+        }
+        // A lamp's flux as the intensity on its axis: Φ/π for a Lambertian emitter (its
+        // brightest direction), Φ/4π for an isotropic one.
+        (Measure::Flux, _) => {
+            let per_sr = match &source.geometry {
+                Geometry::Flux { emission: Emission::Lambertian, .. } => 1.0 / std::f64::consts::PI,
+                _ => 1.0 / (4.0 * std::f64::consts::PI),
+            };
+            s.scaled_as(per_sr, Measure::Intensity).map_err(|e| e.to_string())?
         }
         (m, _) => {
             return Err(format!(

@@ -186,3 +186,19 @@ fn empty_lists_are_errors() {
         assert!(e.to_string().contains(key) && e.to_string().contains("empty list"), "{e}");
     }
 }
+
+#[test]
+fn a_uv_lamp_given_by_its_flux_gets_a_risk_group() {
+    // IEC 62471 cl. 5.2: assessed at 200 mm; a Lambertian lamp's flux taken as its on-axis
+    // intensity Φ/π (its brightest direction).
+    let out = Command::cargo_bin("retidose")
+        .unwrap()
+        .args(["limits", "check", "uva-365-led", "--radiant-flux", "0.5 W", "--emission", "lambertian"])
+        .args(["--distance", "0.2 m", "--size", "3 mm", "--for", "1 h", "--classify", "--format", "json"])
+        .output()
+        .unwrap();
+    let v: serde_json::Value = serde_json::from_slice(&out.stdout).unwrap();
+    assert_eq!(v["risk_group"]["assessed"], true, "{}", v["risk_group"]);
+    let uv = v["hazards"].as_array().unwrap().iter().find(|h| h["id"] == "actinic-uv").unwrap();
+    assert_eq!(uv["partial_band"], false);
+}
