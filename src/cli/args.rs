@@ -12,28 +12,28 @@ use retidose::spectrum::scale::ScaleTarget;
 #[group(multiple = false)]
 pub struct ScaleArgs {
     /// Scale to a measured illuminance, e.g. "300 lx" (makes a spectral irradiance)
-    #[arg(long, value_name = "ILLUMINANCE")]
+    #[arg(long, allow_hyphen_values = true, value_name = "ILLUMINANCE")]
     illuminance: Option<String>,
     /// Scale to a measured luminance, e.g. "100 cd/m2" (makes a spectral radiance)
-    #[arg(long, value_name = "LUMINANCE")]
+    #[arg(long, allow_hyphen_values = true, value_name = "LUMINANCE")]
     luminance: Option<String>,
     /// Scale to an irradiance over the sampled range, e.g. "2 W/m2"
-    #[arg(long, value_name = "IRRADIANCE")]
+    #[arg(long, allow_hyphen_values = true, value_name = "IRRADIANCE")]
     irradiance: Option<String>,
     /// Scale to a photon irradiance over the sampled range, e.g. "1e18 photons/m2/s" or "5 umol/m2/s"
-    #[arg(long, value_name = "PHOTON_IRRADIANCE")]
+    #[arg(long, allow_hyphen_values = true, value_name = "PHOTON_IRRADIANCE")]
     photon_irradiance: Option<String>,
     /// Scale to a radiance over the sampled range, e.g. "10 W/m2/sr"
-    #[arg(long, value_name = "RADIANCE")]
+    #[arg(long, allow_hyphen_values = true, value_name = "RADIANCE")]
     radiance: Option<String>,
     /// Scale to a luminous intensity, e.g. "2 cd" (makes a spectral radiant intensity)
-    #[arg(long, value_name = "INTENSITY")]
+    #[arg(long, allow_hyphen_values = true, value_name = "INTENSITY")]
     luminous_intensity: Option<String>,
     /// Scale to a luminous flux, e.g. "800 lm" (makes a spectral radiant flux)
-    #[arg(long, value_name = "FLUX")]
+    #[arg(long, allow_hyphen_values = true, value_name = "FLUX")]
     luminous_flux: Option<String>,
     /// Scale to a radiant flux over the sampled range, e.g. "5 mW"
-    #[arg(long, value_name = "POWER")]
+    #[arg(long, allow_hyphen_values = true, value_name = "POWER")]
     radiant_flux: Option<String>,
 }
 
@@ -69,13 +69,13 @@ pub struct PlaceArgs {
     #[arg(long, value_name = "GEOMETRY")]
     geometry: Option<String>,
     /// Distance from the source to the eye
-    #[arg(long, value_name = "LENGTH")]
+    #[arg(long, allow_hyphen_values = true, value_name = "LENGTH")]
     distance: Option<String>,
     /// Source diameter
-    #[arg(long, value_name = "LENGTH")]
+    #[arg(long, allow_hyphen_values = true, value_name = "LENGTH")]
     size: Option<String>,
     /// Full angle subtended by the source
-    #[arg(long, value_name = "ANGLE")]
+    #[arg(long, allow_hyphen_values = true, value_name = "ANGLE")]
     subtense: Option<String>,
     /// The light fills the field of view evenly (radiance = irradiance / π)
     #[arg(long)]
@@ -84,10 +84,10 @@ pub struct PlaceArgs {
     #[arg(long, value_name = "EMISSION")]
     emission: Option<String>,
     /// Angle from a Lambertian emitter's axis
-    #[arg(long, value_name = "ANGLE")]
+    #[arg(long, allow_hyphen_values = true, value_name = "ANGLE")]
     emission_angle: Option<String>,
     /// Angle of incidence at the eye
-    #[arg(long, value_name = "ANGLE")]
+    #[arg(long, allow_hyphen_values = true, value_name = "ANGLE")]
     incidence: Option<String>,
     /// A filter in the path: a transmittance ("0.65") or a transmittance file; repeatable
     #[arg(long, value_name = "FILTER")]

@@ -253,7 +253,7 @@ impl Eye {
             .collect::<Result<Vec<_>>>()?;
         Ok(Eye {
             species,
-            nodal_distance: length_param(&raw.nodal_distance, "nodal_distance", origin)?,
+            nodal_distance: length_param(&raw.nodal_distance, "nodal_distance", origin, NODAL_M)?,
             pupil: parse_pupil(&raw.pupil, origin)?,
             media,
             media_status,
@@ -262,13 +262,15 @@ impl Eye {
             melanopsin: raw
                 .melanopsin
                 .as_ref()
-                .map(|m| length_param(&m.lambda_max, "melanopsin.lambda_max", origin))
+                .map(|m| length_param(&m.lambda_max, "melanopsin.lambda_max", origin, LAMBDA_MAX_M))
                 .transpose()?,
             iris: raw.iris.as_ref().map(|i| parse_iris(i, origin)).transpose()?,
             rod_troland_factors: raw
                 .rod_troland_factors
                 .iter()
-                .map(|(k, p)| Ok((k.clone(), number_param(p, &format!("rod_troland_factors.{k}"), origin)?)))
+                .map(|(k, p)| {
+                    Ok((k.clone(), number_param(p, &format!("rod_troland_factors.{k}"), origin, POSITIVE)?))
+                })
                 .collect::<Result<Vec<_>>>()?,
         })
     }
@@ -279,15 +281,47 @@ fn key_at(origin: &str, key: &str) -> String {
     format!("{origin}: key '{key}'")
 }
 
-/// A parameter whose value is a length.
-fn length_param(p: &RawParam, key: &str, origin: &str) -> Result<Param<Length>> {
-    convert(p, key, origin, parse_length)
+/// A parameter whose value is a length within `lo`–`hi` (m).
+fn length_param(p: &RawParam, key: &str, origin: &str, (lo, hi): (f64, f64)) -> Result<Param<Length>> {
+    let out = convert(p, key, origin, parse_length)?;
+    within(out.value.si(), (lo, hi), key, origin, |v| format!("{} mm", v * 1e3))?;
+    Ok(out)
 }
 
-/// A parameter whose value is a plain number.
-fn number_param(p: &RawParam, key: &str, origin: &str) -> Result<Param<f64>> {
-    convert(p, key, origin, parse_number)
+/// A parameter whose value is a plain number within `lo`–`hi`.
+fn number_param(p: &RawParam, key: &str, origin: &str, (lo, hi): (f64, f64)) -> Result<Param<f64>> {
+    let out = convert(p, key, origin, parse_number)?;
+    within(out.value, (lo, hi), key, origin, |v| format!("{v}"))?;
+    Ok(out)
 }
+
+/// Checks that `v` lies in (lo, hi] (above `lo`, at most `hi`), naming the physical range.
+fn within(v: f64, (lo, hi): (f64, f64), key: &str, origin: &str, show: impl Fn(f64) -> String) -> Result<()> {
+    if v > lo && v <= hi {
+        return Ok(());
+    }
+    Err(Error::data(format!(
+        "{}: {} is outside the physical range: above {}, at most {}",
+        key_at(origin, key),
+        show(v),
+        show(lo),
+        show(hi)
+    )))
+}
+
+/// Physical ranges of eye parameters (input bounds wide enough for any vertebrate eye; common
+/// practice, no source), in SI units.
+const NODAL_M: (f64, f64) = (0.5e-3, 50e-3);
+const PUPIL_M: (f64, f64) = (0.0, 15e-3);
+const IRIS_M: (f64, f64) = (0.0, 25e-3);
+const LAMBDA_MAX_M: (f64, f64) = (300e-9, 700e-9);
+const MEDIA_EDGE_M: (f64, f64) = (200e-9, 800e-9);
+const MEDIA_WIDTH_M: (f64, f64) = (0.0, 200e-9);
+const FRACTION: (f64, f64) = (0.0, 1.0);
+const FRACTION_0: (f64, f64) = (-f64::MIN_POSITIVE, 1.0);
+const OPTICAL_DENSITY: (f64, f64) = (0.0, 3.0);
+const PIGMENT_PER_CELL: (f64, f64) = (0.0, 1e12);
+const POSITIVE: (f64, f64) = (0.0, 1e12);
 
 /// The `[media]` table's model (its status and source are read by the caller).
 fn parse_media(m: &RawMedia, origin: &str) -> Result<Media> {
@@ -315,9 +349,15 @@ fn parse_cut_off(m: &RawMedia, origin: &str) -> Result<Media> {
             &need(&m.half_transmission, "media.half_transmission")?,
             "media.half_transmission",
             origin,
+            MEDIA_EDGE_M,
         )?,
-        edge_width: length_param(&need(&m.edge_width, "media.edge_width")?, "media.edge_width", origin)?,
-        plateau: number_param(&need(&m.plateau, "media.plateau")?, "media.plateau", origin)?,
+        edge_width: length_param(
+            &need(&m.edge_width, "media.edge_width")?,
+            "media.edge_width",
+            origin,
+            MEDIA_WIDTH_M,
+        )?,
+        plateau: number_param(&need(&m.plateau, "media.plateau")?, "media.plateau", origin, FRACTION)?,
     })
 }
 
@@ -326,33 +366,50 @@ fn parse_receptor(r: &RawReceptor, i: usize, origin: &str) -> Result<Receptor> {
     let k = |f: &str| format!("receptor[{i}].{f}");
     Ok(Receptor {
         name: r.name.clone(),
-        lambda_max: length_param(&r.lambda_max, &k("lambda_max"), origin)?,
-        peak_optical_density: number_param(&r.peak_optical_density, &k("peak_optical_density"), origin)?,
-        aperture_area: convert(&r.aperture_area, &k("aperture_area"), origin, parse_area)?,
-        quantum_efficiency: number_param(&r.quantum_efficiency, &k("quantum_efficiency"), origin)?,
+        lambda_max: length_param(&r.lambda_max, &k("lambda_max"), origin, LAMBDA_MAX_M)?,
+        peak_optical_density: number_param(
+            &r.peak_optical_density,
+            &k("peak_optical_density"),
+            origin,
+            OPTICAL_DENSITY,
+        )?,
+        aperture_area: aperture(r, &k("aperture_area"), origin)?,
+        quantum_efficiency: number_param(&r.quantum_efficiency, &k("quantum_efficiency"), origin, FRACTION)?,
         pigment_per_cell: r
             .pigment_per_cell
             .as_ref()
-            .map(|p| number_param(p, &k("pigment_per_cell"), origin))
+            .map(|p| number_param(p, &k("pigment_per_cell"), origin, PIGMENT_PER_CELL))
             .transpose()?,
     })
+}
+
+/// A receptor's collecting aperture, above 0 and at most 1000 µm².
+fn aperture(r: &RawReceptor, key: &str, origin: &str) -> Result<Param<crate::base::quantity::Area>> {
+    let out = convert(&r.aperture_area, key, origin, parse_area)?;
+    within(out.value.si(), (0.0, 1e-9), key, origin, |v| format!("{} µm²", v * 1e12))?;
+    Ok(out)
 }
 
 /// The `[pupil]` table.
 fn parse_pupil(p: &RawPupil, origin: &str) -> Result<PupilTable> {
     Ok(PupilTable {
-        dark_adapted: length_param(&p.dark_adapted, "pupil.dark_adapted", origin)?,
-        light_adapted: length_param(&p.light_adapted, "pupil.light_adapted", origin)?,
-        dilated: p.dilated.as_ref().map(|d| length_param(d, "pupil.dilated", origin)).transpose()?,
-        maximum: length_param(&p.maximum, "pupil.maximum", origin)?,
+        dark_adapted: length_param(&p.dark_adapted, "pupil.dark_adapted", origin, PUPIL_M)?,
+        light_adapted: length_param(&p.light_adapted, "pupil.light_adapted", origin, PUPIL_M)?,
+        dilated: p.dilated.as_ref().map(|d| length_param(d, "pupil.dilated", origin, PUPIL_M)).transpose()?,
+        maximum: length_param(&p.maximum, "pupil.maximum", origin, PUPIL_M)?,
     })
 }
 
 /// The `[iris]` table.
 fn parse_iris(i: &RawIris, origin: &str) -> Result<Iris> {
     Ok(Iris {
-        diameter: length_param(&i.diameter, "iris.diameter", origin)?,
-        albino_transmittance: number_param(&i.albino_transmittance, "iris.albino_transmittance", origin)?,
+        diameter: length_param(&i.diameter, "iris.diameter", origin, IRIS_M)?,
+        albino_transmittance: number_param(
+            &i.albino_transmittance,
+            "iris.albino_transmittance",
+            origin,
+            FRACTION_0,
+        )?,
     })
 }
 
@@ -496,5 +553,26 @@ mod tests {
         let text =
             include_str!("../data/eyes/mouse.toml").replace("status = \"confirmed\"", "status = \"sure\"");
         assert!(Eye::from_toml(&text, "m.toml").unwrap_err().message().contains("unknown status 'sure'"));
+    }
+
+    #[test]
+    fn non_physical_eye_parameters_are_rejected_with_the_range() {
+        let base = include_str!("../data/eyes/mouse.toml");
+        for (from, to, key) in [
+            ("\"1.95 mm\"", "\"0 mm\"", "nodal_distance"),
+            ("\"498 nm\"", "\"0 nm\"", "receptor[0].lambda_max"),
+            ("\"0.8\"", "\"1.5\"", "media.plateau"),
+        ] {
+            let text = base.replacen(from, to, 1);
+            let err = Eye::from_toml(&text, "m.toml").unwrap_err();
+            assert!(err.message().contains(&format!("key '{key}'")), "{err}");
+            assert!(err.message().contains("outside the physical range"), "{err}");
+        }
+        let text = base.replacen("value = \"0.67\"", "value = \"-1\"", 1);
+        let err = Eye::from_toml(&text, "m.toml").unwrap_err();
+        assert!(
+            err.message().contains("quantum_efficiency") && err.message().contains("physical range"),
+            "{err}"
+        );
     }
 }
