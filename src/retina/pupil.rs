@@ -229,7 +229,9 @@ mod tests {
         let mouse = builtin_eye(Species::Mouse);
         let a = Adaptation { luminance: None, field: None, age: None, eyes: 2 };
         let err = choose(mouse, PupilRule::parse("7 mm").unwrap(), &a).unwrap_err();
-        assert!(err.message().contains("at most 2.5 mm"), "{err}");
+        // Manno 2009: dilated mouse pupils reach 3.2 mm.
+        assert!(err.message().contains("at most 3.2 mm"), "{err}");
+        assert!(choose(mouse, PupilRule::parse("3 mm").unwrap(), &a).is_ok());
         assert!(choose(mouse, PupilRule::WatsonYellott, &a).is_err());
         assert!(choose(mouse, PupilRule::Dilated, &a).is_ok());
     }
