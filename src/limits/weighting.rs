@@ -82,6 +82,9 @@ pub fn parse_weighting(text: &str, origin: &str) -> Result<Weighting> {
     let at = |k: &str| format!("{origin}: key '{k}'");
     check_columns(&raw, &at)?;
     let table = Curve::new(raw.nm.clone(), raw.value.clone()).map_err(|e| e.context(at("nm")))?;
+    if table.range_nm().1 > MAX_WEIGHTING_NM {
+        return Err(Error::data(format!("{}: wavelengths beyond {MAX_WEIGHTING_NM} nm (1 mm)", at("nm"))));
+    }
     let log = match raw.interpolation.as_str() {
         "linear" => false,
         "log-linear" => true,
@@ -160,6 +163,10 @@ fn table_nodes(table: &Curve, log: bool) -> Vec<(f64, f64)> {
 
 /// Appends the formula segments on a 1 nm grid; each must start at or after `table_end` nm
 /// and after the previous segment.
+/// The longest wavelength a weighting may reach, nm (1 mm: the end of optical radiation);
+/// keeps the 1 nm nodes of a formula segment bounded.
+pub const MAX_WEIGHTING_NM: f64 = 1e6;
+
 fn formula_nodes(
     formula: &[RawFormula],
     table_end: f64,
@@ -169,6 +176,13 @@ fn formula_nodes(
     let mut last_end = table_end;
     for (i, f) in formula.iter().enumerate() {
         let k = format!("formula[{i}]");
+        if !(f.to_nm <= MAX_WEIGHTING_NM) {
+            return Err(Error::data(format!(
+                "{}: to_nm {} nm is beyond {MAX_WEIGHTING_NM} nm (1 mm), the end of optical radiation",
+                at(&k),
+                f.to_nm
+            )));
+        }
         if f.from_nm.is_nan() || f.from_nm >= f.to_nm || f.from_nm < last_end - 1e-9 {
             return Err(Error::data(format!(
                 "{}: segment {}–{} nm must follow the previous part (ending at {last_end} nm) without overlap",

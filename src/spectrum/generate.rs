@@ -48,12 +48,13 @@ impl Grid {
         if !(h > 0.0 && h.is_finite()) {
             return Err(Error::input(format!("wavelength step {h} nm must be above 0 nm")));
         }
-        let n = ((b - a) / h + 1e-9).floor() as usize + 1;
-        if n > 1_000_000 {
+        let count = ((b - a) / h + 1e-9).floor() + 1.0;
+        if !(count <= 1_000_000.0) {
             return Err(Error::input(format!(
-                "{n} wavelengths from {a}–{b} nm in {h} nm steps is too many; use at most 1 000 000"
+                "{count:e} wavelengths from {a}–{b} nm in {h} nm steps is too many; use at most 1 000 000"
             )));
         }
+        let n = count as usize;
         // Rounding to 1e-9 nm keeps 380 + 5·k exact-looking for decimal steps.
         Ok((0..n).map(|i| ((a + h * i as f64) * 1e9).round() / 1e9).collect())
     }
