@@ -58,7 +58,7 @@ pub struct Position {
 }
 
 /// The most cage positions one survey may hold (a cap is an error, never a truncation).
-pub const MAX_POSITIONS: usize = 1_000_000;
+pub const MAX_POSITIONS: usize = 100_000;
 
 /// A rack of shelves × columns in a row along x.
 #[derive(Debug, Clone, Copy, PartialEq)]

@@ -176,7 +176,7 @@ fn formula_nodes(
     let mut last_end = table_end;
     for (i, f) in formula.iter().enumerate() {
         let k = format!("formula[{i}]");
-        if !(f.to_nm <= MAX_WEIGHTING_NM) {
+        if f.to_nm.is_nan() || f.to_nm > MAX_WEIGHTING_NM {
             return Err(Error::data(format!(
                 "{}: to_nm {} nm is beyond {MAX_WEIGHTING_NM} nm (1 mm), the end of optical radiation",
                 at(&k),

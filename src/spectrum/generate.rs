@@ -49,7 +49,7 @@ impl Grid {
             return Err(Error::input(format!("wavelength step {h} nm must be above 0 nm")));
         }
         let count = ((b - a) / h + 1e-9).floor() + 1.0;
-        if !(count <= 1_000_000.0) {
+        if count.is_nan() || count > 1_000_000.0 {
             return Err(Error::input(format!(
                 "{count:e} wavelengths from {a}–{b} nm in {h} nm steps is too many; use at most 1 000 000"
             )));

@@ -219,8 +219,9 @@ pub fn parse_lamp(text: &str, origin: &str, dir: Option<&Path>, grid: Option<Gri
         (Some(RawModel::Blackbody { temperature, from, to, step }), None) => {
             let t = parse_temperature(temperature).map_err(|e| e.context(at("model.temperature")))?;
             // A lamp file describes a shape: the blackbody is used as a relative spectrum.
-            let s = planck_radiance(t, grid_of(from, to, step)?, None)?;
-            s.scaled_as(1.0 / s.curve().values().iter().copied().fold(0.0, f64::max), Measure::Relative)?
+            let s = planck_radiance(t, grid_of(from, to, step)?, None).map_err(|e| e.context(at("model")))?;
+            s.scaled_as(1.0 / s.curve().values().iter().copied().fold(0.0, f64::max), Measure::Relative)
+                .map_err(|e| e.context(at("model")))?
         }
         (None, Some(table)) => {
             let p = dir.map_or_else(|| Path::new(table).to_path_buf(), |d| d.join(table));

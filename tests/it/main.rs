@@ -6,6 +6,7 @@ mod bad_input;
 mod bleach_reference;
 mod cli;
 mod consistency;
+mod fuzz;
 mod hazard_oracle;
 mod limits_reference;
 mod properties;
