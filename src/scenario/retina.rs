@@ -218,6 +218,8 @@ pub fn place(spec: &SourceSpec, base: Option<&Path>) -> Result<PlacedSource> {
     let spectrum = scaled_spectrum(spec, base)?;
     let size = opt(&spec.size, "size", parse_length)?;
     let geometry = geometry(spec, &spectrum, size)?;
+    // Check the geometry now, so that an impossible one is reported against this source's keys.
+    crate::cornea::geometry::corneal(&spectrum, &geometry)?;
     let distance = opt(&spec.distance, "distance", parse_length)?;
     let (spectrum, assumption) = match &spec.emission_range {
         None => (spectrum, None),

@@ -112,3 +112,72 @@ fn readings_and_room_values_must_be_physical() {
         .replace("dark_lux = \"0.3 lx\"", "dark_lux = \"0.3 lx\"\nmeasurements = \"half.csv\"");
     rejects("half.toml", &with_readings, &["half.csv:2", "whole number"]);
 }
+
+#[test]
+fn bleach_sizes_beyond_the_bounds_are_errors() {
+    let base = ["bleach", "--receptor", "human-rod", "--retinal", "1000 scot td"];
+    retidose()
+        .args(base)
+        .args(["--for", "10 s", "--samples", "1000000000000"])
+        .assert()
+        .code(2)
+        .stderr(predicate::str::contains("time-course samples is more than the 1000000 allowed"));
+    retidose()
+        .args(base)
+        .args(["--for", "1 ms", "--repeat", "1000000000000"])
+        .assert()
+        .code(2)
+        .stderr(predicate::str::contains("a schedule may hold"));
+}
+
+#[test]
+fn limit_sets_with_unbounded_numbers_are_rejected_at_once() {
+    let iec = include_str!("../../limits/iec62471_2006.toml");
+    let uv = include_str!("../../limits/icnirp_2004_uv.toml");
+    assert!(iec.contains("to_s = inf"));
+    for (text, needle) in [
+        (iec.replacen("to_s = inf", "to_s = 1e300", 1), "10000000000 s"),
+        (uv.replacen("band_nm = [", "band_nm = [180, inf] # was [", 1), "band_nm"),
+    ] {
+        let p = write("set.toml", &text);
+        retidose()
+            .args(["limits", "show", "--set-file", p.to_str().unwrap()])
+            .assert()
+            .code(2)
+            .stderr(predicate::str::contains("set.toml"))
+            .stderr(predicate::str::contains(needle));
+    }
+}
+
+#[test]
+fn two_lamp_files_naming_each_other_are_an_error() {
+    write("a.toml", "name = \"a\"\ntitle = \"t\"\nprovenance = \"invented\"\ntable = \"b.toml\"\n");
+    let b = write("b.toml", "name = \"b\"\ntitle = \"t\"\nprovenance = \"invented\"\ntable = \"a.toml\"\n");
+    retidose()
+        .args(["spectrum", b.to_str().unwrap()])
+        .assert()
+        .code(2)
+        .stderr(predicate::str::contains("key 'table'"))
+        .stderr(predicate::str::contains("cannot refer to each other"));
+}
+
+#[test]
+fn retina_scenario_geometry_errors_name_the_file_and_a_negative_reading_is_a_range_error() {
+    let p = write(
+        "eye.toml",
+        "[subject]\nspecies = \"human\"\npupil = \"3 mm\"\n[[source]]\nspectrum = \"cie:D65\"\n\
+         illuminance = \"100 lx\"\nsubtense = \"200 deg\"\n",
+    );
+    retidose()
+        .args(["retina", "--scenario", p.to_str().unwrap()])
+        .assert()
+        .code(2)
+        .stderr(predicate::str::contains("eye.toml"))
+        .stderr(predicate::str::contains("source[0]"));
+    retidose()
+        .args(["spectrum", "warm-white-led", "--illuminance", "-300 lx"])
+        .assert()
+        .code(2)
+        .stderr(predicate::str::contains("≥ 0"))
+        .stderr(predicate::str::contains("tip:").not());
+}
