@@ -170,10 +170,14 @@ fn basis_text(g: &GuidanceRow) -> String {
 
 /// Recovery after the last lights-off, in words.
 fn recovery_text(b: &retidose::pigment::bleach::BleachReport) -> String {
-    let t = |x: Option<f64>| x.map_or_else(|| "not reached before the light rose again".to_string(), dur);
+    let t = |x: Option<f64>| match x {
+        None => "not reached before the light rose again".to_string(),
+        Some(s) if s == 0.0 => "already at lights-off".to_string(),
+        Some(s) => format!("after {}", dur(s)),
+    };
     match b.recoveries.last() {
         Some(r) => format!(
-            "after lights-off (end of '{}', {:.3} % bleached) 90 % regenerated in {}, 99 % in {}",
+            "after lights-off (end of '{}', {:.3} % bleached) 90 % regenerated {}, 99 % {}",
             r.after_step,
             100.0 * r.bleached_at_start,
             t(r.to_90_s),

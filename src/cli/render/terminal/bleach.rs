@@ -81,8 +81,10 @@ fn summary(o: &mut String, r: &BleachReport) {
 
 /// Recovery after each lights-off (the first and the last when there are several).
 fn recoveries(o: &mut String, r: &BleachReport) {
-    let t = |x: Option<f64>| {
-        x.map_or_else(|| "not reached before the light rose again".to_string(), duration_text)
+    let t = |x: Option<f64>| match x {
+        None => "not reached before the light rose again".to_string(),
+        Some(s) if s == 0.0 => "already at lights-off".to_string(),
+        Some(s) => format!("after {}", duration_text(s)),
     };
     if r.recoveries.is_empty() {
         let _ = writeln!(o, "Recovery: no lights-off in the schedule (no step is followed by a dimmer one)");
@@ -95,7 +97,7 @@ fn recoveries(o: &mut String, r: &BleachReport) {
         };
         let _ = writeln!(
             o,
-            "Recovery after {which} (end of '{}', t = {}, {:.4} % bleached), under the conditions that follow: 90 % regenerated after {}, 95 % after {}, 99 % after {}{}",
+            "Recovery after {which} (end of '{}', t = {}, {:.4} % bleached), under the conditions that follow: 90 % regenerated {}, 95 % {}, 99 % {}{}",
             rec.after_step,
             duration_text(rec.from_s),
             100.0 * rec.bleached_at_start,
