@@ -131,10 +131,9 @@ fn recoveries(model: Model, c: Constants, schedule: &Schedule, b0: f64) -> (usiz
             t.step(model, c, o.start_s, o.b_start, s.rate_per_s, s.duration_s);
         }
         let end_s = o.start_s + s.duration_s;
-        if steps.get(o.index + 1).is_some_and(|n| n.rate_per_s < s.rate_per_s) {
-            if let Some(t) = active.take() {
-                keep_first_and_last(&mut list, t.finish(&schedule.names, schedule, false));
-            }
+        // A run of falling steps is one lights-off, timed from its first fall; only a rise
+        // ends a tracker.
+        if active.is_none() && steps.get(o.index + 1).is_some_and(|n| n.rate_per_s < s.rate_per_s) {
             count += 1;
             active = Some(Tracker::new(o.index, end_s, o.b_end));
         }

@@ -368,9 +368,12 @@ impl Spectrum {
         }
         Ok(Spectrum { curve: self.curve.scaled(factor), measure, ..self.clone() })
     }
-    /// The widest spacing between neighbouring samples, nm.
+    /// The widest spacing between neighbouring samples where there is light, nm.
     pub fn max_step_nm(&self) -> f64 {
-        self.curve().wavelength_nm().windows(2).map(|w| w[1] - w[0]).fold(0.0, f64::max)
+        // Intervals where both ends are zero carry no light (such as the zeros a declared
+        // emission range adds) and say nothing about the sampling.
+        let (w, v) = (self.curve().wavelength_nm(), self.curve().values());
+        (1..w.len()).filter(|&i| v[i - 1] != 0.0 || v[i] != 0.0).map(|i| w[i] - w[i - 1]).fold(0.0, f64::max)
     }
 
     /// Peaks too narrow for the sampling: local maxima (above 5 % of the spectrum's maximum)

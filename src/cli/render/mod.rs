@@ -172,7 +172,7 @@ fn basis_text(g: &GuidanceRow) -> String {
 fn recovery_text(b: &retidose::pigment::bleach::BleachReport) -> String {
     let t = |x: Option<f64>| match x {
         None => "not reached before the light rose again".to_string(),
-        Some(s) if s == 0.0 => "already at lights-off".to_string(),
+        Some(0.0) => "already at lights-off".to_string(),
         Some(s) => format!("after {}", dur(s)),
     };
     match b.recoveries.last() {

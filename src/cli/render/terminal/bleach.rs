@@ -83,7 +83,7 @@ fn summary(o: &mut String, r: &BleachReport) {
 fn recoveries(o: &mut String, r: &BleachReport) {
     let t = |x: Option<f64>| match x {
         None => "not reached before the light rose again".to_string(),
-        Some(s) if s == 0.0 => "already at lights-off".to_string(),
+        Some(0.0) => "already at lights-off".to_string(),
         Some(s) => format!("after {}", duration_text(s)),
     };
     if r.recoveries.is_empty() {
