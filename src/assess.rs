@@ -27,7 +27,7 @@ use crate::pigment::schedule::Schedule;
 use crate::retina::catch::{SpeciesOpic, species_alpha_opic};
 use crate::retina::eye::Species;
 use crate::retina::pupil::Pupil;
-use crate::retina::report::{RetinaReport, SourceAtEye, assess_retina};
+use crate::retina::report::{RetinaReport, RetinaScenario, SourceAtEye, assess_retina};
 use crate::scenario::file::{DarkPupilBasis, LimitsSpec, Scenario, ScheduleSpec, Step, SurveySpec};
 use crate::scenario::{Phase, Pigmentation};
 use crate::spectrum::Spectrum;
@@ -316,8 +316,15 @@ fn assess_inner(s: &Scenario) -> Result<Assessment> {
 
 /// What is lit in one step: sums over the lit sources of the light path of the step's phase.
 fn step_light(s: &Scenario, paths: &Paths, sc: &ScheduleSpec, st: &Step) -> Result<StepLight> {
-    let report = paths.for_phase(st.phase).ok_or_else(|| Error::input("no sources"))?;
-    let lit: Vec<&SourceAtEye> = st.on.iter().map(|&i| &report.sources[i]).collect();
+    let own = own_pupil_path(s, st)?;
+    let report = match &own {
+        Some(r) => r,
+        None => paths.for_phase(st.phase).ok_or_else(|| Error::input("no sources"))?,
+    };
+    let lit: Vec<&SourceAtEye> = match &own {
+        Some(r) => r.sources.iter().collect(),
+        None => st.on.iter().map(|&i| &report.sources[i]).collect(),
+    };
     let mut level = 0.0;
     for (src, &i) in lit.iter().zip(&st.on) {
         level += src.level(sc.pigment.level_unit).ok_or_else(|| {
@@ -361,6 +368,20 @@ fn step_light(s: &Scenario, paths: &Paths, sc: &ScheduleSpec, st: &Step) -> Resu
         rod_rate: rod.map(Frequency::new::<hertz>),
         level,
     })
+}
+
+/// A pupil formula adapts to the light: a step whose phase uses one gets its own light path,
+/// with only its lit sources (in the order of `st.on`), so unrelated sources do not set its pupil.
+fn own_pupil_path(s: &Scenario, st: &Step) -> Result<Option<RetinaReport>> {
+    use crate::retina::pupil::PupilRule;
+    let view = s.view_for(st.phase);
+    let formula =
+        matches!(view.pupil, PupilRule::WatsonYellott | PupilRule::DeGrootGebhard | PupilRule::MoonSpencer);
+    if !formula || st.on.is_empty() {
+        return Ok(None);
+    }
+    let sources = st.on.iter().map(|&i| view.sources[i].clone()).collect();
+    Ok(Some(assess_retina(&RetinaScenario { sources, ..view })?))
 }
 
 /// A step of a scenario without sources: darkness.
@@ -589,6 +610,11 @@ pub fn run_housing_survey(s: &Scenario, sv: &SurveySpec) -> Result<SurveyResult>
         ),
     };
     let dark_room_lux = dark_measured.unwrap_or_else(|| vec![sv.dark_lux; positions.len()]);
+    let mode = format!(
+        "{mode}; in the cage: × the survey's cage_transmittance {} (the scenario's [[filter]] tables apply to its \
+         [[source]]s, not to the survey)",
+        sv.cage_transmittance
+    );
     let wall = Filter::flat(sv.cage_transmittance, "cage wall (survey)")?;
     let light = per_lux(&s.view, &sv.light_spectrum, &wall, s.view.pupil)?;
     let dark = per_lux(&s.view, &sv.dark_spectrum, &wall, s.dark_pupil)?;

@@ -261,7 +261,10 @@ fn resolve(raw: RawScenario, origin: &str, base: Option<&Path>) -> Result<Scenar
     let source_ids = source_ids(&raw.source)?;
     let view = build(&raw.subject, &raw.source, &raw.filter, base)?;
     let (dark_pupil, dark_pupil_basis) = dark_pupil(&raw.subject, species, view.pupil)?;
-    let schedule = raw.schedule.map(|s| schedule(s, species, &source_ids)).transpose()?;
+    crate::scenario::retina::check_pupil(&view.eye, dark_pupil)
+        .map_err(|e| e.key("dark_pupil").key("subject"))?;
+    let seen = radiance_known(&view)?;
+    let schedule = raw.schedule.map(|s| schedule(s, species, &source_ids, &seen)).transpose()?;
     let limits = raw.limits.map(|l| limits(l, &source_ids)).transpose()?;
     let guidance = match raw.guidance {
         None => Vec::new(),
@@ -321,7 +324,15 @@ fn dark_pupil(
     })
 }
 
-fn schedule(s: RawSchedule, species: Species, ids: &[String]) -> Result<ScheduleSpec> {
+/// For each source, whether the radiance the eye sees is known (a pigment level needs it).
+fn radiance_known(view: &RetinaScenario) -> Result<Vec<bool>> {
+    view.sources
+        .iter()
+        .map(|s| Ok(crate::cornea::geometry::corneal(&s.spectrum, &s.geometry)?.radiance.is_some()))
+        .collect()
+}
+
+fn schedule(s: RawSchedule, species: Species, ids: &[String], seen: &[bool]) -> Result<ScheduleSpec> {
     let at = |e: Error, key: &str| e.key(key).key("schedule");
     let receptor = s.receptor.unwrap_or_else(|| format!("{}-rod", species.name()));
     let pigment = find_pigment(&receptor).map_err(|e| at(e, "receptor"))?;
@@ -332,7 +343,7 @@ fn schedule(s: RawSchedule, species: Species, ids: &[String]) -> Result<Schedule
     let model = s.model.as_deref().map(Model::parse).transpose().map_err(|e| at(e, "model"))?;
     let mut steps = Vec::with_capacity(s.step.len());
     for (i, st) in s.step.iter().enumerate() {
-        steps.push(step(st, ids).map_err(|e| at(e, &format!("step[{i}]")))?);
+        steps.push(step(st, ids, seen).map_err(|e| at(e, &format!("step[{i}]")))?);
     }
     if steps.is_empty() {
         return Err(at(Error::input("a schedule needs at least one step"), "step"));
@@ -344,7 +355,7 @@ fn schedule(s: RawSchedule, species: Species, ids: &[String]) -> Result<Schedule
     Ok(ScheduleSpec { pigment, model: model.unwrap_or(Model::RateLimited), steps, repeat })
 }
 
-fn step(st: &RawStep, ids: &[String]) -> Result<Step> {
+fn step(st: &RawStep, ids: &[String], seen: &[bool]) -> Result<Step> {
     let duration = parse_time(&st.duration).map_err(|e| e.key("duration"))?;
     let d = duration.si();
     if !(d > 0.0 && d.is_finite()) {
@@ -363,6 +374,14 @@ fn step(st: &RawStep, ids: &[String]) -> Result<Step> {
             })
         })
         .collect::<Result<Vec<_>>>()?;
+    if let Some(&i) = on.iter().find(|&&i| !seen[i]) {
+        return Err(Error::input(format!(
+            "source '{}' is lit here, but the radiance the eye sees is not known, so no pigment level can be \
+             computed; give the source full_field, subtense, or size and distance",
+            ids[i]
+        ))
+        .key("on"));
+    }
     Ok(Step { name: st.name.clone(), phase, duration, on })
 }
 
@@ -374,6 +393,9 @@ fn limits(l: RawLimits, ids: &[String]) -> Result<LimitsSpec> {
     }
     let sets = l.sets.iter().map(|s| find_set(s).map_err(|e| at(e, "sets"))).collect::<Result<Vec<_>>>()?;
     let duration = parse_time(&l.duration).map_err(|e| at(e, "duration"))?;
+    if !(duration.si() > 0.0 && duration.si().is_finite()) {
+        return Err(at(Error::input(format!("{} s must be above 0 s", duration.si())), "duration"));
+    }
     let sources = match &l.sources {
         None => (0..ids.len()).collect(),
         Some(list) => list

@@ -142,6 +142,27 @@ fn opt<T>(v: &Option<String>, key: &str, parse: impl Fn(&str) -> Result<T>) -> R
     v.as_deref().map(|t| parse(t).map_err(|e| e.key(key))).transpose()
 }
 
+/// Checks a pupil rule against the eye when the scenario is read: a stated diameter within the
+/// species' range, a formula only for people (the formulas are for human eyes).
+///
+/// # Errors
+/// [`crate::ErrorKind::InvalidInput`] naming the allowed range or the rules that fit.
+pub fn check_pupil(eye: &Eye, rule: PupilRule) -> Result<()> {
+    use crate::retina::pupil::{Adaptation, choose};
+    match rule {
+        PupilRule::WatsonYellott | PupilRule::DeGrootGebhard | PupilRule::MoonSpencer => {
+            if eye.species != Species::Human {
+                return Err(Error::input(format!(
+                    "pupil formulas are for human eyes; for a {} give a diameter or dark, light or dilated",
+                    eye.species.name()
+                )));
+            }
+            Ok(())
+        }
+        _ => choose(eye, rule, &Adaptation { luminance: None, field: None, age: None, eyes: 2 }).map(|_| ()),
+    }
+}
+
 /// The widest span of the built-in hazard bands, nm: what `emission_range = "measured"` extends to.
 pub const HAZARD_SPAN_NM: (f64, f64) = (180.0, 3000.0);
 
@@ -415,6 +436,7 @@ pub fn build(
             .key("subject"));
         }
     };
+    check_pupil(&eye, pupil).map_err(|e| e.key("pupil").key("subject"))?;
     let eyes = subject.eyes.unwrap_or(2);
     if !(1..=2).contains(&eyes) {
         return Err(Error::input(format!("{eyes} must be 1 or 2")).key("eyes").key("subject"));

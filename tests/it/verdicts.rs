@@ -202,3 +202,94 @@ fn a_uv_lamp_given_by_its_flux_gets_a_risk_group() {
     let uv = v["hazards"].as_array().unwrap().iter().find(|h| h["id"] == "actinic-uv").unwrap();
     assert_eq!(uv["partial_band"], false);
 }
+
+#[test]
+fn a_dimming_in_stages_is_one_lights_off_from_the_first_fall() {
+    // Rate-limited model (Mahroo & Lamb 2004): recovery is timed from the end of the bright
+    // step, through the dim step and the dark one.
+    let text = "receptor = \"human-rod\"\n[[step]]\nname = \"bright\"\nduration = \"60 s\"\nlevel = \"1e6 scot td\"\n\
+                [[step]]\nname = \"dim\"\nduration = \"2 min\"\nlevel = \"10 scot td\"\n\
+                [[step]]\nname = \"dark\"\nduration = \"40 min\"\nlevel = \"0 scot td\"\n";
+    let s = retidose::scenario::bleach::parse_bleach_scenario(text, "s.toml", None).unwrap();
+    let r = retidose::pigment::bleach::assess(&s.pigment, s.model, &s.schedule, 0.0, None).unwrap();
+    assert_eq!(r.lights_off, 1);
+    let rec = &r.recoveries[0];
+    assert_eq!(rec.after_step, "bright");
+    assert!((rec.from_s - 60.0).abs() < 1e-9);
+    assert!(rec.to_90_s.is_some_and(|t| t > 14.0 * 60.0), "{rec:?}");
+}
+
+#[test]
+fn a_pupil_formula_adapts_to_what_is_lit_in_each_step() {
+    let text = |day: bool| {
+        format!(
+            "[scenario]\nname = \"h\"\ntitle = \"h\"\n[subject]\nspecies = \"human\"\nage = \"30 y\"\npupil = \"de-groot-gebhard\"\n\
+             {}[[source]]\nid = \"night-light\"\nspectrum = \"cie:D65\"\nluminance = \"1 cd/m2\"\nsubtense = \"20 deg\"\n\
+             [schedule]\nreceptor = \"human-rod\"\n{}[[schedule.step]]\nname = \"night\"\nphase = \"night\"\nduration = \"1 h\"\non = [\"night-light\"]\n",
+            if day {
+                "[[source]]\nid = \"room\"\nspectrum = \"cie:D65\"\nluminance = \"300 cd/m2\"\nsubtense = \"60 deg\"\n"
+            } else {
+                ""
+            },
+            if day {
+                "[[schedule.step]]\nname = \"day\"\nphase = \"day\"\nduration = \"8 h\"\non = [\"room\"]\n"
+            } else {
+                ""
+            },
+        )
+    };
+    let with_day = run(&text(true));
+    let alone = run(&text(false));
+    let night = |a: &Assessment| a.steps.iter().find(|s| s.name == "night").unwrap().clone();
+    let (a, b) = (night(&with_day), night(&alone));
+    assert!(
+        (a.pupil.diameter.value - b.pupil.diameter.value).abs() < 1e-12,
+        "{:?} vs {:?}",
+        a.pupil,
+        b.pupil
+    );
+    assert!((a.level - b.level).abs() <= 1e-12 * b.level);
+}
+
+#[test]
+fn late_errors_are_caught_when_the_file_is_read_with_their_key() {
+    led_file("led450.csv", 1);
+    let cases = [
+        (scenario("led450.csv", "", "").replace("duration = \"1 h\"", "duration = \"-8 h\""), "limits.duration"),
+        (
+            scenario("led450.csv", "", "").replace("species = \"human\"\npupil = \"3 mm\"", "species = \"mouse\"\npupil = \"5 mm\""),
+            "subject.pupil",
+        ),
+        (
+            scenario("led450.csv", "", "").replace("species = \"human\"\npupil = \"3 mm\"", "species = \"mouse\"\npupil = \"watson-yellott\""),
+            "subject.pupil",
+        ),
+        (
+            scenario("led450.csv", "", "[schedule]\nreceptor = \"human-rod\"\n[[schedule.step]]\nname = \"x\"\nduration = \"1 s\"\non = [\"led\"]")
+                .replace("subtense = \"0.05 rad\"", ""),
+            "schedule.step[0].on",
+        ),
+    ];
+    for (text, key) in cases {
+        let e = parse_scenario_file(&text, "led.toml", Some(&dir())).unwrap_err();
+        let loc = e.location().unwrap_or_else(|| panic!("{e}"));
+        assert_eq!(loc.key.as_deref(), Some(key), "{e}");
+        assert!(loc.line.is_some(), "{e}");
+    }
+}
+
+#[test]
+fn a_declared_range_raises_no_false_coarse_warning_and_assess_shows_data_notes() {
+    led_file("led450.csv", 1);
+    let a = run(&scenario("led450.csv", "emission_range = \"measured\"", ""));
+    assert!(!a.limits[0].notes.iter().any(|n| n.contains("coarser than")), "{:?}", a.limits[0].notes);
+    let p = dir().join("declared.toml");
+    std::fs::write(&p, scenario("led450.csv", "emission_range = \"measured\"", "")).unwrap();
+    for format in ["table", "markdown", "html"] {
+        Command::cargo_bin("retidose")
+            .unwrap()
+            .args(["assess", p.to_str().unwrap(), "--format", format])
+            .assert()
+            .stdout(predicate::str::contains("assumption stated by the user"));
+    }
+}

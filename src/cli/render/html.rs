@@ -11,7 +11,9 @@ use retidose::pigment::bleach::BleachReport;
 use retidose::spectrum::Spectrum;
 
 use super::svg::{self, Series};
-use super::{STEP_HEADER, basis_text, fov_and_c_alpha, num, pupil_line, step_rows, t_max, verdict_word};
+use super::{
+    STEP_HEADER, basis_text, data_notes, fov_and_c_alpha, num, pupil_line, step_rows, t_max, verdict_word,
+};
 
 /// The document head with its style sheet.
 const HEAD: &str = "<!DOCTYPE html><html lang=\"en\"><head><meta charset=\"utf-8\"><title>retidose assessment</title><style>body{font-family:sans-serif;max-width:980px;margin:2em auto;padding:0 1em;color:#222}table{border-collapse:collapse;margin:.5em 0}td,th{border:1px solid #bbb;padding:3px 7px;font-size:13px}th{background:#eee}.caution{background:#fff4e5;border-left:4px solid #e65100;padding:.4em .8em}.flag{color:#b71c1c;font-weight:bold}svg{max-width:100%;background:#fafafa;margin:.6em 0}</style></head><body>";
@@ -215,6 +217,12 @@ fn limits_table(o: &mut String, src: &str, l: &LimitsAssessment) {
         );
     }
     o.push_str("</table>");
+    for n in data_notes(&l.notes) {
+        let _ = write!(o, "<p class=\"flag\">{}</p>", esc(n));
+    }
+    if let Some(Err(why)) = &l.classification {
+        let _ = write!(o, "<p>Risk group (IEC 62471): not assessed: {}</p>", esc(why));
+    }
     if let Some(Ok(c)) = &l.classification {
         let _ = write!(
             o,

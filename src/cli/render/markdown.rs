@@ -7,7 +7,8 @@ use retidose::limits::report::LimitsAssessment;
 use retidose::pigment::bleach::BleachReport;
 
 use super::{
-    STEP_HEADER, basis_text, fov_and_c_alpha, num, pupil_line, recovery_text, step_rows, t_max, verdict_word,
+    STEP_HEADER, basis_text, data_notes, fov_and_c_alpha, num, pupil_line, recovery_text, step_rows, t_max,
+    verdict_word,
 };
 
 /// Markdown.
@@ -109,6 +110,12 @@ fn limits(o: &mut String, src: &str, l: &LimitsAssessment) {
         );
     }
     let _ = writeln!(o);
+    for n in data_notes(&l.notes) {
+        let _ = writeln!(o, "> **Note.** {}\n", md(n));
+    }
+    if let Some(Err(why)) = &l.classification {
+        let _ = writeln!(o, "Risk group (IEC 62471): not assessed: {}\n", md(why));
+    }
     if let Some(Ok(c)) = &l.classification {
         let _ = writeln!(
             o,

@@ -12,7 +12,8 @@ use retidose::retina::report::RetinaReport;
 
 use super::{paint, table};
 use crate::cli::render::{
-    STEP_HEADER, basis_text, fov_and_c_alpha, num, pupil_line, recovery_text, step_rows, t_max, verdict_word,
+    STEP_HEADER, basis_text, data_notes, fov_and_c_alpha, num, pupil_line, recovery_text, step_rows, t_max,
+    verdict_word,
 };
 
 /// The terminal summary.
@@ -102,6 +103,11 @@ fn what_reaches_the_eye(o: &mut String, a: &Assessment, r: &RetinaReport) {
         "{}",
         table(&["source", "corneal illuminance", "phot td", "scot td", "rod R*/rod/s"], rows)
     );
+    for s in &r.sources {
+        for n in data_notes(&s.notes) {
+            let _ = writeln!(o, "! {}: {n}", s.label);
+        }
+    }
     alpha_opic(o, a, r);
 }
 
@@ -203,8 +209,14 @@ fn limits(o: &mut String, src: &str, l: &LimitsAssessment, colour: bool) {
         })
         .collect();
     let _ = writeln!(o, "{}", table(&["hazard", "clause", "ratio", "t_max", "field / C_α", "verdict"], rows));
+    for n in data_notes(&l.notes) {
+        let _ = writeln!(o, "! {n}");
+    }
     for h in l.hazards.iter().filter(|h| !h.stricter_choices.is_empty()) {
         let _ = writeln!(o, "stricter choice ({}): {}", h.name, h.stricter_choices.join("; "));
+    }
+    if let Some(Err(why)) = &l.classification {
+        let _ = writeln!(o, "risk group (IEC 62471): not assessed: {why}");
     }
     if let Some(Ok(c)) = &l.classification {
         let _ = writeln!(

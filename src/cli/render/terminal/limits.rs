@@ -232,7 +232,13 @@ fn risk_group(o: &mut String, c: &Classification) {
         num(c.illuminance_lx)
     );
     for g in &c.hazards {
-        let group = g.group.map_or_else(|| g.reason.clone().unwrap_or_default(), |x| x.name().to_string());
+        let group = match (g.group, g.lower_bound) {
+            (Some(x), true) => {
+                format!("at least {} ({})", x.name(), g.reason.clone().unwrap_or_default())
+            }
+            (Some(x), false) => x.name().to_string(),
+            (None, _) => g.reason.clone().unwrap_or_default(),
+        };
         let ratios: Vec<String> = g.ratios.iter().map(|x| x.map_or("—".into(), num)).collect();
         let _ = writeln!(
             o,
