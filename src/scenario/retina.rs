@@ -321,6 +321,15 @@ fn geometry(
     size: Option<crate::base::quantity::Length>,
 ) -> Result<Geometry> {
     let kind = geometry_kind(spec, spectrum)?;
+    let oblique = matches!(kind.as_str(), "intensity" | "flux");
+    if !oblique && (spec.incidence.is_some() || spec.emission_angle.is_some()) {
+        let key = if spec.incidence.is_some() { "incidence" } else { "emission_angle" };
+        return Err(Error::input(format!(
+            "applies to a source at a distance (geometry intensity or flux), not to {kind} geometry: a measured \
+             irradiance already includes the angle, and a radiance does not change with it"
+        ))
+        .key(key));
+    }
     let distance = opt(&spec.distance, "distance", parse_length)?;
     let sub = opt(&spec.subtense, "subtense", parse_angle)?;
     let zero = Angle::from_si(0.0);

@@ -269,6 +269,7 @@ fn late_errors_are_caught_when_the_file_is_read_with_their_key() {
                 .replace("subtense = \"0.05 rad\"", ""),
             "schedule.step[0].on",
         ),
+        (scenario("led450.csv", "incidence = \"30 deg\"", ""), "source[0].incidence"),
     ];
     for (text, key) in cases {
         let e = parse_scenario_file(&text, "led.toml", Some(&dir())).unwrap_err();
