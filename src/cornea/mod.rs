@@ -29,6 +29,18 @@ pub struct PlacedSource {
     pub assumption: Option<String>,
 }
 
+/// How the note of a user's `emission_range` assumption begins.
+pub const ASSUMPTION_NOTE: &str = "assumption stated by the user";
+
+/// True for the notes about a source's data that a reader must see beside every figure made
+/// from it: the user's stated assumption, and sampling too coarse for the spectrum (see
+/// [`crate::spectrum::Spectrum::sampling_notes`]) or for a verdict near its limit.
+pub fn is_data_note(note: &str) -> bool {
+    note.starts_with(ASSUMPTION_NOTE)
+        || note.contains("sampled too coarsely")
+        || note.contains("coarser than")
+}
+
 /// What one source delivers at the cornea after every filter in `filters` (applied in order;
 /// their transmittances multiply). The seen radiance, when known, passes the same filters.
 ///

@@ -3,9 +3,9 @@
 use crate::base::error::Result;
 use crate::base::quantity::{SiValue, Time};
 use crate::cornea::PlacedSource;
-use crate::cornea::at_cornea;
 use crate::cornea::filter::Filter;
 use crate::cornea::geometry::{Emission, Geometry};
+use crate::cornea::{at_cornea, is_data_note};
 use crate::limits::risk::explain_exposure_check;
 use crate::limits::{
     Classification, Exposure, HazardResult, LimitSet, MovableSource, Verdict, classify, evaluate_set,
@@ -66,13 +66,13 @@ pub struct LimitsAssessment {
 /// distance turned into an intensity by
 /// the inverse-square law (I = E·d²; valid when the distance is several times the source's size).
 /// The filters of the lamp system go with it.
-fn movable_source(
-    source: &PlacedSource,
-    size: Option<crate::base::quantity::Length>,
-    filters: &[Filter],
-) -> std::result::Result<MovableSource, String> {
+fn movable_source(source: &PlacedSource, filters: &[Filter]) -> std::result::Result<MovableSource, String> {
     let s = &source.spectrum;
-    let size = size.or(source.size);
+    let size = match &source.geometry {
+        Geometry::Intensity { size, .. } | Geometry::Flux { size, .. } => *size,
+        Geometry::Extended { .. } | Geometry::AtEye { .. } => None,
+    }
+    .or(source.size);
     let spectrum = match (s.measure(), source.distance) {
         (Measure::Intensity | Measure::Radiance, _) => s.clone(),
         (Measure::Irradiance, Some(d)) => {
@@ -119,11 +119,8 @@ fn classification_json<S: serde::Serializer>(
     }
 }
 
-/// Assesses a source against a set.
-///
-/// # Errors
-/// [`crate::ErrorKind::InvalidInput`] for impossible geometry or a duration not above 0 s.
-pub fn assess_limits(r: &LimitsRequest<'_>) -> Result<LimitsAssessment> {
+/// The duration must be above 0 s, and every hazard asked for must be in the set.
+fn check_request(r: &LimitsRequest<'_>) -> Result<()> {
     let t = r.duration.si();
     if !(t > 0.0 && t.is_finite()) {
         return Err(crate::Error::input(format!("exposure duration {t} s must be above 0 s")));
@@ -135,28 +132,16 @@ pub fn assess_limits(r: &LimitsRequest<'_>) -> Result<LimitsAssessment> {
             r.set.hazards.iter().map(|h| h.id.as_str()).collect::<Vec<_>>().join(", ")
         )));
     }
-    let c = at_cornea(r.source, r.filters)?;
-    let source_notes: Vec<String> = c
-        .notes
-        .iter()
-        .filter(|n| {
-            n.starts_with("assumption stated by the user")
-                || n.contains("sampled too coarsely")
-                || n.contains("coarser than")
-        })
-        .cloned()
-        .collect();
-    let e = Exposure {
-        irradiance: &c.irradiance,
-        radiance: c.radiance.as_ref(),
-        subtense_rad: c.subtense.map(|a| a.si()),
-        full_field: c.full_field,
-        duration: r.duration,
-        schedule: None,
-        aphakic: r.aphakic,
-    };
-    let hazards: Vec<HazardResult> =
-        evaluate_set(r.set, &e).into_iter().filter(|h| r.only.is_empty() || r.only.contains(&h.id)).collect();
+    Ok(())
+}
+
+/// The notes of a check, in order: what was not assessed, the set's notes, the source's data
+/// notes, sampling near a limit, from-memory values, stricter choices and the filters applied.
+fn limit_notes(
+    r: &LimitsRequest<'_>,
+    hazards: &[HazardResult],
+    source_notes: impl Iterator<Item = String>,
+) -> Vec<String> {
     let mut notes = r.set.notes.clone();
     notes.extend(source_notes);
     if hazards.iter().any(|h| h.near_limit_on_coarse_spectrum) {
@@ -198,25 +183,51 @@ pub fn assess_limits(r: &LimitsRequest<'_>) -> Result<LimitsAssessment> {
             r.filters.iter().map(Filter::label).collect::<Vec<_>>().join(", ")
         ));
     }
-    let classification = r.classify.map(|general| {
-        let size = match &r.source.geometry {
-            crate::cornea::geometry::Geometry::Intensity { size, .. } | crate::cornea::geometry::Geometry::Flux { size, .. } => *size,
-            crate::cornea::geometry::Geometry::Extended { .. } | crate::cornea::geometry::Geometry::AtEye { .. } => None,
-        };
-        let movable = movable_source(r.source, size, r.filters);
-        let from_irradiance = r.source.spectrum.measure() == Measure::Irradiance;
-        movable.and_then(|m| classify(r.set, &m, general).map_err(|e| e.to_string())).map(|mut c| {
-            explain_exposure_check(&mut c, &hazards, t);
-            if from_irradiance {
-                c.notes.push(
-                    "classified from the irradiance measured at the stated distance, as an intensity I = E·d² \
-                     (inverse-square law; valid when the distance is several times the source's size)"
-                        .to_string(),
-                );
-            }
-            c
-        })
-    });
+    notes
+}
+
+/// The IEC 62471 classification of the source, with a note comparing it with the exposure
+/// check, or why it could not be made.
+fn classification(
+    r: &LimitsRequest<'_>,
+    hazards: &[HazardResult],
+    general: bool,
+) -> std::result::Result<Classification, String> {
+    let from_irradiance = r.source.spectrum.measure() == Measure::Irradiance;
+    let m = movable_source(r.source, r.filters)?;
+    let mut c = classify(r.set, &m, general).map_err(|e| e.to_string())?;
+    explain_exposure_check(&mut c, hazards, r.duration.si());
+    if from_irradiance {
+        c.notes.push(
+            "classified from the irradiance measured at the stated distance, as an intensity I = E·d² \
+             (inverse-square law; valid when the distance is several times the source's size)"
+                .to_string(),
+        );
+    }
+    Ok(c)
+}
+
+/// Assesses a source against a set.
+///
+/// # Errors
+/// [`crate::ErrorKind::InvalidInput`] for impossible geometry or a duration not above 0 s.
+pub fn assess_limits(r: &LimitsRequest<'_>) -> Result<LimitsAssessment> {
+    check_request(r)?;
+    let c = at_cornea(r.source, r.filters)?;
+    let e = Exposure {
+        irradiance: &c.irradiance,
+        radiance: c.radiance.as_ref(),
+        subtense_rad: c.subtense.map(|a| a.si()),
+        full_field: c.full_field,
+        duration: r.duration,
+        schedule: None,
+        aphakic: r.aphakic,
+    };
+    let hazards: Vec<HazardResult> =
+        evaluate_set(r.set, &e).into_iter().filter(|h| r.only.is_empty() || r.only.contains(&h.id)).collect();
+    let source_notes = c.notes.iter().filter(|n| is_data_note(n)).cloned();
+    let notes = limit_notes(r, &hazards, source_notes);
+    let classification = r.classify.map(|general| classification(r, &hazards, general));
     Ok(LimitsAssessment {
         set_id: r.set.id.clone(),
         document: r.set.document.clone(),

@@ -22,11 +22,11 @@
 use uom::si::length::meter;
 
 use super::evaluate::{Exposure, HazardResult, Verdict, assess, short};
-use super::set::{GROUP_NAMES, LimitSet, Provenance};
+use super::set::{GROUP_NAMES, Hazard, LimitSet, Provenance, RiskGroupBases};
 use super::weighting::find_weighting;
 use crate::base::error::{Error, Result};
 use crate::base::quantity::{Angle, Length, SiValue, Time};
-use crate::cornea::geometry::{Geometry, subtense};
+use crate::cornea::geometry::{Corneal, Geometry, subtense};
 use crate::spectrum::photometry::photopic;
 use crate::spectrum::{Measure, Spectrum};
 
@@ -118,7 +118,7 @@ impl MovableSource {
     }
 
     /// What arrives at distance `d`, through the lamp system's filters.
-    fn at(&self, d: Length) -> Result<crate::cornea::geometry::Corneal> {
+    fn at(&self, d: Length) -> Result<Corneal> {
         let placed = crate::cornea::PlacedSource {
             spectrum: self.spectrum.clone(),
             geometry: self.geometry_at(d)?,
@@ -172,90 +172,81 @@ pub fn blue_light_efficacy(spectrum: &Spectrum) -> Option<f64> {
 
 fn groups_at(set: &LimitSet, source: &MovableSource, d: Length) -> Result<Vec<HazardGroup>> {
     let c = source.at(d)?;
-    Ok(set
-        .hazards
-        .iter()
-        .filter_map(|h| h.risk_groups.as_ref().map(|b| (h, b)))
-        .map(|(h, rg)| {
-            let bases = rg.time_bases_s;
-            let mut ratios = [None; 3];
-            let mut reason = None;
-            let mut group = None;
-            let mut lower_bound = false;
-            let mut not_applicable = false;
-            let mut fields_of_view_rad = [None; 3];
-            let mut field_of_view_provenance: [Option<Provenance>; 3] = [None, None, None];
-            let mut from_memory: Vec<String> = Vec::new();
-            let mut stricter_choices: Vec<String> = Vec::new();
-            if rg.provenance.is_from_memory() {
-                from_memory.push(format!("risk-group time bases ({})", rg.provenance.source));
+    Ok(set.hazards.iter().filter_map(|h| h.risk_groups.as_ref().map(|rg| hazard_group(h, rg, &c))).collect())
+}
+
+/// The group of one hazard: evaluated at the Exempt, RG1 and RG2 time bases in turn until it is
+/// within one; a check that cannot be made after the lower groups were exceeded on the measured
+/// band alone leaves a lower bound.
+fn hazard_group(h: &Hazard, rg: &RiskGroupBases, c: &Corneal) -> HazardGroup {
+    const GROUPS: [RiskGroup; 3] = [RiskGroup::Exempt, RiskGroup::Rg1, RiskGroup::Rg2];
+    let mut g = HazardGroup {
+        id: h.id.clone(),
+        name: h.name.clone(),
+        group: None,
+        lower_bound: false,
+        reason: None,
+        not_applicable: false,
+        ratios: [None; 3],
+        time_bases_s: rg.time_bases_s,
+        time_bases: rg.provenance.clone(),
+        fields_of_view_rad: [None; 3],
+        field_of_view_provenance: [None, None, None],
+        from_memory: Vec::new(),
+        stricter_choices: Vec::new(),
+    };
+    if rg.provenance.is_from_memory() {
+        g.from_memory.push(format!("risk-group time bases ({})", rg.provenance.source));
+    }
+    for (i, &t) in rg.time_bases_s.iter().enumerate() {
+        let e = Exposure {
+            irradiance: &c.irradiance,
+            radiance: c.radiance.as_ref(),
+            subtense_rad: c.subtense.map(|a| a.si()),
+            full_field: c.full_field,
+            duration: Time::from_si(t),
+            schedule: None,
+            aphakic: false,
+        };
+        let r = assess(h, &e, rg.field_of_view[i].as_ref());
+        g.fields_of_view_rad[i] = r.field_of_view_rad;
+        g.field_of_view_provenance[i].clone_from(&r.field_of_view_provenance);
+        merge_per_group(&mut g.from_memory, &r.from_memory, i);
+        merge_per_group(&mut g.stricter_choices, &r.stricter_choices, i);
+        match &r.verdict {
+            Verdict::Within => {
+                g.ratios[i] = r.ratio;
+                g.group = Some(GROUPS[i]);
+                return g;
             }
-            const GROUPS: [RiskGroup; 3] = [RiskGroup::Exempt, RiskGroup::Rg1, RiskGroup::Rg2];
-            for (i, &t) in bases.iter().enumerate() {
-                let e = Exposure {
-                    irradiance: &c.irradiance,
-                    radiance: c.radiance.as_ref(),
-                    subtense_rad: c.subtense.map(|a| a.si()),
-                    full_field: c.full_field,
-                    duration: Time::from_si(t),
-                    schedule: None,
-                    aphakic: false,
-                };
-                let r = assess(h, &e, rg.field_of_view[i].as_ref());
-                fields_of_view_rad[i] = r.field_of_view_rad;
-                field_of_view_provenance[i].clone_from(&r.field_of_view_provenance);
-                for (list, new) in
-                    [(&mut from_memory, &r.from_memory), (&mut stricter_choices, &r.stricter_choices)]
-                {
-                    for x in new {
-                        // Values of the hazard as a whole are not tied to a time base.
-                        let whole = x.starts_with("hazard definition") || x.starts_with("weighting");
-                        let x = if whole { x.clone() } else { format!("{}: {x}", GROUP_NAMES[i]) };
-                        if !list.contains(&x) {
-                            list.push(x);
-                        }
-                    }
+            // Exceeds at this time base (a lower bound ≥ 1 included): a higher group.
+            Verdict::Exceeds => g.ratios[i] = r.ratio,
+            other => {
+                g.not_applicable = matches!(other, Verdict::NotApplicable(_));
+                g.reason = Some(other.text());
+                // Already past the lower groups on the measured band alone: at least GROUPS[i].
+                if i > 0 {
+                    g.group = Some(GROUPS[i]);
+                    g.lower_bound = true;
                 }
-                match &r.verdict {
-                    Verdict::Within => {
-                        ratios[i] = r.ratio;
-                        group = Some(GROUPS[i]);
-                        break;
-                    }
-                    // Exceeds at this time base (a lower bound ≥ 1 included): a higher group.
-                    Verdict::Exceeds => ratios[i] = r.ratio,
-                    other => {
-                        not_applicable = matches!(other, Verdict::NotApplicable(_));
-                        reason = Some(other.text());
-                        // Already past the lower groups on the measured band alone: at least GROUPS[i].
-                        if i > 0 {
-                            group = Some(GROUPS[i]);
-                            lower_bound = true;
-                        }
-                        break;
-                    }
-                }
+                return g;
             }
-            if group.is_none() && reason.is_none() {
-                group = Some(RiskGroup::Rg3);
-            }
-            HazardGroup {
-                id: h.id.clone(),
-                name: h.name.clone(),
-                group,
-                lower_bound,
-                reason,
-                not_applicable,
-                ratios,
-                time_bases_s: bases,
-                time_bases: rg.provenance.clone(),
-                fields_of_view_rad,
-                field_of_view_provenance,
-                from_memory,
-                stricter_choices,
-            }
-        })
-        .collect())
+        }
+    }
+    g.group = Some(RiskGroup::Rg3);
+    g
+}
+
+/// Adds the values `new` of the evaluation at time base `i` to `list`, once each; values of the
+/// hazard as a whole are not tied to a time base.
+fn merge_per_group(list: &mut Vec<String>, new: &[String], i: usize) {
+    for x in new {
+        let whole = x.starts_with("hazard definition") || x.starts_with("weighting");
+        let x = if whole { x.clone() } else { format!("{}: {x}", GROUP_NAMES[i]) };
+        if !list.contains(&x) {
+            list.push(x);
+        }
+    }
 }
 
 fn worst_blue(groups: &[HazardGroup]) -> Option<RiskGroup> {

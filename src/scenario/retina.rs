@@ -249,8 +249,9 @@ pub fn place(spec: &SourceSpec, base: Option<&Path>) -> Result<PlacedSource> {
             let (a, b) = spectrum.range_nm();
             let s = spectrum.assumed_dark_outside(lo, hi).map_err(|e| e.key("emission_range"))?;
             let note = format!(
-                "assumption stated by the user: '{}' emits nothing outside its measured {a}–{b} nm (taken as zero \
+                "{}: '{}' emits nothing outside its measured {a}–{b} nm (taken as zero \
                  out to {lo}–{hi} nm)",
+                crate::cornea::ASSUMPTION_NOTE,
                 spec.id.as_deref().unwrap_or(&spec.spectrum)
             );
             (s, Some(note))
@@ -336,27 +337,8 @@ fn geometry(
     let incidence = opt(&spec.incidence, "incidence", parse_angle)?.unwrap_or(zero);
     let missing =
         |key: &str| Error::input(format!("source '{}' with {kind} geometry needs '{key}'", spec.spectrum));
-    let geometry = match kind.as_str() {
-        "at-eye" => {
-            let field = match (spec.full_field, sub, size, distance) {
-                (true, None, None, _) => Some(Field::FullField),
-                (true, _, _, _) => {
-                    return Err(Error::input(
-                        "give either full_field or a subtense (or size and distance), not both",
-                    ));
-                }
-                (false, Some(a), None, _) => Some(Field::Subtense(a)),
-                (false, None, Some(s), Some(d)) => Some(Field::Subtense(subtense(s, d)?)),
-                (false, None, Some(_), None) => {
-                    return Err(Error::input("a source size needs its 'distance'"));
-                }
-                (false, Some(_), Some(_), _) => {
-                    return Err(Error::input("give either 'subtense' or 'size', not both"));
-                }
-                (false, None, None, _) => None,
-            };
-            Geometry::AtEye { field }
-        }
+    match kind.as_str() {
+        "at-eye" => Ok(Geometry::AtEye { field: at_eye_field(spec.full_field, sub, size, distance)? }),
         "extended" => {
             let a = match (sub, size, distance) {
                 (Some(a), None, _) => a,
@@ -368,38 +350,60 @@ fn geometry(
                     )));
                 }
             };
-            Geometry::Extended { subtense: a }
+            Ok(Geometry::Extended { subtense: a })
         }
-        "intensity" => {
-            Geometry::Intensity { distance: distance.ok_or_else(|| missing("distance"))?, incidence, size }
+        "intensity" => Ok(Geometry::Intensity {
+            distance: distance.ok_or_else(|| missing("distance"))?,
+            incidence,
+            size,
+        }),
+        "flux" => Ok(Geometry::Flux {
+            emission: emission(spec.emission.as_deref().ok_or_else(|| missing("emission"))?)?,
+            distance: distance.ok_or_else(|| missing("distance"))?,
+            emission_angle: opt(&spec.emission_angle, "emission_angle", parse_angle)?.unwrap_or(zero),
+            incidence,
+            size,
+        }),
+        other => Err(Error::input(format!(
+            "'{other}' is not a geometry; expected at-eye, extended, intensity or flux"
+        ))
+        .key("geometry")),
+    }
+}
+
+/// What the eye sees of light measured at the eye: the whole field, a subtense (given, or from a
+/// size and distance), or not known.
+fn at_eye_field(
+    full_field: bool,
+    sub: Option<Angle>,
+    size: Option<crate::base::quantity::Length>,
+    distance: Option<crate::base::quantity::Length>,
+) -> Result<Option<Field>> {
+    Ok(match (full_field, sub, size, distance) {
+        (true, None, None, _) => Some(Field::FullField),
+        (true, _, _, _) => {
+            return Err(Error::input(
+                "give either full_field or a subtense (or size and distance), not both",
+            ));
         }
-        "flux" => {
-            let emission = match spec.emission.as_deref().ok_or_else(|| missing("emission"))? {
-                "isotropic" => Emission::Isotropic,
-                "lambertian" => Emission::Lambertian,
-                other => {
-                    return Err(Error::input(format!(
-                        "'{other}' is not an emission; expected isotropic or lambertian"
-                    ))
-                    .key("emission"));
-                }
-            };
-            Geometry::Flux {
-                emission,
-                distance: distance.ok_or_else(|| missing("distance"))?,
-                emission_angle: opt(&spec.emission_angle, "emission_angle", parse_angle)?.unwrap_or(zero),
-                incidence,
-                size,
-            }
+        (false, Some(a), None, _) => Some(Field::Subtense(a)),
+        (false, None, Some(s), Some(d)) => Some(Field::Subtense(subtense(s, d)?)),
+        (false, None, Some(_), None) => return Err(Error::input("a source size needs its 'distance'")),
+        (false, Some(_), Some(_), _) => {
+            return Err(Error::input("give either 'subtense' or 'size', not both"));
         }
-        other => {
-            return Err(Error::input(format!(
-                "'{other}' is not a geometry; expected at-eye, extended, intensity or flux"
-            ))
-            .key("geometry"));
-        }
-    };
-    Ok(geometry)
+        (false, None, None, _) => None,
+    })
+}
+
+/// A flux source's `emission`: isotropic or lambertian.
+fn emission(text: &str) -> Result<Emission> {
+    match text {
+        "isotropic" => Ok(Emission::Isotropic),
+        "lambertian" => Ok(Emission::Lambertian),
+        other => Err(Error::input(format!("'{other}' is not an emission; expected isotropic or lambertian"))
+            .key("emission")),
+    }
 }
 
 /// Builds a scenario from its parts.

@@ -72,12 +72,7 @@ fn verdict_word(h: &HazardResult) -> &'static str {
 /// The notes about a source's data that a reader must see beside its figures: an assumption
 /// the user stated, and sampling too coarse for the spectrum or near a limit.
 fn data_notes(notes: &[String]) -> impl Iterator<Item = &String> {
-    notes.iter().filter(|n| {
-        n.starts_with("assumption stated by the user")
-            || n.contains("sampled too coarsely")
-            || n.contains("coarser than 5 nm")
-            || n.contains("within 20 % of its limit")
-    })
+    notes.iter().filter(|n| retidose::cornea::is_data_note(n))
 }
 
 /// The averaging field of view and C_α a hazard used, each with its status and, when it was
