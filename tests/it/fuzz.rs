@@ -50,6 +50,7 @@
 //! and the `#[ignore]`). Errors that do not name the file are listed likewise in
 //! [`KNOWN_UNCLEAR`].
 
+use crate::rng::Rng;
 use std::cell::{Cell, RefCell};
 use std::collections::BTreeMap;
 use std::fmt::Write as _;
@@ -136,30 +137,11 @@ const KNOWN_UNCLEAR: &[KnownUnclear] = &[];
 // ---------------------------------------------------------------------------------------------
 // The generator.
 
-/// xorshift64* (Vigna 2016): small, fast, and the same sequence on every machine.
-struct Rng(u64);
-
+/// Sampling for the mutator, on the shared generator.
 impl Rng {
-    fn new(seed: u64) -> Rng {
-        // splitmix64 of the seed, so near seeds start far apart; never zero.
-        let mut z = seed.wrapping_add(0x9E37_79B9_7F4A_7C15);
-        z = (z ^ (z >> 30)).wrapping_mul(0xBF58_476D_1CE4_E5B9);
-        z = (z ^ (z >> 27)).wrapping_mul(0x94D0_49BB_1331_11EB);
-        Rng((z ^ (z >> 31)) | 1)
-    }
-
-    fn next(&mut self) -> u64 {
-        let mut x = self.0;
-        x ^= x >> 12;
-        x ^= x << 25;
-        x ^= x >> 27;
-        self.0 = x;
-        x.wrapping_mul(0x2545_F491_4F6C_DD1D)
-    }
-
     /// Uniform in 0..n (n > 0).
     fn below(&mut self, n: usize) -> usize {
-        (self.next() % n as u64) as usize
+        (self.next_u64() % n as u64) as usize
     }
 
     /// True with probability 1/n.
@@ -167,7 +149,7 @@ impl Rng {
         self.below(n) == 0
     }
 
-    fn pick<'a, T>(&mut self, xs: &'a [T]) -> &'a T {
+    fn pick_ref<'a, T>(&mut self, xs: &'a [T]) -> &'a T {
         &xs[self.below(xs.len())]
     }
 
@@ -883,7 +865,7 @@ fn near_miss(rng: &mut Rng, key: &str, others: &[&str]) -> String {
         4 => key.to_uppercase(),
         5 => format!("{key}s"),
         6 => key.strip_suffix('s').unwrap_or("").to_string(),
-        7 if !others.is_empty() => rng.pick(others).to_string(),
+        7 if !others.is_empty() => rng.pick_ref(others).to_string(),
         _ => format!("{key}_nm"),
     }
 }
@@ -898,13 +880,13 @@ fn mutate_once(rng: &mut Rng, s: &str, donors: &[String], ops: &mut Vec<&'static
                 ops.push("number(none)");
                 return insert_at(s, random_pos(rng, s), rng.word(EXTREMES));
             }
-            let sp = *rng.pick(&spans);
+            let sp = *rng.pick_ref(&spans);
             ops.push("number");
             let with = if rng.one_in(4) {
-                let v = f64::from_bits(rng.next());
+                let v = f64::from_bits(rng.next_u64());
                 if v.is_finite() { format!("{v}") } else { format!("{}", rng.below(2000)) }
             } else {
-                rng.pick(EXTREMES).to_string()
+                rng.pick_ref(EXTREMES).to_string()
             };
             replace_span(s, sp, &with)
         }
@@ -914,7 +896,7 @@ fn mutate_once(rng: &mut Rng, s: &str, donors: &[String], ops: &mut Vec<&'static
                 ops.push("unit(none)");
                 return s.to_string();
             }
-            let (a, b) = *rng.pick(&spans);
+            let (a, b) = *rng.pick_ref(&spans);
             let rest = &s[b..];
             let unit_len = if rest.starts_with(' ') {
                 rest.find(['"', '\n']).unwrap_or(rest.len())
@@ -929,7 +911,7 @@ fn mutate_once(rng: &mut Rng, s: &str, donors: &[String], ops: &mut Vec<&'static
                 }
                 1 => {
                     ops.push("unit-swap");
-                    replace_span(s, (b, b + unit_len), &format!(" {}", rng.pick(UNITS)))
+                    replace_span(s, (b, b + unit_len), &format!(" {}", rng.pick_ref(UNITS)))
                 }
                 2 => {
                     ops.push("unit-glue");
@@ -946,7 +928,7 @@ fn mutate_once(rng: &mut Rng, s: &str, donors: &[String], ops: &mut Vec<&'static
                 ops.push("line(none)");
                 return s.to_string();
             }
-            let l = *rng.pick(&lines);
+            let l = *rng.pick_ref(&lines);
             match rng.below(5) {
                 0 | 1 => {
                     ops.push("line-delete");
@@ -962,7 +944,7 @@ fn mutate_once(rng: &mut Rng, s: &str, donors: &[String], ops: &mut Vec<&'static
                 }
                 3 => {
                     ops.push("line-swap");
-                    let m = *rng.pick(&lines);
+                    let m = *rng.pick_ref(&lines);
                     let (first, second) = if l.0 <= m.0 { (l, m) } else { (m, l) };
                     if first == second {
                         return s.to_string();
@@ -995,7 +977,7 @@ fn mutate_once(rng: &mut Rng, s: &str, donors: &[String], ops: &mut Vec<&'static
                 }
                 1 => {
                     ops.push("insert-odd");
-                    rng.pick(ODD_CHARS).to_string()
+                    rng.pick_ref(ODD_CHARS).to_string()
                 }
                 2 => {
                     ops.push("insert-unicode");
@@ -1029,7 +1011,7 @@ fn mutate_once(rng: &mut Rng, s: &str, donors: &[String], ops: &mut Vec<&'static
                 ops.push("table(none)");
                 return s.to_string();
             }
-            let h = *rng.pick(&heads);
+            let h = *rng.pick_ref(&heads);
             let end = heads.iter().copied().find(|&j| j > h).map_or(s.len(), |j| lines[j].0);
             let mut block = s[lines[h].0..end].to_string();
             if !block.ends_with('\n') {
@@ -1049,7 +1031,7 @@ fn mutate_once(rng: &mut Rng, s: &str, donors: &[String], ops: &mut Vec<&'static
                 ops.push("key(none)");
                 return s.to_string();
             }
-            let sp = *rng.pick(&spans);
+            let sp = *rng.pick_ref(&spans);
             let others: Vec<&str> = spans.iter().map(|&(a, b)| &s[a..b]).collect();
             ops.push("key-near-miss");
             let key = near_miss(rng, &s[sp.0..sp.1], &others);
@@ -1061,13 +1043,13 @@ fn mutate_once(rng: &mut Rng, s: &str, donors: &[String], ops: &mut Vec<&'static
                 ops.push("word(none)");
                 return s.to_string();
             }
-            let sp = *rng.pick(&spans);
+            let sp = *rng.pick_ref(&spans);
             let old = &s[sp.0..sp.1];
             let with = match rng.below(6) {
                 0 => old.to_uppercase(),
                 1 => format!(" {old} "),
                 2 => old.replace('-', "–"),
-                _ => rng.pick(WORDS).to_string(),
+                _ => rng.pick_ref(WORDS).to_string(),
             };
             ops.push("enum-word");
             replace_span(s, sp, &with)
@@ -1080,14 +1062,14 @@ fn mutate_once(rng: &mut Rng, s: &str, donors: &[String], ops: &mut Vec<&'static
                 if nums.is_empty() {
                     return s.to_string();
                 }
-                let sp = *rng.pick(&nums);
+                let sp = *rng.pick_ref(&nums);
                 return replace_span(s, sp, rng.word(TOML_VALUES));
             }
-            let (a, b) = *rng.pick(&spans);
+            let (a, b) = *rng.pick_ref(&spans);
             replace_span(s, (a - 1, b + 1), rng.word(TOML_VALUES))
         }
         17 => {
-            let donor = rng.pick(donors);
+            let donor = rng.pick_ref(donors);
             let dl = line_spans(donor);
             if dl.is_empty() {
                 ops.push("splice(none)");
@@ -1099,18 +1081,18 @@ fn mutate_once(rng: &mut Rng, s: &str, donors: &[String], ops: &mut Vec<&'static
             if !chunk.ends_with('\n') {
                 chunk.push('\n');
             }
-            let at = if lines.is_empty() { 0 } else { rng.pick(&lines).0 };
+            let at = if lines.is_empty() { 0 } else { rng.pick_ref(&lines).0 };
             ops.push("splice");
             insert_at(s, at, &chunk)
         }
         18 => {
-            let sep = *rng.pick(&[";", "\t", " ", ",,", ", ", "", "\u{3001}"]);
+            let sep = *rng.pick_ref(&[";", "\t", " ", ",,", ", ", "", "\u{3001}"]);
             if rng.one_in(2) || lines.is_empty() {
                 ops.push("separator-all");
                 s.replace(',', sep)
             } else {
                 ops.push("separator-line");
-                let l = *rng.pick(&lines);
+                let l = *rng.pick_ref(&lines);
                 replace_span(s, l, &s[l.0..l.1].replace(',', sep))
             }
         }
@@ -1127,7 +1109,7 @@ fn mutate_once(rng: &mut Rng, s: &str, donors: &[String], ops: &mut Vec<&'static
             }
             2 => {
                 ops.push("comment-toggle");
-                let Some(&l) = (!lines.is_empty()).then(|| rng.pick(&lines)) else {
+                let Some(&l) = (!lines.is_empty()).then(|| rng.pick_ref(&lines)) else {
                     return s.to_string();
                 };
                 let line = &s[l.0..l.1];
@@ -1393,7 +1375,7 @@ fn fuzz_loop(t: &'static Target, cases: usize, seed: u64) -> Stats {
         .name
         .bytes()
         .fold(0xcbf2_9ce4_8422_2325_u64, |h, b| (h ^ u64::from(b)).wrapping_mul(0x100_0000_01b3));
-    let mut rng = Rng::new(seed ^ name_hash);
+    let mut rng = Rng::seeded(seed ^ name_hash);
     let seeds = (t.seeds)();
     assert!(!seeds.is_empty(), "{}: no seeds", t.name);
     let mut pool: Vec<String> = Vec::new();
@@ -1408,7 +1390,8 @@ fn fuzz_loop(t: &'static Target, cases: usize, seed: u64) -> Stats {
         let input = if case < seeds.len() {
             seeds[case].clone()
         } else {
-            let base = if pool.is_empty() || rng.one_in(2) { rng.pick(&seeds) } else { rng.pick(&pool) };
+            let base =
+                if pool.is_empty() || rng.one_in(2) { rng.pick_ref(&seeds) } else { rng.pick_ref(&pool) };
             mutate(&mut rng, base, &seeds, &mut ops)
         };
         if let Some(path) = &trace {
@@ -1798,7 +1781,7 @@ fn fuzz_seeds_are_accepted() {
 
 #[test]
 fn fuzz_generator_is_reproducible() {
-    let (mut a, mut b) = (Rng::new(7), Rng::new(7));
+    let (mut a, mut b) = (Rng::seeded(7), Rng::seeded(7));
     let mut ops = Vec::new();
     let seeds = scenario_seeds();
     for _ in 0..200 {

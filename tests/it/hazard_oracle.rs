@@ -27,6 +27,7 @@
 //! skipped and counted after checking that the oracle says the same. Run with `--nocapture` to
 //! see the counts and the largest deviations; `HAZARD_ORACLE_SEED` draws other random cases.
 
+use crate::rng::Rng;
 use std::f64::consts::PI;
 use std::sync::LazyLock;
 
@@ -879,20 +880,8 @@ fn oracle_integration_is_exact_for_a_flat_spectrum() {
 // Random cases and the engine.
 // =====================================================================================
 
-/// xorshift64* (Vigna 2016, "An experimental exploration of Marsaglia's xorshift generators,
-/// scrambled", ACM TOMS 42(4): shifts 12, 25, 27 and multiplier 0x2545F4914F6CDD1D).
-struct Rng(u64);
-
+/// Sampling for the random cases, on the shared generator ([`crate::rng`]).
 impl Rng {
-    fn next_u64(&mut self) -> u64 {
-        let mut x = self.0;
-        x ^= x >> 12;
-        x ^= x << 25;
-        x ^= x >> 27;
-        self.0 = x;
-        x.wrapping_mul(0x2545_F491_4F6C_DD1D)
-    }
-
     /// Uniform in [0, 1) from the top 53 bits.
     fn unit(&mut self) -> f64 {
         (self.next_u64() >> 11) as f64 / (1u64 << 53) as f64

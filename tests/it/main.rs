@@ -12,4 +12,5 @@ mod limits_reference;
 mod properties;
 mod reference;
 mod retina_reference;
+mod rng;
 mod verdicts;
