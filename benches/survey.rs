@@ -1,58 +1,80 @@
-//! Speed of housing surveys (run with `cargo bench`): 100 000 cage positions (a 1000-shelf ×
-//! 100-column grid under four ceiling luminaires), from room lux to rod bleach and flags. The
-//! per-lux spectral factors are computed once per survey, in the setup, as `assess` does.
+//! Speed of room surveys (run with `cargo bench --bench survey`): a room of albino mice on racks
+//! under four ceiling luminaires, 12 h : 12 h for 7 days with a nightly 10-minute red-safelight
+//! check; 10⁵ and 10⁶ cage positions. The scenario is resolved once, in the setup, as `assess`
+//! does; the benchmark runs the plan (per-lux spectral figures once per rack), the per-rack
+//! summaries and levers on every core, and streams every row once (as the CSV and JSON do).
 
-use retidose::cornea::filter::Filter;
-use retidose::housing::guidance::find_guidance;
-use retidose::housing::survey::{Luminaire, Rack, SurveyInput, illuminance_at, per_lux, run_survey};
-use retidose::pigment::kinetics::{Model, find_pigment};
-use retidose::retina::pupil::PupilRule;
-use retidose::scenario::retina::{SubjectSpec, build};
-use retidose::spectrum::source::resolve;
+use retidose::assess::{assess, parse_scenario_file};
+use retidose::housing::summary::stream;
 
 fn main() {
     divan::main();
 }
 
-#[divan::bench(sample_count = 30)]
-fn survey_100_000_positions(bencher: divan::Bencher) {
-    let pigment = find_pigment("mouse-rod").unwrap();
-    let subject =
-        SubjectSpec { species: "mouse".into(), pupil: Some("light".into()), ..SubjectSpec::default() };
-    let view = build(&subject, &[], &[], None).unwrap();
-    let wall = Filter::flat(0.8, "cage wall").unwrap();
-    let light =
-        per_lux(&view, &resolve("neutral-white-led", None).unwrap(), &wall, PupilRule::LightAdapted).unwrap();
-    let dark =
-        per_lux(&view, &resolve("warm-white-led", None).unwrap(), &wall, PupilRule::DarkAdapted).unwrap();
-    let nrc = find_guidance("nrc-guide-2011").unwrap();
-    let rack = Rack {
-        shelves: 1000,
-        columns: 100,
-        x0_m: 0.0,
-        column_spacing_m: 0.05,
-        y_m: 0.5,
-        bottom_m: 0.2,
-        shelf_spacing_m: 0.002,
-    };
-    let positions = rack.positions().unwrap();
-    let luminaires: Vec<Luminaire> = (0..4)
-        .map(|i| Luminaire { x_m: 1.0 + 1.0 * f64::from(i), y_m: 1.2, z_m: 2.8, intensity_cd: 900.0 })
-        .collect();
+/// A room scenario with `racks` racks of `shelves` × 100 columns.
+pub fn room(racks: usize, shelves: usize) -> String {
+    let mut t = String::from(
+        r#"[scenario]
+name = "bench"
+title = "bench room (invented)"
+[subject]
+species = "mouse"
+pigmentation = "albino"
+pupil = "light"
+[guidance]
+sets = ["nrc-guide-2011"]
+[room]
+light_spectrum = "neutral-white-led"
+leak_spectrum = "warm-white-led"
+leak = "0.3 lx"
+light_phase = "12 h"
+dark_phase = "12 h"
+days = 7
+[[room.event]]
+name = "check"
+spectrum = "red-safelight-led"
+lux = "5 lx"
+start = "6 h"
+duration = "10 min"
+"#,
+    );
+    for (x, y) in [(2.0, 1.0), (6.0, 1.0), (2.0, 3.0), (6.0, 3.0)] {
+        t.push_str(&format!(
+            "[[room.luminaire]]\nx = \"{x} m\"\ny = \"{y} m\"\nz = \"2.8 m\"\nintensity = \"900 cd\"\n"
+        ));
+    }
+    for r in 0..racks {
+        t.push_str(&format!(
+            "[[room.rack]]\nid = \"R{r}\"\nshelves = {shelves}\ncolumns = 100\nfirst_column_x = \"0.2 m\"\ncolumn_spacing = \
+             \"0.08 m\"\nrack_y = \"{} m\"\nbottom_shelf = \"0.2 m\"\nshelf_spacing = \"0.002 m\"\ncage_transmittance = \"0.8\"\n\
+             shelf_shading = \"0.999\"\n",
+            0.5 + 0.3 * r as f64
+        ));
+    }
+    t
+}
+
+fn survey(bencher: divan::Bencher, racks: usize, shelves: usize) {
+    let s = parse_scenario_file(&room(racks, shelves), "bench.toml", None).unwrap();
     bencher.bench(|| {
-        let room_lux: Vec<f64> = positions.iter().map(|p| illuminance_at(p, &luminaires, 0.999)).collect();
-        let input = SurveyInput {
-            positions: positions.clone(),
-            dark_room_lux: vec![0.3; room_lux.len()],
-            room_lux,
-            cage_transmittance: 0.8,
-            light,
-            dark,
-            pigment: &pigment,
-            model: Model::RateLimited,
-            albino: true,
-            guidance: &[nrc],
-        };
-        run_survey(divan::black_box(&input)).unwrap()
+        let a = assess(divan::black_box(&s)).unwrap();
+        let room = a.room.unwrap();
+        let mut n = 0usize;
+        stream(&room.rows.0, |rows| -> Result<(), ()> {
+            n += rows.iter().filter(|r| r.flags.any()).count();
+            Ok(())
+        })
+        .unwrap();
+        n
     });
+}
+
+#[divan::bench(sample_count = 20)]
+fn survey_100_000_positions(bencher: divan::Bencher) {
+    survey(bencher, 10, 100);
+}
+
+#[divan::bench(sample_count = 10)]
+fn survey_1_000_000_positions(bencher: divan::Bencher) {
+    survey(bencher, 10, 1000);
 }

@@ -14,21 +14,19 @@ use uom::si::illuminance::lux;
 use crate::base::error::{Error, Result};
 use crate::base::quantity::{SiValue, Time};
 use crate::cornea::at_cornea;
-use crate::cornea::filter::Filter;
 use crate::housing::guidance::{AppliesTo, Evidence, Flag, GuidanceQuantity, GuidanceSet, Rule};
-use crate::housing::survey::{
-    PositionResult, SurveyInput, illuminance_at, per_lux, read_measurements, run_survey,
-};
+use crate::housing::room::Rack;
+use crate::housing::survey::{RoomResult, assess_room};
 use crate::limits::Verdict;
 use crate::limits::report::{LIMITS_CAUTION, LimitsAssessment, LimitsRequest, assess_limits};
 use crate::pigment::bleach::{BleachReport, assess as bleach_assess};
-use crate::pigment::kinetics::{LevelUnit, Model, Pigment, find_pigment};
+use crate::pigment::kinetics::{LevelUnit, Pigment};
 use crate::pigment::schedule::Schedule;
 use crate::retina::catch::{SpeciesOpic, species_alpha_opic};
 use crate::retina::eye::Species;
 use crate::retina::pupil::Pupil;
 use crate::retina::report::{RetinaReport, RetinaScenario, SourceAtEye, assess_retina};
-use crate::scenario::file::{DarkPupilBasis, LimitsSpec, Scenario, ScheduleSpec, Step, SurveySpec};
+use crate::scenario::file::{DarkPupilBasis, LimitsSpec, Scenario, ScheduleSpec, Step};
 use crate::scenario::{Phase, Pigmentation};
 use crate::spectrum::Spectrum;
 use crate::spectrum::photometry::photopic;
@@ -80,23 +78,6 @@ pub struct Provenance {
     pub status: String,
 }
 
-/// A housing survey's results with its summary.
-#[derive(Debug, Clone, PartialEq, serde::Serialize)]
-pub struct SurveyResult {
-    /// Shelves × columns.
-    pub shelves: usize,
-    /// Columns.
-    pub columns: usize,
-    /// Per position.
-    pub positions: Vec<PositionResult>,
-    /// Ratio of the highest to the lowest room lux over the rack.
-    pub max_over_min: f64,
-    /// Positions with a raised flag.
-    pub flagged: usize,
-    /// How the light was obtained.
-    pub mode: String,
-}
-
 /// What is lit in one step of the schedule (one cycle), from the one light path.
 #[derive(Debug, Clone, PartialEq, serde::Serialize)]
 pub struct StepLight {
@@ -133,8 +114,10 @@ pub struct StepLight {
 pub enum GuidanceBasis {
     /// One schedule step.
     Step(String),
-    /// Every cage position of the survey: how many were outside, of how many.
+    /// Every cage position of one rack of the room: how many were outside, of how many.
     Survey {
+        /// The rack.
+        rack: String,
         /// Positions outside the rule.
         outside: usize,
         /// Positions.
@@ -197,8 +180,8 @@ pub struct Assessment {
     pub guidance: Vec<GuidanceRow>,
     /// Evidence to show beside the guidance.
     pub evidence: Vec<Evidence>,
-    /// Housing survey.
-    pub survey: Option<SurveyResult>,
+    /// The holding room's survey.
+    pub room: Option<RoomResult>,
     /// What was not assessed, and why.
     pub not_assessed: Vec<String>,
     /// True when a limit is exceeded.
@@ -265,8 +248,9 @@ fn assess_inner(s: &Scenario) -> Result<Assessment> {
         }
         None => None,
     };
-    let survey = s.survey.as_ref().map(|sv| run_housing_survey(s, sv)).transpose()?;
-    let guidance = guidance_rows(s, &steps, survey.as_ref(), &mut not_assessed);
+    let evidence: Vec<Evidence> = s.guidance.iter().flat_map(|g| g.evidence.clone()).collect();
+    let room = s.room.as_ref().map(|r| run_room(s, r, &evidence)).transpose()?;
+    let guidance = guidance_rows(s, &steps, room.as_ref(), &mut not_assessed);
     for g in &s.guidance {
         provenance.push(guidance_provenance(g));
     }
@@ -281,8 +265,7 @@ fn assess_inner(s: &Scenario) -> Result<Assessment> {
         }
     }
     let limit_exceeded = limits.iter().any(|l| l.hazards.iter().any(|h| h.verdict == Verdict::Exceeds));
-    let flag_raised =
-        guidance.iter().any(|g| g.flag.raised) || survey.as_ref().is_some_and(|sv| sv.flagged > 0);
+    let flag_raised = guidance.iter().any(|g| g.flag.raised) || room.as_ref().is_some_and(|r| r.flagged > 0);
     Ok(Assessment {
         name: s.name.clone(),
         title: s.title.clone(),
@@ -306,8 +289,8 @@ fn assess_inner(s: &Scenario) -> Result<Assessment> {
         bleach,
         limits,
         guidance,
-        evidence: s.guidance.iter().flat_map(|g| g.evidence.clone()).collect(),
-        survey,
+        evidence,
+        room,
         not_assessed,
         limit_exceeded,
         flag_raised,
@@ -467,15 +450,15 @@ fn step_value(rule: &Rule, st: &StepLight) -> f64 {
 fn guidance_rows(
     s: &Scenario,
     steps: &[StepLight],
-    survey: Option<&SurveyResult>,
+    room: Option<&RoomResult>,
     not_assessed: &mut Vec<String>,
 ) -> Vec<GuidanceRow> {
     let mut rows = Vec::new();
     for g in &s.guidance {
         for r in g.rule.iter().filter(|r| applies(r, s)) {
             let housing = r.quantity == GuidanceQuantity::Illuminance && r.applies_to != AppliesTo::Human;
-            if let (true, Some(sv)) = (housing, survey) {
-                rows.push(survey_row(g, r, sv));
+            if let (true, Some(room)) = (housing, room) {
+                rows.extend(room_rows(g, r, room));
                 if r.phase == Phase::Light {
                     continue;
                 }
@@ -488,7 +471,7 @@ fn guidance_rows(
                     flag: r.check(&g.id, step_value(r, st)),
                 });
             }
-            if matching.is_empty() && !(housing && survey.is_some()) {
+            if matching.is_empty() && !(housing && room.is_some()) {
                 not_assessed.push(format!(
                     "guidance {} / {}: no schedule step has phase = \"{}\"; give each step a phase",
                     g.id,
@@ -506,30 +489,37 @@ fn guidance_rows(
             unphased.join(", ")
         ));
     }
-    if !s.guidance.is_empty() && s.schedule.is_none() && survey.is_none() {
+    if !s.guidance.is_empty() && s.schedule.is_none() && room.is_none() {
         not_assessed.push("guidance: no schedule, so no phase to compare".to_string());
     }
     rows
 }
 
-fn survey_row(g: &GuidanceSet, r: &Rule, sv: &SurveyResult) -> GuidanceRow {
-    let value = |p: &PositionResult| if r.phase.is_dark() { p.dark_room_lux } else { p.room_lux };
-    let outside = sv.positions.iter().filter(|p| r.check(&g.id, value(p)).raised).count();
-    let worst = sv
-        .positions
-        .iter()
-        .map(value)
-        .fold(None, |w: Option<f64>, v| match (w, r.min_lx.is_some() && r.max_lx.is_none()) {
-            (None, _) => Some(v),
-            (Some(w), true) => Some(w.min(v)),
-            (Some(w), false) => Some(w.max(v)),
-        })
-        .unwrap_or(0.0);
-    GuidanceRow {
-        basis: GuidanceBasis::Survey { outside, positions: sv.positions.len() },
-        phase: r.phase,
-        flag: r.check(&g.id, worst),
+/// One row per rack whose animals the rule applies to: how many positions are outside and the
+/// value furthest outside.
+fn room_rows(g: &GuidanceSet, r: &Rule, room: &RoomResult) -> Vec<GuidanceRow> {
+    let mut out = Vec::new();
+    for rack in &room.racks {
+        let b = rack.bounds;
+        let mine = |x: Option<crate::housing::pass::Bound>| x.is_some_and(|x| g.rule[x.rule].id == r.id);
+        let sm = &rack.summary;
+        let (outside, value) = if mine(b.lower) && r.phase == Phase::Light && r.max_lx.is_none() {
+            (sm.below, sm.room_lux.min)
+        } else if mine(b.upper) && r.phase == Phase::Light {
+            (sm.above, sm.room_lux.max)
+        } else if mine(b.dark) && r.phase.is_dark() {
+            let event = sm.events.iter().map(|e| e.room_lux.max).fold(0.0, f64::max);
+            (sm.dark_flagged, sm.leak_lux.max + event)
+        } else {
+            continue;
+        };
+        out.push(GuidanceRow {
+            basis: GuidanceBasis::Survey { rack: rack.id.clone(), outside, positions: sm.positions },
+            phase: r.phase,
+            flag: r.check(&g.id, value),
+        });
     }
+    out
 }
 
 fn run_limits(
@@ -584,61 +574,31 @@ fn run_limits(
 ///
 /// # Errors
 /// As the survey and the retina chain.
-pub fn run_housing_survey(s: &Scenario, sv: &SurveySpec) -> Result<SurveyResult> {
-    if s.species == Species::Human {
-        return Err(Error::input("a housing survey needs a rodent subject (mouse or rat)").key("survey"));
+fn run_room(s: &Scenario, room: &crate::housing::room::Room, evidence: &[Evidence]) -> Result<RoomResult> {
+    let eyes = |rack: &Rack| -> Result<(RetinaScenario, RetinaScenario)> {
+        let mut light = if rack.animals.species == s.species {
+            RetinaScenario { sources: Vec::new(), filters: Vec::new(), ..s.view.clone() }
+        } else {
+            bare_view(rack.animals.species)
+        };
+        light.pupil = rack.light_pupil;
+        let dark = RetinaScenario { pupil: rack.dark_pupil, ..light.clone() };
+        Ok((light, dark))
+    };
+    assess_room(room.clone(), &s.guidance, evidence, &eyes).map_err(|e| e.in_file(&s.origin, None))
+}
+
+/// The built-in eye of `species` with no sources, filters or pupil formula inputs.
+fn bare_view(species: Species) -> RetinaScenario {
+    RetinaScenario {
+        eye: crate::retina::eye::builtin_eye(species).clone(),
+        sources: Vec::new(),
+        filters: Vec::new(),
+        pupil: crate::retina::pupil::PupilRule::LightAdapted,
+        age: None,
+        eyes: 2,
+        field: None,
+        adapting_luminance: None,
+        albino_iris: false,
     }
-    let pigment = match &s.schedule {
-        Some(sch) => sch.pigment.clone(),
-        None => find_pigment(&format!("{}-rod", s.species.name()))?,
-    };
-    let model = s.schedule.as_ref().map_or(Model::RateLimited, |x| x.model);
-    let positions = sv.rack.positions()?;
-    let (room_lux, dark_measured, mode) = match &sv.measurements {
-        Some((text, name)) => {
-            let (l, d) = read_measurements(text, name, &positions)?;
-            (l, d, format!("measured lux at cage level from {name}"))
-        }
-        None => (
-            positions.iter().map(|p| illuminance_at(p, &sv.luminaires, sv.shelf_shading)).collect(),
-            None,
-            format!(
-                "computed from {} ceiling luminaire(s) (Lambertian, inverse-square and cosine laws, shading {} per shelf above)",
-                sv.luminaires.len(),
-                sv.shelf_shading
-            ),
-        ),
-    };
-    let dark_room_lux = dark_measured.unwrap_or_else(|| vec![sv.dark_lux; positions.len()]);
-    let mode = format!(
-        "{mode}; in the cage: × the survey's cage_transmittance {} (the scenario's [[filter]] tables apply to its \
-         [[source]]s, not to the survey)",
-        sv.cage_transmittance
-    );
-    let wall = Filter::flat(sv.cage_transmittance, "cage wall (survey)")?;
-    let light = per_lux(&s.view, &sv.light_spectrum, &wall, s.view.pupil)?;
-    let dark = per_lux(&s.view, &sv.dark_spectrum, &wall, s.dark_pupil)?;
-    let guidance: Vec<&GuidanceSet> = s.guidance.to_vec();
-    let results = run_survey(&SurveyInput {
-        positions,
-        room_lux,
-        dark_room_lux,
-        cage_transmittance: sv.cage_transmittance,
-        light,
-        dark,
-        pigment: &pigment,
-        model,
-        albino: s.pigmentation == Some(Pigmentation::Albino),
-        guidance: &guidance,
-    })?;
-    let max = results.iter().map(|r| r.room_lux).fold(0.0, f64::max);
-    let min = results.iter().map(|r| r.room_lux).fold(f64::INFINITY, f64::min);
-    Ok(SurveyResult {
-        shelves: sv.rack.shelves,
-        columns: sv.rack.columns,
-        flagged: results.iter().filter(|r| !r.flags.is_empty()).count(),
-        positions: results,
-        max_over_min: if min > 0.0 { max / min } else { f64::INFINITY },
-        mode,
-    })
 }

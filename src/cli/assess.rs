@@ -1,6 +1,7 @@
 //! `retidose assess`: one scenario file (or a built-in demo) in, one assessment out, in the
 //! format asked for, to the terminal or to a file.
 
+use std::io::Write;
 use std::path::{Path, PathBuf};
 
 use anyhow::{Context, Result, bail};
@@ -9,6 +10,7 @@ use retidose::assess::{Assessment, DEMOS, assess, demo, parse_scenario_file};
 use retidose::scenario::file::Scenario;
 
 use super::Output;
+use super::output::{AtomicFile, check_target};
 use super::render::{csv, html, json, markdown, terminal};
 
 /// Help shown after `retidose assess --help`.
@@ -71,6 +73,9 @@ pub fn run(a: AssessArgs) -> Result<Output> {
         return Ok(Output { text: demo(name)?.to_string(), status: 0 });
     }
     let (scenarios, inputs) = load_scenarios(&a)?;
+    if let Some(path) = &a.output {
+        check_target(Path::new(path), &inputs, a.force)?;
+    }
     {
         use std::io::IsTerminal;
         if std::io::stderr().is_terminal() {
@@ -83,14 +88,24 @@ pub fn run(a: AssessArgs) -> Result<Output> {
     let raised = results.iter().any(|r| r.limit_exceeded || r.flag_raised);
     let status = u8::from(raised && a.demo.is_none());
     let colour = a.output.is_none() && terminal::use_colour();
-    let text = render(&results, a.format, colour);
     match &a.output {
-        None => Ok(Output { text, status }),
+        None => {
+            let mut w = std::io::BufWriter::new(std::io::stdout().lock());
+            match render_to(&results, a.format, colour, &mut w).and_then(|()| w.flush()) {
+                // A closed pipe (`retidose … | head`) is not an error.
+                Err(e) if e.kind() != std::io::ErrorKind::BrokenPipe => {
+                    return Err(e).context("cannot write the report");
+                }
+                _ => {}
+            }
+        }
         Some(path) => {
-            write_report(path, &text, &inputs, a.force)?;
-            Ok(Output { text: String::new(), status })
+            let mut f = AtomicFile::create(Path::new(path))?;
+            render_to(&results, a.format, colour, &mut f).with_context(|| format!("cannot write {path}"))?;
+            f.commit()?;
         }
     }
+    Ok(Output { text: String::new(), status })
 }
 
 /// The scenarios to assess (the demos asked for, or the one file) and the input files read.
@@ -116,31 +131,19 @@ fn load_scenarios(a: &AssessArgs) -> Result<(Vec<Scenario>, Vec<PathBuf>)> {
     Ok((scenarios, inputs))
 }
 
-/// The report in the format asked for.
-fn render(results: &[Assessment], format: ReportFormat, colour: bool) -> String {
+/// Writes the report in the format asked for: JSON and CSV streamed (memory does not grow with
+/// the number of cage positions), the others rendered whole.
+fn render_to(
+    results: &[Assessment],
+    format: ReportFormat,
+    colour: bool,
+    w: &mut dyn Write,
+) -> std::io::Result<()> {
     match format {
-        ReportFormat::Table => terminal::assess::report(results, colour),
-        ReportFormat::Json => json::assess::document(results),
-        ReportFormat::Csv => csv::assessment(results),
-        ReportFormat::Markdown => markdown::assessment(results),
-        ReportFormat::Html => html::assessment(results),
+        ReportFormat::Table => w.write_all(terminal::assess::report(results, colour).as_bytes()),
+        ReportFormat::Json => json::assess::document_to(results, w),
+        ReportFormat::Csv => csv::assessment_to(results, w),
+        ReportFormat::Markdown => w.write_all(markdown::assessment(results).as_bytes()),
+        ReportFormat::Html => w.write_all(html::assessment(results).as_bytes()),
     }
-}
-
-/// Writes the report to `-o path`: never over an input of the run, nor over an existing file
-/// without `--force`.
-fn write_report(path: &str, text: &str, inputs: &[PathBuf], force: bool) -> Result<()> {
-    let target = Path::new(path);
-    let same = |p: &Path| match (p.canonicalize(), target.canonicalize()) {
-        (Ok(x), Ok(y)) => x == y,
-        _ => false,
-    };
-    if inputs.iter().any(|i| same(i)) {
-        bail!("-o {path} is an input of this run; it is never overwritten");
-    }
-    if target.exists() && !force {
-        bail!("-o {path} exists; give --force to replace it");
-    }
-    std::fs::write(target, text).with_context(|| format!("cannot write {path}"))?;
-    Ok(())
 }

@@ -20,6 +20,7 @@ mod args;
 mod assess;
 mod bleach;
 mod limits;
+pub mod output;
 mod render;
 mod retina;
 mod sources;

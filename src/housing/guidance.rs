@@ -66,6 +66,15 @@ pub struct Evidence {
     pub value: String,
     /// Source and status.
     pub source: String,
+    /// The species it was found in, when it names one.
+    #[serde(default)]
+    pub species: Option<crate::retina::eye::Species>,
+    /// The light it was found with, in words.
+    #[serde(default)]
+    pub light: Option<String>,
+    /// Its illuminance at cage level, lx, when it gives one (compared like for like).
+    #[serde(default)]
+    pub lux: Option<f64>,
 }
 
 /// A guidance set.

@@ -31,6 +31,31 @@ pub const MAX_SCHEDULE_S: f64 = 100.0 * 365.25 * 86_400.0;
 /// steps fit only as longer steps). A cap is an error, never a silent truncation.
 pub const MAX_STEPS: usize = 10_000_000;
 
+/// Checks that `steps` steps of `one_cycle_s` in all, repeated `times` times, make a schedule
+/// that ends (at most 100 years) and fits (at most [`MAX_STEPS`] steps).
+///
+/// # Errors
+/// [`crate::ErrorKind::InvalidInput`] saying which bound is passed and what to change.
+pub fn check_size(steps: usize, one_cycle_s: f64, times: u64) -> Result<()> {
+    if times == 0 {
+        return Err(Error::input("repeat must be at least 1"));
+    }
+    if one_cycle_s * times as f64 > MAX_SCHEDULE_S {
+        return Err(Error::input(format!(
+            "the schedule would last {:.3e} s, more than 100 years; a schedule must end",
+            one_cycle_s * times as f64
+        )));
+    }
+    let total = (steps as u64).saturating_mul(times);
+    if total > MAX_STEPS as u64 {
+        return Err(Error::input(format!(
+            "{steps} steps × {times} repeats = {total} steps, more than the {MAX_STEPS} a schedule may hold; use longer \
+             steps or fewer repeats"
+        )));
+    }
+    Ok(())
+}
+
 impl Schedule {
     /// Adds a step called `name`.
     ///
@@ -63,24 +88,8 @@ impl Schedule {
     /// # Errors
     /// [`crate::ErrorKind::InvalidInput`] for 0 repeats or a schedule longer than 100 years.
     pub fn repeat(&mut self, times: u64) -> Result<()> {
-        if times == 0 {
-            return Err(Error::input("repeat must be at least 1"));
-        }
         let one: f64 = self.steps.iter().map(|s| s.duration_s).sum();
-        if one * times as f64 > MAX_SCHEDULE_S {
-            return Err(Error::input(format!(
-                "the schedule would last {:.3e} s, more than 100 years; a schedule must end",
-                one * times as f64
-            )));
-        }
-        let total = (self.steps.len() as u64).saturating_mul(times);
-        if total > MAX_STEPS as u64 {
-            return Err(Error::input(format!(
-                "{} steps × {times} repeats = {total} steps, more than the {MAX_STEPS} a schedule may hold; use longer steps \
-                 or fewer repeats",
-                self.steps.len()
-            )));
-        }
+        check_size(self.steps.len(), one, times)?;
         let base = self.steps.clone();
         for _ in 1..times {
             self.steps.extend_from_slice(&base);

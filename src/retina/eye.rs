@@ -15,7 +15,7 @@ use crate::base::units::{parse_area, parse_length, parse_number, parse_time};
 use crate::weighting::lens::human_media_transmittance;
 
 /// The species the tool has eye models for.
-#[derive(Debug, Clone, Copy, PartialEq, Eq, serde::Serialize)]
+#[derive(Debug, Clone, Copy, PartialEq, Eq, serde::Serialize, serde::Deserialize)]
 #[serde(rename_all = "kebab-case")]
 pub enum Species {
     /// Homo sapiens.

@@ -13,19 +13,17 @@ use serde::Deserialize;
 use crate::base::error::{Error, Result};
 use crate::base::quantity::{SiValue, Time};
 use crate::base::toml_errors::describe;
-use crate::base::units::{
-    parse_illuminance, parse_length, parse_luminous_intensity, parse_number, parse_time,
-};
+use crate::base::units::parse_time;
 use crate::housing::guidance::{GuidanceSet, find_guidance};
-use crate::housing::survey::{Luminaire, Rack};
+use crate::housing::room::Room;
 use crate::limits::{LimitSet, find_set};
 use crate::pigment::kinetics::{Model, Pigment, find_pigment};
 use crate::retina::eye::Species;
 use crate::retina::pupil::PupilRule;
 use crate::retina::report::RetinaScenario;
-use crate::scenario::retina::{FilterSpec, SourceSpec, SubjectSpec, build, resolve_spectrum};
+use crate::scenario::retina::{FilterSpec, SourceSpec, SubjectSpec, build};
+use crate::scenario::room::{Context, RawRoom, resolve_room};
 use crate::scenario::{Phase, Pigmentation};
-use crate::spectrum::Spectrum;
 
 #[derive(Deserialize)]
 #[serde(deny_unknown_fields)]
@@ -39,7 +37,8 @@ struct RawScenario {
     schedule: Option<RawSchedule>,
     limits: Option<RawLimits>,
     guidance: Option<RawGuidance>,
-    survey: Option<RawSurvey>,
+    survey: Option<toml::Value>,
+    room: Option<RawRoom>,
 }
 
 #[derive(Deserialize)]
@@ -87,35 +86,6 @@ struct RawLimits {
 #[serde(deny_unknown_fields)]
 struct RawGuidance {
     sets: Vec<String>,
-}
-
-#[derive(Deserialize)]
-#[serde(deny_unknown_fields)]
-struct RawSurvey {
-    shelves: usize,
-    columns: usize,
-    first_column_x: String,
-    column_spacing: String,
-    rack_y: String,
-    bottom_shelf: String,
-    shelf_spacing: String,
-    cage_transmittance: String,
-    shelf_shading: Option<String>,
-    light_spectrum: String,
-    dark_spectrum: Option<String>,
-    dark_lux: Option<String>,
-    measurements: Option<String>,
-    #[serde(default)]
-    luminaire: Vec<RawLuminaire>,
-}
-
-#[derive(Deserialize)]
-#[serde(deny_unknown_fields)]
-struct RawLuminaire {
-    x: String,
-    y: String,
-    z: String,
-    intensity: String,
 }
 
 /// How the pupil of dark-phase steps was chosen.
@@ -173,27 +143,6 @@ pub struct LimitsSpec {
     pub aphakic: bool,
 }
 
-/// A housing survey, resolved.
-#[derive(Debug, Clone)]
-pub struct SurveySpec {
-    /// The rack.
-    pub rack: Rack,
-    /// Ceiling luminaires (geometry mode).
-    pub luminaires: Vec<Luminaire>,
-    /// Measured lux readings: the file's text and its path (measured mode).
-    pub measurements: Option<(String, String)>,
-    /// Cage wall transmittance, 0–1.
-    pub cage_transmittance: f64,
-    /// Shading per shelf above, 0–1.
-    pub shelf_shading: f64,
-    /// Spectrum of the room light (shape; scaled per position).
-    pub light_spectrum: Spectrum,
-    /// Spectrum of the dark-phase leak (shape).
-    pub dark_spectrum: Spectrum,
-    /// Uniform dark-phase leak at cage level, lx, when no measured dark readings.
-    pub dark_lux: f64,
-}
-
 /// A scenario, resolved: every later stage reads only these values.
 #[derive(Debug, Clone)]
 pub struct Scenario {
@@ -223,8 +172,8 @@ pub struct Scenario {
     pub limits: Option<LimitsSpec>,
     /// Guidance sets.
     pub guidance: Vec<&'static GuidanceSet>,
-    /// Housing survey.
-    pub survey: Option<SurveySpec>,
+    /// The holding room, when the scenario surveys one.
+    pub room: Option<Room>,
 }
 
 impl Scenario {
@@ -278,7 +227,18 @@ fn resolve(raw: RawScenario, origin: &str, base: Option<&Path>) -> Result<Scenar
             .map(|s| find_guidance(s).map_err(|e| e.key("sets").key("guidance")))
             .collect::<Result<Vec<_>>>()?,
     };
-    let survey = raw.survey.map(|s| survey(s, base).map_err(|e| e.key("survey"))).transpose()?;
+    if raw.survey.is_some() {
+        let msg = "[survey] became [room]: luminaires as [[room.luminaire]], each rack as [[room.rack]] with its animals \
+                   (see `retidose assess --example vivarium`)";
+        return Err(Error::input(msg).key("survey"));
+    }
+    let room = match raw.room {
+        Some(r) => {
+            let cx = room_context(species, pigmentation, &view, dark_pupil, schedule.as_ref(), base);
+            Some(resolve_room(r, &cx).map_err(|e| e.key("room"))?)
+        }
+        None => None,
+    };
     Ok(Scenario {
         name: raw.scenario.name,
         title: raw.scenario.title,
@@ -293,8 +253,36 @@ fn resolve(raw: RawScenario, origin: &str, base: Option<&Path>) -> Result<Scenar
         schedule,
         limits,
         guidance,
-        survey,
+        room,
     })
+}
+
+/// What the room takes from the rest of the scenario.
+fn room_context<'a>(
+    species: Species,
+    pigmentation: Option<Pigmentation>,
+    view: &RetinaScenario,
+    dark_pupil: PupilRule,
+    schedule: Option<&ScheduleSpec>,
+    base: Option<&'a Path>,
+) -> Context<'a> {
+    let phases = schedule.map(|sc| {
+        let sum = |dark: bool| -> f64 {
+            sc.steps
+                .iter()
+                .filter(|st| st.phase.is_some_and(|p| p.is_dark() == dark))
+                .map(|st| st.duration.si())
+                .sum()
+        };
+        (sum(false), sum(true), u32::try_from(sc.repeat).unwrap_or(u32::MAX))
+    });
+    Context {
+        subject: (species, pigmentation),
+        pupils: (view.pupil, dark_pupil),
+        schedule: phases,
+        model: schedule.map_or(Model::RateLimited, |s| s.model),
+        base,
+    }
 }
 
 fn source_ids(sources: &[SourceSpec]) -> Result<Vec<String>> {
@@ -349,9 +337,8 @@ fn schedule(s: RawSchedule, species: Species, ids: &[String], seen: &[bool]) -> 
         return Err(at(Error::input("a schedule needs at least one step"), "step"));
     }
     let repeat = s.repeat.unwrap_or(1);
-    if repeat == 0 {
-        return Err(at(Error::input("repeat must be at least 1"), "repeat"));
-    }
+    let one: f64 = steps.iter().map(|st| st.duration.si()).sum();
+    crate::pigment::schedule::check_size(steps.len(), one, repeat).map_err(|e| at(e, "repeat"))?;
     Ok(ScheduleSpec { pigment, model: model.unwrap_or(Model::RateLimited), steps, repeat })
 }
 
@@ -418,85 +405,6 @@ fn limits(l: RawLimits, ids: &[String]) -> Result<LimitsSpec> {
         general_lighting: l.general_lighting,
         aphakic: l.aphakic,
     })
-}
-
-fn fraction(text: &str, key: &str) -> Result<f64> {
-    let v = parse_number(text).map_err(|e| e.key(key))?;
-    if !(0.0..=1.0).contains(&v) {
-        return Err(Error::input(format!("{v} must be between 0 and 1")).key(key));
-    }
-    Ok(v)
-}
-
-fn survey(s: RawSurvey, base: Option<&Path>) -> Result<SurveySpec> {
-    let len = |t: &str, k: &str| parse_length(t).map(|l| l.si()).map_err(|e| e.key(k));
-    let rack = Rack {
-        shelves: s.shelves,
-        columns: s.columns,
-        x0_m: len(&s.first_column_x, "first_column_x")?,
-        column_spacing_m: len(&s.column_spacing, "column_spacing")?,
-        y_m: len(&s.rack_y, "rack_y")?,
-        bottom_m: len(&s.bottom_shelf, "bottom_shelf")?,
-        shelf_spacing_m: len(&s.shelf_spacing, "shelf_spacing")?,
-    };
-    rack.count().map_err(|e| e.key("columns"))?;
-    let luminaires = s
-        .luminaire
-        .iter()
-        .enumerate()
-        .map(|(i, l)| luminaire(l).map_err(|e| e.key(&format!("luminaire[{i}]"))))
-        .collect::<Result<Vec<_>>>()?;
-    let measurements = s.measurements.as_deref().map(|f| read_relative(f, base)).transpose()?;
-    if luminaires.is_empty() == measurements.is_none() {
-        return Err(Error::input(
-            "give either [[survey.luminaire]] tables or a measurements file, not both or neither",
-        ));
-    }
-    let dark_lux = match &s.dark_lux {
-        Some(t) => parse_illuminance(t).map_err(|e| e.key("dark_lux"))?.si(),
-        None => 0.0,
-    };
-    if !(dark_lux >= 0.0 && dark_lux.is_finite()) {
-        return Err(Error::input(format!("{dark_lux} lx must be a finite number ≥ 0 lx")).key("dark_lux"));
-    }
-    let light_spectrum = resolve_spectrum(&s.light_spectrum, base).map_err(|e| e.key("light_spectrum"))?;
-    let dark_spectrum = match &s.dark_spectrum {
-        Some(d) => resolve_spectrum(d, base).map_err(|e| e.key("dark_spectrum"))?,
-        None => light_spectrum.clone(),
-    };
-    Ok(SurveySpec {
-        rack,
-        luminaires,
-        measurements,
-        cage_transmittance: fraction(&s.cage_transmittance, "cage_transmittance")?,
-        shelf_shading: s
-            .shelf_shading
-            .as_deref()
-            .map(|x| fraction(x, "shelf_shading"))
-            .transpose()?
-            .unwrap_or(1.0),
-        light_spectrum,
-        dark_spectrum,
-        dark_lux,
-    })
-}
-
-fn luminaire(l: &RawLuminaire) -> Result<Luminaire> {
-    let len = |t: &str, k: &str| parse_length(t).map(|l| l.si()).map_err(|e| e.key(k));
-    let intensity_cd = parse_luminous_intensity(&l.intensity).map_err(|e| e.key("intensity"))?.si();
-    if !(intensity_cd >= 0.0 && intensity_cd.is_finite()) {
-        return Err(
-            Error::input(format!("{intensity_cd} cd must be a finite number ≥ 0 cd")).key("intensity")
-        );
-    }
-    Ok(Luminaire { x_m: len(&l.x, "x")?, y_m: len(&l.y, "y")?, z_m: len(&l.z, "z")?, intensity_cd })
-}
-
-fn read_relative(file: &str, base: Option<&Path>) -> Result<(String, String)> {
-    let p = crate::scenario::retina::rel(base, file);
-    let text = std::fs::read_to_string(&p)
-        .map_err(|e| Error::input(format!("cannot read {}: {e}", p.display())).key("measurements"))?;
-    Ok((text, p.display().to_string()))
 }
 
 #[cfg(test)]

@@ -10,6 +10,7 @@
 pub mod bleach;
 pub mod file;
 pub mod retina;
+pub mod room;
 
 use serde::Serialize;
 

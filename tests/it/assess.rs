@@ -54,11 +54,11 @@ fn vivarium_demo_values() {
     assert!(rel(panels["illuminance"]["raw"].as_f64().unwrap(), 200.0) < 1e-9);
     // Survey: top shelf, column 3 at (1.3 m, 0.5 m, 0.25 + 4·0.38 m); two 900 cd Lambertian
     // panels at (0.7, 1.2, 2.6) and (1.6, 1.2, 2.6): E = Σ I h²/d⁴ (no shelves above).
-    let p = v["survey"]["positions"]
+    let p = v["room"]["rows"]
         .as_array()
         .unwrap()
         .iter()
-        .find(|p| p["position"]["shelf"] == 5 && p["position"]["column"] == 3)
+        .find(|p| p["rack"] == 0 && p["shelf"] == 5 && p["column"] == 3)
         .unwrap();
     let z = 0.25 + 4.0 * 0.38;
     let e: f64 = [(0.7f64, 1.2f64), (1.6, 1.2)]
@@ -72,15 +72,15 @@ fn vivarium_demo_values() {
     assert!(rel(p["room_lux"].as_f64().unwrap(), e) < 1e-12, "{} vs {e}", p["room_lux"]);
     assert!(rel(p["cage_lux"].as_f64().unwrap(), 0.8 * e) < 1e-12);
     // One shelf down is shaded by 0.55 (the scenario's shelf_shading).
-    let below = v["survey"]["positions"]
+    let below = v["room"]["rows"]
         .as_array()
         .unwrap()
         .iter()
-        .find(|p| p["position"]["shelf"] == 4 && p["position"]["column"] == 3)
+        .find(|p| p["rack"] == 0 && p["shelf"] == 4 && p["column"] == 3)
         .unwrap();
     assert!(below["room_lux"].as_f64().unwrap() < 0.55 * e);
     // 650 lx at the top is above the Guide's 325 lx for albino animals: flagged.
-    assert!(p["flags"].as_array().unwrap().iter().any(|f| f == "cage-level-upper"));
+    assert!(p["flags"].as_array().unwrap().iter().any(|f| f == "above"));
     // The 0.3 lx door leak raises the dark-phase flag; Dauchy's findings are evidence only.
     assert!(
         v["guidance"]
@@ -269,17 +269,14 @@ duration = "12 h"
 on = []
 [guidance]
 sets = ["nrc-guide-2011"]
-[survey]
+[room]
+light_spectrum = "neutral-white-led"
+readings = "one.csv"
+[[room.rack]]
+id = "only"
 shelves = 1
 columns = 1
-first_column_x = "0 m"
-column_spacing = "1 m"
-rack_y = "0 m"
-bottom_shelf = "0.5 m"
-shelf_spacing = "1 m"
 cage_transmittance = "1"
-light_spectrum = "neutral-white-led"
-measurements = "one.csv"
 "#
     )
 }
@@ -289,7 +286,8 @@ fn a_survey_of_one_position_equals_assessing_that_position() {
     let dir = temp_file("one.csv", "shelf,column,lux\n1,1,200\n").parent().unwrap().to_path_buf();
     let s = parse_scenario_file(&one_cage("200 lx"), "one.toml", Some(&dir)).unwrap();
     let a = assess(&s).unwrap();
-    let pos = &a.survey.as_ref().unwrap().positions[0];
+    let room = a.room.as_ref().unwrap();
+    let pos = room.rows.0.row(0);
     let rod = a.retina.as_ref().unwrap().sources[0].retinal.as_ref().unwrap().catch[0].rate;
     use retidose::base::quantity::SiValue;
     assert!(rel(pos.rod_rate, rod.si()) < 1e-12, "{} vs {}", pos.rod_rate, rod.si());
@@ -304,8 +302,8 @@ fn housing_flags_change_state_exactly_at_the_guidance_thresholds() {
             temp_file("one.csv", &format!("shelf,column,lux\n1,1,{lux}\n")).parent().unwrap().to_path_buf();
         let s = parse_scenario_file(&one_cage("200 lx"), "one.toml", Some(&dir)).unwrap();
         let a = assess(&s).unwrap();
-        let p = &a.survey.as_ref().unwrap().positions[0];
-        assert_eq!(p.flags.iter().any(|f| f.starts_with("cage-level")), flagged, "{lux} lx: {:?}", p.flags);
+        let p = a.room.as_ref().unwrap().rows.0.row(0);
+        assert_eq!(p.flags.any(), flagged, "{lux} lx: {:?}", p.flags);
     }
 }
 

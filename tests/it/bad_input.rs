@@ -51,7 +51,12 @@ fn huge_racks_repeats_and_ages_are_errors_not_crashes() {
     rejects(
         "cols.toml",
         &v.replace("columns = 4", "columns = 9223372036854775807"),
-        &["key 'survey.columns'", "positions a survey may hold"],
+        &["key 'room.rack[0].columns'", "whole number"],
+    );
+    rejects(
+        "big.toml",
+        &v.replace("columns = 4", "columns = 9000000").replace("shelves = 5", "shelves = 9000"),
+        &["positions", "a room may hold"],
     );
     rejects("repeat.toml", &v.replace("repeat = 7", "repeat = 1500000000000"), &["schedule", "100 years"]);
     let r = review();
@@ -98,19 +103,34 @@ fn a_lamp_file_naming_itself_is_an_error() {
 #[test]
 fn readings_and_room_values_must_be_physical() {
     let v = vivarium();
-    rejects("dark.toml", &v.replace("dark_lux = \"0.3 lx\"", "dark_lux = \"-0.3 lx\""), &["survey.dark_lux"]);
+    rejects("dark.toml", &v.replace("leak = \"0.3 lx\"", "leak = \"-0.3 lx\""), &["room.leak", "≥ 0 lx"]);
     rejects(
         "cd.toml",
         &v.replacen("intensity = \"900 cd\"", "intensity = \"-900 cd\"", 1),
-        &["survey.luminaire[0].intensity"],
+        &["room.luminaire[0].intensity", "≥ 0 cd"],
     );
-    write("half.csv", "shelf,column,lux\n2.5,1,100\n");
-    let with_readings = v
-        .split("[[survey.luminaire]]")
-        .next()
-        .unwrap()
-        .replace("dark_lux = \"0.3 lx\"", "dark_lux = \"0.3 lx\"\nmeasurements = \"half.csv\"");
-    rejects("half.toml", &with_readings, &["half.csv:2", "whole number"]);
+    rejects(
+        "shelf.toml",
+        &v.replacen("shelves = 5", "shelves = 2.5", 1),
+        &["room.rack[0].shelves", "whole number"],
+    );
+    let with_readings = v.replace("leak = \"0.3 lx\"", "leak = \"0.3 lx\"\nreadings = \"half.csv\"");
+    let cases = [
+        ("rack,shelf,column,lux\nA,2.5,1,100\n", &["half.csv:2", "field 'shelf'", "whole number"][..]),
+        ("rack,shelf,column,lux\nA,1,1,-4\n", &["half.csv:2", "field 'lux'", "≥ 0 lx"][..]),
+        ("rack,shelf,column,lux\nA,9,1,100\n", &["half.csv:2", "rack A has no shelf 9", "shelves 1–5"][..]),
+        ("rack,shelf,column,lux\nC,1,1,100\n", &["half.csv:2", "field 'rack'", "racks: A, B"][..]),
+        ("rack,shelf,column,lux\nA,1,1,100\nA,1,1,90\n", &["half.csv:3", "given twice"][..]),
+        ("shelf,column,lux\n1,1,100\n", &["half.csv:1", "needs a rack column"][..]),
+        (
+            "rack,shelf,column,lux,dark_lux\nA,1,1,100,x\n",
+            &["half.csv:2", "field 'dark_lux'", "not a number"][..],
+        ),
+    ];
+    for (csv, needles) in cases {
+        write("half.csv", csv);
+        rejects("half.toml", &with_readings, needles);
+    }
 }
 
 #[test]

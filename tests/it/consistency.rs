@@ -7,6 +7,7 @@
 use assert_cmd::Command;
 use retidose::assess::{Assessment, GuidanceBasis, assess, parse_scenario_file};
 use retidose::base::quantity::SiValue;
+use retidose::housing::pass::Flags;
 use retidose::pigment::kinetics::find_pigment;
 use retidose::scenario::Phase;
 use serde_json::Value;
@@ -52,9 +53,12 @@ fn vivarium_same_light_same_number_in_every_section() {
     assert!(rel(row.level, light.level) < 1e-12);
     // The leak in the dark phase: dark-adapted pupil and cage wall, as in the survey, whose
     // positions all get the same 0.3 lx leak.
-    let sv = a.survey.as_ref().unwrap();
-    for p in &sv.positions {
-        assert!(rel(p.dark_rod_rate, dark.level) < 1e-12, "{} vs {}", p.dark_rod_rate, dark.level);
+    let room_result = a.room.as_ref().unwrap();
+    let plan = &room_result.rows.0;
+    // Rack A holds the subject's albino mice behind the same 0.8 cage wall.
+    let rack_a: Vec<_> = (0..plan.racks[0].len).map(|i| plan.row(i)).collect();
+    for p in &rack_a {
+        assert!(rel(p.leak_rod_rate, dark.level) < 1e-12, "{} vs {}", p.leak_rod_rate, dark.level);
     }
     let dark_row = b.phases.iter().find(|p| p.name == dark.name).unwrap();
     assert!(rel(dark_row.level, dark.level) < 1e-12);
@@ -62,14 +66,16 @@ fn vivarium_same_light_same_number_in_every_section() {
     // same spectrum, the light-adapted pupil): rate/lux is the same.
     let room = light.room_illuminance.get::<lux>();
     assert!(rel(room, 250.0) < 1e-12);
-    for p in &sv.positions {
+    for p in &rack_a {
         assert!(rel(p.rod_rate / p.room_lux, light.level / room) < 1e-12);
     }
-    // The Guidance table's light-phase rows come from the survey positions, so they agree.
-    let outside_upper =
-        sv.positions.iter().filter(|p| p.flags.iter().any(|f| f == "cage-level-upper")).count();
+    // The Guidance table's light-phase rows come from the rack's positions, so they agree.
+    let outside_upper = rack_a.iter().filter(|p| p.flags.has(Flags::ABOVE)).count();
     let row = a.guidance.iter().find(|g| g.flag.rule == "cage-level-upper").unwrap();
-    assert_eq!(row.basis, GuidanceBasis::Survey { outside: outside_upper, positions: sv.positions.len() });
+    assert_eq!(
+        row.basis,
+        GuidanceBasis::Survey { rack: "A".into(), outside: outside_upper, positions: rack_a.len() }
+    );
     // Mice get no human rod-threshold estimate.
     assert!(b.thresholds.is_empty());
 }
@@ -96,9 +102,14 @@ fn vivarium_json_carries_the_library_figures() {
         assert!(rel(s["level"].as_f64().unwrap(), lib.level) < 1e-12);
         assert!(rel(s["rod_rate"].as_f64().unwrap(), lib.rod_rate.unwrap().si()) < 1e-12);
     }
-    let positions = v["survey"]["positions"].as_array().unwrap();
-    for (p, lib) in positions.iter().zip(&a.survey.as_ref().unwrap().positions) {
-        assert!(rel(p["dark_rod_rate"].as_f64().unwrap(), lib.dark_rod_rate) < 1e-12);
+    let rows = v["room"]["rows"].as_array().unwrap();
+    let plan = &a.room.as_ref().unwrap().rows.0;
+    assert_eq!(rows.len(), plan.len());
+    for (i, p) in rows.iter().enumerate() {
+        let lib = plan.row(i);
+        assert!(rel(p["leak_rod_rate"].as_f64().unwrap(), lib.leak_rod_rate) < 1e-12);
+        assert!(rel(p["room_lux"].as_f64().unwrap(), lib.room_lux) < 1e-12);
+        assert!(rel(p["events"][0]["rod_rate"].as_f64().unwrap(), lib.events[0].rod_rate) < 1e-12);
     }
     let text = String::from_utf8(
         Command::cargo_bin("retidose")

@@ -201,10 +201,10 @@ const FILTER_CSV: &str =
     "# name: fuzz filter\nwavelength_nm,transmittance\n380,0.1\n480,0.5\n580,0.8\n780,0.9\n";
 /// Survey readings for the vivarium demo's 5 × 4 rack.
 fn measurements_csv() -> String {
-    let mut t = String::from("shelf,column,lux,dark_lux\n");
+    let mut t = String::from("rack,shelf,column,lux,dark_lux\n");
     for shelf in 1..=5 {
         for column in 1..=4 {
-            let _ = writeln!(t, "{shelf},{column},{},{}", 40 * shelf + 10 * column, 0.1 * f64::from(shelf));
+            let _ = writeln!(t, "A,{shelf},{column},{},{}", 40 * shelf + 10 * column, 0.1 * f64::from(shelf));
         }
     }
     t
@@ -290,8 +290,10 @@ fn scenario_seeds() -> Vec<String> {
             .replacen("\ntransmittance = \"0.8\"", "\nfile = \"filter.csv\"", 1)
             .replace("pupil = \"light\"", "pupil = \"light\"\neye_file = \"mouse.toml\""),
     );
-    let cut = viv.find("[[survey.luminaire]]").unwrap_or(viv.len());
-    v.push(format!("{}measurements = \"measurements.csv\"\n", &viv[..cut]));
+    v.push(viv.replace(
+        "leak = \"0.3 lx\"",
+        "leak = \"0.3 lx\"\nreadings = \"measurements.csv\"\ncalibrate = \"per-luminaire\"",
+    ));
     v.push(
         demo("stimulus-review")
             .replace("spectrum = \"stimulus-460-led\"", "spectrum = \"lamp.toml\"")

@@ -8,6 +8,7 @@ mod cli;
 mod consistency;
 mod fuzz;
 mod hazard_oracle;
+mod hostile_text;
 mod limits_reference;
 mod properties;
 mod reference;

@@ -40,40 +40,133 @@ pub fn time_course(r: &BleachReport) -> String {
     o
 }
 
-/// CSV: one row per cage position when there is a survey, otherwise one row per hazard.
-pub fn assessment(all: &[Assessment]) -> String {
-    let mut o = String::new();
-    let survey = all.iter().any(|a| a.survey.is_some());
-    if survey {
-        survey_rows(&mut o, all);
+/// CSV of `assess`: one row per cage position when a scenario surveys a room (streamed: the
+/// rows are written as they are computed), otherwise one row per hazard.
+///
+/// # Errors
+/// The writer's errors.
+pub fn assessment_to(all: &[Assessment], w: &mut dyn std::io::Write) -> std::io::Result<()> {
+    if all.iter().any(|a| a.room.is_some()) {
+        position_rows(all, w)
     } else {
+        let mut o = String::new();
         hazard_rows(&mut o, all);
+        w.write_all(o.as_bytes())
     }
-    o
 }
 
-/// One row per cage position of every survey.
-fn survey_rows(o: &mut String, all: &[Assessment]) {
-    o.push_str("scenario,shelf,column,room_lux,cage_lux,dark_room_lux,rod_r_star_per_s,melanopsin_photons_per_m2_s,light_bleach,dark_bleach,recovery_90_s,flags\n");
+/// The per-position header; `events` event column groups.
+fn position_header(events: usize) -> String {
+    let mut h = String::from(
+        "scenario,rack,shelf,column,basis,model_lux,calibrated_lux,reading_lux,reading_over_model,room_lux,cage_lux,\
+         rod_r_star_per_s,melanopsin_photons_per_m2_s,light_bleach,recovery_90_s,leak_lux,leak_rod_r_star_per_s,\
+         leak_melanopsin_photons_per_m2_s,leak_bleach",
+    );
+    for k in 1..=events {
+        let _ = write!(
+            h,
+            ",event{k}_lux,event{k}_rod_r_star_per_s,event{k}_melanopsin_photons_per_m2_s,event{k}_peak_bleach,event{k}_recovery_s"
+        );
+    }
+    h.push_str(
+        ",melanopic_photons_per_m2_per_night,flags
+",
+    );
+    h
+}
+
+/// A number for a data file: the shortest text that reads back to the same value; scientific
+/// notation outside 10⁻⁴–10¹⁵; empty for a missing value (NaN); `inf` for a time never reached.
+fn put(w: &mut dyn std::io::Write, v: f64) -> std::io::Result<()> {
+    let a = v.abs();
+    if v.is_nan() {
+        Ok(())
+    } else if v.is_infinite() {
+        w.write_all(b"inf")
+    } else if a == 0.0 || (1e-4..1e15).contains(&a) {
+        write!(w, "{v}")
+    } else {
+        write!(w, "{v:e}")
+    }
+}
+
+/// One row per cage position of every room, streamed.
+fn position_rows(all: &[Assessment], w: &mut dyn std::io::Write) -> std::io::Result<()> {
+    let events = all.iter().filter_map(|a| a.room.as_ref()).map(|r| r.events.len()).max().unwrap_or(0);
+    w.write_all(position_header(events).as_bytes())?;
     for a in all {
-        for p in a.survey.iter().flat_map(|s| &s.positions) {
-            let _ = writeln!(
-                o,
-                "{},{},{},{},{},{},{},{},{},{},{},{}",
-                csv_field(&a.name),
-                p.position.shelf,
-                p.position.column,
-                p.room_lux,
-                p.cage_lux,
-                p.dark_room_lux,
-                p.rod_rate,
-                p.opic[3],
-                p.light_bleach,
-                p.dark_bleach,
-                p.recovery_90_s.map_or(String::new(), |x| x.to_string()),
-                csv_field(&p.flags.join(" "))
-            );
-        }
+        let Some(room) = &a.room else { continue };
+        let name = csv_field(&a.name);
+        let n = room.events.len();
+        retidose::housing::summary::stream(&room.rows.0, |rows| {
+            for p in rows {
+                write!(
+                    w,
+                    "{name},{},{},{},{}",
+                    csv_field(&room.racks[p.rack].id),
+                    p.shelf,
+                    p.column,
+                    basis_word(p.basis)
+                )?;
+                let ratio = p.reading_lux / p.model_lux;
+                for v in [
+                    p.model_lux,
+                    p.calibrated_lux,
+                    p.reading_lux,
+                    ratio,
+                    p.room_lux,
+                    p.cage_lux,
+                    p.rod_rate,
+                    p.opic[3],
+                ] {
+                    w.write_all(b",")?;
+                    put(w, v)?;
+                }
+                for v in [
+                    p.light_bleach,
+                    p.recovery_90_s,
+                    p.leak_lux,
+                    p.leak_rod_rate,
+                    p.leak_melanopsin,
+                    p.leak_bleach,
+                ] {
+                    w.write_all(b",")?;
+                    put(w, v)?;
+                }
+                for e in &p.events[..n] {
+                    for v in [e.room_lux, e.rod_rate, e.melanopsin, e.peak_bleach, e.recovery_s] {
+                        w.write_all(b",")?;
+                        put(w, v)?;
+                    }
+                }
+                for _ in n..events {
+                    w.write_all(b",,,,,")?;
+                }
+                w.write_all(b",")?;
+                put(w, p.melanopic_dose)?;
+                w.write_all(b",")?;
+                for (k, f) in p.flags.names().enumerate() {
+                    w.write_all(if k == 0 { f.as_bytes() } else { b" " })?;
+                    if k > 0 {
+                        w.write_all(f.as_bytes())?;
+                    }
+                }
+                w.write_all(
+                    b"
+",
+                )?;
+            }
+            Ok::<(), std::io::Error>(())
+        })?;
+    }
+    Ok(())
+}
+
+fn basis_word(b: retidose::housing::pass::Basis) -> &'static str {
+    match b {
+        retidose::housing::pass::Basis::Reading => "reading",
+        retidose::housing::pass::Basis::Model => "model",
+        retidose::housing::pass::Basis::Predicted => "predicted",
     }
 }
 
@@ -111,6 +204,13 @@ fn hazard_rows(o: &mut String, all: &[Assessment]) {
 }
 
 /// A CSV field, quoted when it holds a comma, a quote or a newline.
+/// User text is first neutralised against spreadsheet formulas ([`super::escape::csv_cell`]: a
+/// leading `=`, `+`, `-`, `@`, tab or carriage return gets an apostrophe).
 fn csv_field(s: &str) -> String {
-    if s.contains([',', '"', '\n']) { format!("\"{}\"", s.replace('"', "\"\"")) } else { s.to_string() }
+    let s = super::escape::csv_cell(s);
+    if s.contains([',', '"', '\n', '\r']) {
+        format!("\"{}\"", s.replace('"', "\"\""))
+    } else {
+        s.into_owned()
+    }
 }

@@ -3,7 +3,10 @@
 
 use std::fmt::Write;
 
-use retidose::assess::{Assessment, SurveyResult};
+use retidose::assess::Assessment;
+use retidose::housing::survey::RoomResult;
+
+use super::room::{animals, rack_cells, rack_sentences, room_sentences};
 use retidose::base::quantity::SiValue;
 use retidose::limits::report::LimitsAssessment;
 use retidose::limits::{Verdict, find_weighting};
@@ -64,8 +67,8 @@ fn section(o: &mut String, a: &Assessment) {
             esc(&e.source)
         );
     }
-    if let Some(s) = &a.survey {
-        survey(o, s);
+    if let Some(r) = &a.room {
+        room(o, a, r);
     }
     closing(o, a);
 }
@@ -268,18 +271,22 @@ fn guidance(o: &mut String, a: &Assessment) {
     o.push_str("</table>");
 }
 
-/// The housing survey: a sentence and the rack heat map.
-fn survey(o: &mut String, s: &SurveyResult) {
-    let _ = write!(
-        o,
-        "<h2>Housing survey</h2><p>{} × {} positions; {}. {} flagged; max/min over the rack {}×. The NRC Guide's numbers are room illuminance at cage level, not light at the animal's eye.</p>{}",
-        s.shelves,
-        s.columns,
-        esc(&s.mode),
-        s.flagged,
-        num(s.max_over_min),
-        svg::heatmap(s)
-    );
+/// The holding room: the sentences per rack and each rack's heat map.
+fn room(o: &mut String, a: &Assessment, room: &RoomResult) {
+    o.push_str("<h2>Holding room</h2>");
+    for s in room_sentences(room) {
+        let _ = write!(o, "<p>{}</p>", esc(&s));
+    }
+    let cells = rack_cells(room);
+    for (r, c) in room.racks.iter().zip(&cells) {
+        let _ = write!(o, "<h3>Rack {} — {}</h3>", esc(&r.id), esc(&animals(r)));
+        for s in rack_sentences(room, r, &a.evidence) {
+            let _ = write!(o, "<p>{}</p>", esc(&s));
+        }
+        if let Some(c) = c {
+            o.push_str(&svg::heatmap(r, c));
+        }
+    }
 }
 
 /// Sources of limits and guidance, and what was not assessed.

@@ -1,11 +1,22 @@
 //! The `retidose assess` report in Markdown: one section per part of the assessment.
+//!
+//! Every piece of text that comes from the user's files, or from the library's wording that may
+//! quote it (notes, messages, step and source names, set ids, provenance), goes through
+//! [`escape::markdown`] by way of [`user`], so a title cannot add a heading, a link or raw HTML;
+//! text formatted here from numbers and fixed words only needs its table pipes escaped
+//! ([`cell`]).
 
 use std::fmt::Write;
 
-use retidose::assess::{Assessment, SurveyResult};
+use retidose::assess::Assessment;
+use retidose::housing::pass::{Basis, Flags};
+use retidose::housing::survey::RoomResult;
+
+use super::room::{Cell, animals, rack_cells, rack_sentences, room_sentences};
 use retidose::limits::report::LimitsAssessment;
 use retidose::pigment::bleach::BleachReport;
 
+use super::escape;
 use super::{
     STEP_HEADER, basis_text, data_notes, fov_and_c_alpha, num, pupil_line, recovery_text, step_rows, t_max,
     verdict_word,
@@ -30,8 +41,8 @@ pub fn assessment(all: &[Assessment]) -> String {
         if !a.guidance.is_empty() {
             guidance(&mut o, a);
         }
-        if let Some(s) = &a.survey {
-            survey(&mut o, s);
+        if let Some(r) = &a.room {
+            room(&mut o, a, r);
         }
         closing(&mut o, a);
     }
@@ -40,15 +51,16 @@ pub fn assessment(all: &[Assessment]) -> String {
 
 /// Title, description, cautions and the pupil rule.
 fn heading(o: &mut String, a: &Assessment) {
-    let _ = writeln!(o, "# {}\n", md(&a.title));
+    let _ = writeln!(o, "# {}\n", user(&a.title));
     if let Some(d) = &a.description {
-        let _ = writeln!(o, "{}\n", md(d));
+        let _ = writeln!(o, "{}\n", user(d));
     }
     for c in &a.cautions {
-        let _ = writeln!(o, "> **Caution.** {}\n", md(c));
+        // The library's fixed cautions, no user text.
+        let _ = writeln!(o, "> **Caution.** {}\n", cell(c));
     }
     if let Some(line) = pupil_line(a) {
-        let _ = writeln!(o, "{}\n", md(&line));
+        let _ = writeln!(o, "{}\n", user(&line));
     }
 }
 
@@ -61,7 +73,12 @@ fn steps(o: &mut String, a: &Assessment) {
         "---|".repeat(STEP_HEADER.len())
     );
     for r in step_rows(a) {
-        let _ = writeln!(o, "| {} |", r.iter().map(|c| md(c)).collect::<Vec<_>>().join(" | "));
+        let cells: Vec<String> = r
+            .iter()
+            .enumerate()
+            .map(|(i, c)| if STEP_USER_COLUMNS.contains(&i) { user(c) } else { cell(c) })
+            .collect();
+        let _ = writeln!(o, "| {} |", cells.join(" | "));
     }
     let _ = writeln!(o);
 }
@@ -71,21 +88,21 @@ fn pigment(o: &mut String, b: &BleachReport) {
     let _ = writeln!(
         o,
         "## Pigment ({}, {} model)\n\n| phase | level | bleached at end | steady state |\n|---|---|---|---|",
-        b.receptor,
+        user(&b.receptor),
         b.model.name()
     );
     for p in &b.phases {
         let _ = writeln!(
             o,
             "| {} | {} {} | {:.3} % | {:.3} % |",
-            md(&p.name),
+            user(&p.name),
             num(p.level),
             b.level_unit.symbol(),
             100.0 * p.end,
             100.0 * p.steady_state
         );
     }
-    let _ = writeln!(o, "\nPeak {:.3} %; {}.\n", 100.0 * b.summary.peak, recovery_text(b));
+    let _ = writeln!(o, "\nPeak {:.3} %; {}.\n", 100.0 * b.summary.peak, user(&recovery_text(b)));
 }
 
 /// One limits check: a row per hazard with its verdict.
@@ -93,28 +110,28 @@ fn limits(o: &mut String, src: &str, l: &LimitsAssessment) {
     let _ = writeln!(
         o,
         "## Exposure limits: {} against {}\n\n| hazard | clause | ratio | t_max | field / C_α | verdict |\n|---|---|---|---|---|---|",
-        md(src),
-        l.set_id
+        user(src),
+        user(&l.set_id)
     );
     for h in &l.hazards {
         let _ = writeln!(
             o,
             "| {} | {} | {} | {} | {} | {}{} |",
-            md(&h.name),
-            md(&h.clause),
+            user(&h.name),
+            user(&h.clause),
             h.ratio.map_or("—".into(), num),
-            t_max(h),
-            md(&fov_and_c_alpha(h)),
+            cell(&t_max(h)),
+            user(&fov_and_c_alpha(h)),
             verdict_word(h),
             if h.from_memory.is_empty() { "" } else { " (from memory)" }
         );
     }
     let _ = writeln!(o);
     for n in data_notes(&l.notes) {
-        let _ = writeln!(o, "> **Note.** {}\n", md(n));
+        let _ = writeln!(o, "> **Note.** {}\n", user(n));
     }
     if let Some(Err(why)) = &l.classification {
-        let _ = writeln!(o, "Risk group (IEC 62471): not assessed: {}\n", md(why));
+        let _ = writeln!(o, "Risk group (IEC 62471): not assessed: {}\n", user(why));
     }
     if let Some(Ok(c)) = &l.classification {
         let _ = writeln!(
@@ -125,7 +142,7 @@ fn limits(o: &mut String, src: &str, l: &LimitsAssessment) {
             if c.not_assessed.is_empty() { "" } else { " (a lower bound: some hazards were not assessed)" }
         );
         for n in &c.notes {
-            let _ = writeln!(o, "- {}", md(n));
+            let _ = writeln!(o, "- {}", user(n));
         }
         let _ = writeln!(o);
     }
@@ -139,26 +156,91 @@ fn guidance(o: &mut String, a: &Assessment) {
         let _ = writeln!(
             o,
             "| {} | {} | {} | {} | {} |",
-            f.set,
-            md(&phase),
-            md(&f.name),
+            user(&f.set),
+            user(&phase),
+            user(&f.name),
             if f.raised { "**flag**" } else { "ok" },
-            md(&f.message)
+            user(&f.message)
         );
     }
     let _ = writeln!(o);
 }
 
-/// The housing survey in one sentence.
-fn survey(o: &mut String, s: &SurveyResult) {
+/// The holding room: the sentences per rack and each rack's map as a table.
+fn room(o: &mut String, a: &Assessment, room: &RoomResult) {
     let _ = writeln!(
         o,
-        "## Housing survey\n\n{} × {} positions, {}; {} flagged; max/min {}.\n",
-        s.shelves,
-        s.columns,
-        md(&s.mode),
-        s.flagged,
-        num(s.max_over_min)
+        "## Holding room
+"
+    );
+    for s in room_sentences(room) {
+        let _ = writeln!(
+            o,
+            "{}
+",
+            user(&s)
+        );
+    }
+    let cells = rack_cells(room);
+    for (r, c) in room.racks.iter().zip(&cells) {
+        let _ = writeln!(
+            o,
+            "### Rack {} — {}
+",
+            user(&r.id),
+            animals(r)
+        );
+        for s in rack_sentences(room, r, &a.evidence) {
+            let _ = writeln!(o, "- {}", user(&s));
+        }
+        let _ = writeln!(o);
+        if let Some(c) = c {
+            rack_table(o, r.shelves, r.columns, c);
+        }
+    }
+}
+
+/// A rack map as a Markdown table, top shelf first; + above the range, - below, ~ predicted.
+fn rack_table(o: &mut String, shelves: u32, columns: u32, cells: &[Option<Cell>]) {
+    let _ = write!(o, "| room lx |");
+    for c in 1..=columns {
+        let _ = write!(o, " col {c} |");
+    }
+    let _ = write!(
+        o,
+        "
+|---|"
+    );
+    for _ in 1..=columns {
+        let _ = write!(o, "---:|");
+    }
+    let _ = writeln!(o);
+    for s in (1..=shelves).rev() {
+        let _ = write!(o, "| shelf {s} |");
+        for c in 1..=columns {
+            let text = cells[((s - 1) * columns + c - 1) as usize].as_ref().map_or_else(
+                || "·".to_string(),
+                |x| {
+                    let mark = if x.flags.has(Flags::ABOVE) {
+                        " +"
+                    } else if x.flags.has(Flags::BELOW) {
+                        " −"
+                    } else {
+                        ""
+                    };
+                    let pred = if x.basis == Basis::Predicted { "~" } else { "" };
+                    format!("{pred}{}{mark}", num(x.lux))
+                },
+            );
+            let _ = write!(o, " {text} |");
+        }
+        let _ = writeln!(o);
+    }
+    let _ = writeln!(
+        o,
+        "
+Room lux at cage level; + above the range, − below it, ~ predicted by the calibrated model.
+"
     );
 }
 
@@ -166,12 +248,18 @@ fn survey(o: &mut String, s: &SurveyResult) {
 fn closing(o: &mut String, a: &Assessment) {
     let _ = writeln!(o, "## Sources of limits and guidance\n");
     for p in &a.provenance {
-        let _ =
-            writeln!(o, "- {}: {} ({}) — {}", md(&p.role), md(&p.document), md(&p.edition), md(&p.status));
+        let _ = writeln!(
+            o,
+            "- {}: {} ({}) — {}",
+            user(&p.role),
+            user(&p.document),
+            user(&p.edition),
+            user(&p.status)
+        );
     }
     let _ = writeln!(o, "\n## Not assessed\n");
     for n in &a.not_assessed {
-        let _ = writeln!(o, "- {}", md(n));
+        let _ = writeln!(o, "- {}", user(n));
     }
     if a.not_assessed.is_empty() {
         let _ = writeln!(o, "- nothing");
@@ -179,7 +267,26 @@ fn closing(o: &mut String, a: &Assessment) {
     let _ = writeln!(o);
 }
 
-/// Escapes the table separator.
-fn md(s: &str) -> String {
+/// The columns of [`STEP_HEADER`] that hold user text: the step's name and the ids of the
+/// sources lit.
+const STEP_USER_COLUMNS: [usize; 2] = [0, 2];
+
+/// Text from the user's files, or library wording that may quote it: escaped for Markdown.
+fn user(s: &str) -> String {
+    escape::markdown(s)
+}
+
+/// Text formatted here from numbers and fixed words: only the table separator is escaped.
+fn cell(s: &str) -> String {
     s.replace('|', "\\|")
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn the_user_columns_of_the_step_table_are_the_name_and_the_sources_lit() {
+        assert_eq!(STEP_USER_COLUMNS.map(|i| STEP_HEADER[i]), ["step", "lit"]);
+    }
 }

@@ -14,9 +14,11 @@
 //! guidance basis, recovery).
 
 pub mod csv;
+pub mod escape;
 pub mod html;
 pub mod json;
 pub mod markdown;
+pub mod room;
 mod svg;
 pub mod terminal;
 
@@ -168,8 +170,8 @@ fn pupil_line(a: &Assessment) -> Option<String> {
 fn basis_text(g: &GuidanceRow) -> String {
     match &g.basis {
         GuidanceBasis::Step(s) => format!("{} (step '{s}')", g.phase.name()),
-        GuidanceBasis::Survey { outside, positions } => {
-            format!("{}: survey, {outside} of {positions} positions outside", g.phase.name())
+        GuidanceBasis::Survey { rack, outside, positions } => {
+            format!("{}: rack {rack}, {outside} of {positions} positions outside", g.phase.name())
         }
     }
 }

@@ -2,7 +2,10 @@
 
 use std::fmt::Write;
 
-use retidose::assess::SurveyResult;
+use retidose::housing::pass::Flags;
+use retidose::housing::survey::RackResult;
+
+use super::room::Cell;
 
 use super::html::esc;
 use super::num;
@@ -135,39 +138,60 @@ pub fn bars(title: &str, bars: &[(String, f64)]) -> String {
     o
 }
 
-/// The rack as a heat map of room lux at cage level, flagged positions outlined in red.
-pub fn heatmap(s: &SurveyResult) -> String {
-    let (cell, l, t) = (56.0, 70.0, 30.0);
-    let w = (l + cell * s.columns as f64 + 20.0).max(560.0);
-    let h = t + cell * s.shelves as f64 + 40.0;
-    let max = s.positions.iter().map(|p| p.room_lux).fold(0.0, f64::max).max(1e-9);
+/// A rack as a heat map of room lux at cage level: shelf and column labels, the lux in each
+/// cell in a colour chosen for contrast, red outline above the range, blue below.
+pub fn heatmap(r: &RackResult, cells: &[Option<Cell>]) -> String {
+    let (cell, l, t) = (56.0, 70.0, 48.0);
+    let (shelves, columns) = (r.shelves, r.columns);
+    let w = (l + cell * f64::from(columns) + 20.0).max(560.0);
+    let h = t + cell * f64::from(shelves) + 40.0;
+    let max = cells.iter().flatten().map(|c| c.lux).fold(0.0, f64::max).max(1e-9);
     let mut o = format!(
         "<svg xmlns=\"http://www.w3.org/2000/svg\" viewBox=\"0 0 {w} {h}\" role=\"img\" aria-label=\"rack heat map\">"
     );
     let _ = write!(
         o,
-        "<text x=\"10\" y=\"18\" font-size=\"13\" font-weight=\"bold\">Room lux at cage level (red outline: outside the light-phase guidance)</text>"
+        "<text x=\"10\" y=\"18\" font-size=\"13\" font-weight=\"bold\">Room lux at cage level, lx (0 to {:.0}; red outline above the range, blue below)</text>",
+        max
     );
-    for p in &s.positions {
-        let x = l + cell * (p.position.column - 1) as f64;
-        let y = t + cell * (s.shelves - p.position.shelf) as f64;
-        let f = p.room_lux / max;
-        let (r, g, bl) = ((255.0 * f) as u8, (200.0 * f + 30.0) as u8, (80.0 * (1.0 - f) + 40.0) as u8);
-        let stroke = if p.flags.iter().any(|f| f != "dark-phase") { "#d50000" } else { "#fff" };
+    for s in 1..=shelves {
+        for c in 1..=columns {
+            let Some(p) = cells[((s - 1) * columns + c - 1) as usize] else { continue };
+            let x = l + cell * f64::from(c - 1);
+            let y = t + cell * f64::from(shelves - s);
+            let f = p.lux / max;
+            let (rr, g, bl) = ((255.0 * f) as u8, (200.0 * f + 30.0) as u8, (80.0 * (1.0 - f) + 40.0) as u8);
+            let ink = if f > 0.45 { "#000" } else { "#fff" };
+            let stroke = if p.flags.has(Flags::ABOVE) {
+                "#d50000"
+            } else if p.flags.has(Flags::BELOW) {
+                "#2962ff"
+            } else {
+                "#fff"
+            };
+            let _ = write!(
+                o,
+                "<rect x=\"{x}\" y=\"{y}\" width=\"{cell}\" height=\"{cell}\" fill=\"rgb({rr},{g},{bl})\" stroke=\"{stroke}\" stroke-width=\"3\"/><text x=\"{}\" y=\"{}\" font-size=\"11\" text-anchor=\"middle\" fill=\"{ink}\">{:.0}</text>",
+                x + cell / 2.0,
+                y + cell / 2.0 + 4.0,
+                p.lux
+            );
+        }
+    }
+    for s in 1..=shelves {
         let _ = write!(
             o,
-            "<rect x=\"{x}\" y=\"{y}\" width=\"{cell}\" height=\"{cell}\" fill=\"rgb({r},{g},{bl})\" stroke=\"{stroke}\" stroke-width=\"3\"/><text x=\"{}\" y=\"{}\" font-size=\"11\" text-anchor=\"middle\">{:.0}</text>",
-            x + cell / 2.0,
-            y + cell / 2.0 + 4.0,
-            p.room_lux
+            "<text x=\"{}\" y=\"{}\" font-size=\"11\" text-anchor=\"end\">shelf {s}</text>",
+            l - 6.0,
+            t + cell * f64::from(shelves - s) + cell / 2.0 + 4.0
         );
     }
-    for shelf in 1..=s.shelves {
+    for c in 1..=columns {
         let _ = write!(
             o,
-            "<text x=\"{}\" y=\"{}\" font-size=\"11\" text-anchor=\"end\">shelf {shelf}</text>",
-            l - 6.0,
-            t + cell * (s.shelves - shelf) as f64 + cell / 2.0 + 4.0
+            "<text x=\"{}\" y=\"{}\" font-size=\"11\" text-anchor=\"middle\">col {c}</text>",
+            l + cell * f64::from(c - 1) + cell / 2.0,
+            t - 6.0
         );
     }
     o.push_str("</svg>");

@@ -20,16 +20,28 @@ struct Doc<'a> {
     assessment: &'a Assessment,
 }
 
-/// The JSON document: one object, or an array when several scenarios ran.
-pub fn document(all: &[Assessment]) -> String {
+/// Rooms with more positions than this are written as compact JSON (pretty JSON of millions
+/// of rows is mostly indentation).
+pub const PRETTY_POSITIONS: usize = 10_000;
+
+/// Writes the JSON document, streamed: one object, or an array when several scenarios ran.
+///
+/// # Errors
+/// The writer's errors.
+pub fn document_to(all: &[Assessment], w: &mut dyn std::io::Write) -> std::io::Result<()> {
     let docs: Vec<Doc<'_>> =
         all.iter().map(|a| Doc { schema: SCHEMA, units: UNITS, assessment: a }).collect();
-    let mut s = if docs.len() == 1 {
-        serde_json::to_string_pretty(&docs[0])
-    } else {
-        serde_json::to_string_pretty(&docs)
-    }
-    .unwrap_or_else(|e| format!("{{\"error\": \"{e}\"}}"));
-    s.push('\n');
-    s
+    let big =
+        all.iter().filter_map(|a| a.room.as_ref()).map(|r| r.positions).sum::<usize>() > PRETTY_POSITIONS;
+    let r = match (docs.len() == 1, big) {
+        (true, false) => serde_json::to_writer_pretty(&mut *w, &docs[0]),
+        (true, true) => serde_json::to_writer(&mut *w, &docs[0]),
+        (false, false) => serde_json::to_writer_pretty(&mut *w, &docs),
+        (false, true) => serde_json::to_writer(&mut *w, &docs),
+    };
+    r.map_err(std::io::Error::other)?;
+    w.write_all(
+        b"
+",
+    )
 }

@@ -3,14 +3,15 @@
 
 use std::fmt::Write;
 
-use retidose::assess::{Assessment, SurveyResult};
+use retidose::assess::Assessment;
 use retidose::base::quantity::{SiValue, as_td_f64};
 use retidose::limits::Verdict;
 use retidose::limits::report::LimitsAssessment;
 use retidose::pigment::bleach::BleachReport;
 use retidose::retina::report::RetinaReport;
 
-use super::{paint, table};
+use super::{paint, safe_rows, table};
+use crate::cli::render::escape::{terminal_line, terminal_text};
 use crate::cli::render::{
     STEP_HEADER, basis_text, data_notes, fov_and_c_alpha, num, pupil_line, recovery_text, step_rows, t_max,
     verdict_word,
@@ -35,14 +36,14 @@ fn scenario(o: &mut String, a: &Assessment, colour: bool) {
         what_reaches_the_eye(o, a, r);
     }
     if let Some(line) = pupil_line(a) {
-        let _ = writeln!(o, "\n{line}");
+        let _ = writeln!(o, "\n{}", terminal_line(&line));
     }
     if !a.steps.is_empty() {
         let _ = writeln!(
             o,
             "\nSchedule steps (one cycle): what is lit, through every filter, with the pupil of the step's phase"
         );
-        let _ = writeln!(o, "{}", table(&STEP_HEADER, step_rows(a)));
+        let _ = writeln!(o, "{}", table(&STEP_HEADER, safe_rows(step_rows(a))));
     }
     if let Some(b) = &a.bleach {
         pigment(o, b);
@@ -52,24 +53,26 @@ fn scenario(o: &mut String, a: &Assessment, colour: bool) {
         limits(o, src, l, colour);
     }
     guidance(o, a, colour);
-    for e in &a.evidence {
-        let _ = writeln!(o, "evidence (not a limit): {}: {} — {}", e.name, e.value, e.source);
+    for e in a.evidence.iter().filter(|_| a.room.is_none()) {
+        let (name, value, source) =
+            (terminal_line(&e.name), terminal_line(&e.value), terminal_line(&e.source));
+        let _ = writeln!(o, "evidence (not a limit): {name}: {value} — {source}");
     }
-    if let Some(s) = &a.survey {
-        survey(o, s, colour);
+    if let Some(r) = &a.room {
+        super::room::room(o, a, r, 100, colour);
     }
     closing(o, a, colour);
 }
 
 /// Title, description and cautions.
 fn heading(o: &mut String, a: &Assessment, colour: bool) {
-    let _ = writeln!(o, "{}", paint(&format!("retidose assess — {}", a.title), "1", colour));
+    let _ = writeln!(o, "{}", paint(&format!("retidose assess — {}", terminal_line(&a.title)), "1", colour));
     if let Some(d) = &a.description {
-        let _ = writeln!(o, "{d}");
+        let _ = writeln!(o, "{}", terminal_text(d));
     }
     let _ = writeln!(o);
     for c in &a.cautions {
-        let _ = writeln!(o, "! {c}");
+        let _ = writeln!(o, "! {}", terminal_line(c));
     }
 }
 
@@ -90,7 +93,7 @@ fn what_reaches_the_eye(o: &mut String, a: &Assessment, r: &RetinaReport) {
                 .and_then(|x| x.catch.iter().find(|c| c.receptor == "rod"))
                 .map_or("—".into(), |c| num(c.rate.si()));
             vec![
-                s.label.clone(),
+                terminal_line(&s.label).into_owned(),
                 s.illuminance.value.map_or("—".into(), |v| format!("{} lx", num(v.si_value()))),
                 ret.map_or("—".into(), |x| num(as_td_f64(x.trolands.photopic))),
                 ret.map_or("—".into(), |x| num(as_td_f64(x.trolands.scotopic))),
@@ -105,7 +108,7 @@ fn what_reaches_the_eye(o: &mut String, a: &Assessment, r: &RetinaReport) {
     );
     for s in &r.sources {
         for n in data_notes(&s.notes) {
-            let _ = writeln!(o, "! {}: {n}", s.label);
+            let _ = writeln!(o, "! {}: {}", terminal_line(&s.label), terminal_line(n));
         }
     }
     alpha_opic(o, a, r);
@@ -130,11 +133,11 @@ fn alpha_opic(o: &mut String, a: &Assessment, r: &RetinaReport) {
     let mut rows: Vec<Vec<String>> = Vec::new();
     for s in &r.sources {
         let vals = if human { human_row(&s.human_alpha_opic) } else { rodent_row(&s.species_opic) };
-        rows.push([vec![format!("source {}", s.label)], vals].concat());
+        rows.push([vec![format!("source {}", terminal_line(&s.label))], vals].concat());
     }
     for st in a.steps.iter().filter(|st| !st.on.is_empty()) {
         let vals = if human { human_row(&st.alpha_opic) } else { rodent_row(&st.species_opic) };
-        rows.push([vec![format!("step {}", st.name)], vals].concat());
+        rows.push([vec![format!("step {}", terminal_line(&st.name))], vals].concat());
     }
     let title = if human {
         "CIE S 026 α-opic EDI, lx, per source and per step (sources lit together)".to_string()
@@ -151,13 +154,13 @@ fn alpha_opic(o: &mut String, a: &Assessment, r: &RetinaReport) {
 
 /// The pigment: one row per phase, peak and mean, recovery, rod threshold and saturation.
 fn pigment(o: &mut String, b: &BleachReport) {
-    let _ = writeln!(o, "\nPigment ({}, {} model)", b.receptor, b.model.name());
+    let _ = writeln!(o, "\nPigment ({}, {} model)", terminal_line(&b.receptor), b.model.name());
     let rows = b
         .phases
         .iter()
         .map(|p| {
             vec![
-                p.name.clone(),
+                terminal_line(&p.name).into_owned(),
                 format!("{} {}", num(p.level), b.level_unit.symbol()),
                 format!("{:.3} %", 100.0 * p.end),
                 format!("{:.3} %", 100.0 * p.steady_state),
@@ -170,24 +173,25 @@ fn pigment(o: &mut String, b: &BleachReport) {
         "peak {:.3} %, mean {:.3} %; {}",
         100.0 * b.summary.peak,
         100.0 * b.summary.mean,
-        recovery_text(b)
+        terminal_line(&recovery_text(b))
     );
     if let Some(th) = b.thresholds.first() {
         let _ = writeln!(
             o,
             "rod threshold within 0.1 log units after ~{} (estimate: {})",
             th.to_within_0_1_log_min.map_or("> 120 min".into(), |m| format!("{m} min")),
-            th.basis
+            terminal_line(&th.basis)
         );
     }
     if let Some(s) = &b.saturation {
-        let _ = writeln!(o, "{s}");
+        let _ = writeln!(o, "{}", terminal_line(s));
     }
 }
 
 /// One limits check: a row per hazard with its verdict, then the risk group.
 fn limits(o: &mut String, src: &str, l: &LimitsAssessment, colour: bool) {
-    let _ = writeln!(o, "\nExposure limits: {src} against {} for {} s", l.set_id, num(l.duration.si()));
+    let (src, set) = (terminal_line(src), terminal_line(&l.set_id));
+    let _ = writeln!(o, "\nExposure limits: {src} against {set} for {} s", num(l.duration.si()));
     let rows = l
         .hazards
         .iter()
@@ -199,24 +203,26 @@ fn limits(o: &mut String, src: &str, l: &LimitsAssessment, colour: bool) {
                 _ => paint(v, "33", colour),
             };
             vec![
-                h.name.clone(),
-                h.clause.clone(),
+                terminal_line(&h.name).into_owned(),
+                terminal_line(&h.clause).into_owned(),
                 h.ratio.map_or("—".into(), num),
                 t_max(h),
-                fov_and_c_alpha(h),
+                terminal_line(&fov_and_c_alpha(h)).into_owned(),
                 format!("{v}{}", if h.from_memory.is_empty() { "" } else { " [from memory]" }),
             ]
         })
         .collect();
     let _ = writeln!(o, "{}", table(&["hazard", "clause", "ratio", "t_max", "field / C_α", "verdict"], rows));
     for n in data_notes(&l.notes) {
-        let _ = writeln!(o, "! {n}");
+        let _ = writeln!(o, "! {}", terminal_line(n));
     }
     for h in l.hazards.iter().filter(|h| !h.stricter_choices.is_empty()) {
-        let _ = writeln!(o, "stricter choice ({}): {}", h.name, h.stricter_choices.join("; "));
+        let (name, why) =
+            (terminal_line(&h.name), terminal_line(&h.stricter_choices.join("; ")).into_owned());
+        let _ = writeln!(o, "stricter choice ({name}): {why}");
     }
     if let Some(Err(why)) = &l.classification {
-        let _ = writeln!(o, "risk group (IEC 62471): not assessed: {why}");
+        let _ = writeln!(o, "risk group (IEC 62471): not assessed: {}", terminal_line(why));
     }
     if let Some(Ok(c)) = &l.classification {
         let _ = writeln!(
@@ -233,7 +239,7 @@ fn limits(o: &mut String, src: &str, l: &LimitsAssessment, colour: bool) {
             let _ = writeln!(o, "blue-light group at most RG1 beyond {} m", num(d.si()));
         }
         for n in &c.notes {
-            let _ = writeln!(o, "  - {n}");
+            let _ = writeln!(o, "  - {}", terminal_line(n));
         }
     }
 }
@@ -250,71 +256,36 @@ fn guidance(o: &mut String, a: &Assessment, colour: bool) {
         .map(|g| {
             let (phase, f) = (basis_text(g), &g.flag);
             vec![
-                f.set.clone(),
-                phase.clone(),
-                f.name.clone(),
+                terminal_line(&f.set).into_owned(),
+                terminal_line(&phase).into_owned(),
+                terminal_line(&f.name).into_owned(),
                 if f.raised { paint("FLAG", "33;1", colour) } else { "ok".into() },
-                f.message.clone(),
+                terminal_line(&f.message).into_owned(),
             ]
         })
         .collect();
     let _ = writeln!(o, "{}", table(&["set", "phase", "rule", "", "comparison"], rows));
 }
 
-/// The housing survey: room lux at each rack position, the brightest cage and the counts.
-fn survey(o: &mut String, s: &SurveyResult, colour: bool) {
-    let _ = writeln!(o, "\nHousing survey: {} × {} positions; {}", s.shelves, s.columns, s.mode);
-    let _ =
-        writeln!(o, "room lux at cage level (the NRC Guide's quantity) by shelf (top first), then column:");
-    let mut rows = Vec::new();
-    for shelf in (1..=s.shelves).rev() {
-        let mut row = vec![format!("shelf {shelf}")];
-        for p in s.positions.iter().filter(|p| p.position.shelf == shelf) {
-            let light_flag = p.flags.iter().any(|f| f != "dark-phase");
-            let cell = format!("{:.0}{}", p.room_lux, if light_flag { "*" } else { "" });
-            row.push(if light_flag { paint(&cell, "33", colour) } else { cell });
-        }
-        rows.push(row);
-    }
-    let header: Vec<String> =
-        std::iter::once(String::new()).chain((1..=s.columns).map(|c| format!("col {c}"))).collect();
-    let refs: Vec<&str> = header.iter().map(String::as_str).collect();
-    let _ = writeln!(o, "{}", table(&refs, rows));
-    let top = s.positions.iter().max_by(|a, b| a.room_lux.total_cmp(&b.room_lux));
-    if let Some(t) = top {
-        let _ = writeln!(
-            o,
-            "brightest cage: shelf {} col {}: {} lx room, {} lx in the cage, rod {} R*/rod/s, steady bleach {:.3} %",
-            t.position.shelf,
-            t.position.column,
-            num(t.room_lux),
-            num(t.cage_lux),
-            num(t.rod_rate),
-            100.0 * t.light_bleach
-        );
-    }
-    let light = s.positions.iter().filter(|p| p.flags.iter().any(|f| f != "dark-phase")).count();
-    let dark = s.positions.iter().filter(|p| p.flags.iter().any(|f| f == "dark-phase")).count();
-    let _ = writeln!(
-        o,
-        "max/min over the rack {}×; {light} of {} positions outside the light-phase guidance (*), {dark} with dark-phase light",
-        num(s.max_over_min),
-        s.positions.len()
-    );
-}
-
 /// Sources of limits and guidance, what was not assessed, and the outcome.
 fn closing(o: &mut String, a: &Assessment, colour: bool) {
     let _ = writeln!(o, "\nSources of limits and guidance");
     for p in &a.provenance {
-        let _ = writeln!(o, "  - {}: {} ({}) — {}", p.role, p.document, p.edition, p.status);
+        let _ = writeln!(
+            o,
+            "  - {}: {} ({}) — {}",
+            terminal_line(&p.role),
+            terminal_line(&p.document),
+            terminal_line(&p.edition),
+            terminal_line(&p.status)
+        );
     }
     let _ = writeln!(o, "\nNot assessed");
     if a.not_assessed.is_empty() {
         let _ = writeln!(o, "  (nothing)");
     }
     for n in &a.not_assessed {
-        let _ = writeln!(o, "  - {n}");
+        let _ = writeln!(o, "  - {}", terminal_line(n));
     }
     let outcome = if a.limit_exceeded {
         paint("a limit is exceeded", "31;1", colour)

@@ -6,6 +6,7 @@ use retidose::pigment::bleach::{BleachReport, FlashResponse, Threshold};
 use retidose::pigment::kinetics::Pigment;
 
 use super::{duration_text, notes_and_caution};
+use crate::cli::render::escape::terminal_line;
 use crate::cli::render::{CAUTION, num};
 
 /// The terminal table of a bleaching run.
@@ -16,7 +17,7 @@ pub fn table(r: &BleachReport) -> String {
     summary(&mut o, r);
     recoveries(&mut o, r);
     if let Some(sat) = &r.saturation {
-        let _ = writeln!(o, "Saturation: {sat}");
+        let _ = writeln!(o, "Saturation: {}", terminal_line(sat));
     }
     for th in &r.thresholds {
         threshold(&mut o, th);
@@ -27,7 +28,7 @@ pub fn table(r: &BleachReport) -> String {
 
 /// Receptor, model, kinetic parameters and the schedule's length.
 fn parameters(o: &mut String, r: &BleachReport) {
-    let _ = writeln!(o, "retidose bleach: {} ({} model)", r.receptor, r.model.name());
+    let _ = writeln!(o, "retidose bleach: {} ({} model)", terminal_line(&r.receptor), r.model.name());
     let _ = writeln!(
         o,
         "  parameters  τ0 {} s, v {} /min, K_m {}{}",
@@ -56,7 +57,7 @@ fn phases(o: &mut String, r: &BleachReport) {
         let _ = writeln!(
             o,
             "  {:<14} {:>6} {:>16} {:>10.4}% {:>10.4}% {:>12.4}%",
-            p.name,
+            terminal_line(&p.name),
             p.steps,
             format!("{} {unit}", num(p.level)),
             100.0 * p.end,
@@ -98,7 +99,7 @@ fn recoveries(o: &mut String, r: &BleachReport) {
         let _ = writeln!(
             o,
             "Recovery after {which} (end of '{}', t = {}, {:.4} % bleached), under the conditions that follow: 90 % regenerated {}, 95 % {}, 99 % {}{}",
-            rec.after_step,
+            terminal_line(&rec.after_step),
             duration_text(rec.from_s),
             100.0 * rec.bleached_at_start,
             t(rec.to_90_s),
@@ -111,7 +112,7 @@ fn recoveries(o: &mut String, r: &BleachReport) {
 
 /// A rod threshold estimate: log elevation every 10 min, and when it is back within 0.1 log.
 fn threshold(o: &mut String, th: &Threshold) {
-    let _ = writeln!(o, "\nRod threshold estimate — {}", th.basis);
+    let _ = writeln!(o, "\nRod threshold estimate — {}", terminal_line(&th.basis));
     let pts: Vec<String> = th
         .curve
         .iter()
@@ -136,10 +137,10 @@ pub fn flash(p: &Pigment, r: &FlashResponse) -> String {
     let _ = writeln!(
         o,
         "retidose bleach: rod response estimate for {} to a flash of {} R*/rod",
-        p.id,
+        terminal_line(&p.id),
         num(r.phi)
     );
-    let _ = writeln!(o, "  basis        {}", r.basis);
+    let _ = writeln!(o, "  basis        {}", terminal_line(&r.basis));
     let _ = writeln!(
         o,
         "  50 % of the circulating current suppressed at {} ms, 95 % at {} ms",

@@ -1,15 +1,18 @@
-//! The terminal tables of `retidose limits list`, `show` and `check`.
+//! The terminal tables of `retidose limits list`, `show` and `check`. A set from a user's
+//! `--set-file` is user text throughout: its ids, names, clauses, statuses and sources go through
+//! [`terminal_line`].
 
 use std::fmt::Write;
 
 use retidose::base::quantity::SiValue;
 use retidose::limits::report::{LIMITS_CAUTION, LimitsAssessment};
 use retidose::limits::{
-    Classification, Form, Hazard, HazardResult, LimitQuantity, LimitSet, RiskGroup, builtin_sets,
-    builtin_weightings,
+    Classification, Form, Hazard, HazardGroup, HazardResult, LimitQuantity, LimitSet, Provenance, RiskGroup,
+    RiskGroupBases, builtin_sets, builtin_weightings,
 };
 
 use super::{duration_text, notes_and_caution, t_max_text};
+use crate::cli::render::escape::terminal_line;
 use crate::cli::render::num;
 
 /// The list of limit sets.
@@ -49,10 +52,16 @@ pub fn sets() -> String {
 pub fn set(s: &LimitSet) -> String {
     let mut o = String::new();
     let _ = writeln!(o, "{LIMITS_CAUTION}\n");
-    let _ = writeln!(o, "{} — {}", s.id, s.document);
-    let _ = writeln!(o, "  edition: {}\n  clauses: {}\n  errata: {}", s.edition, s.clauses, s.errata);
+    let _ = writeln!(o, "{} — {}", terminal_line(&s.id), terminal_line(&s.document));
+    let _ = writeln!(
+        o,
+        "  edition: {}\n  clauses: {}\n  errata: {}",
+        terminal_line(&s.edition),
+        terminal_line(&s.clauses),
+        terminal_line(&s.errata)
+    );
     for n in &s.notes {
-        let _ = writeln!(o, "  note: {n}");
+        let _ = writeln!(o, "  note: {}", terminal_line(n));
     }
     for h in &s.hazards {
         hazard_definition(&mut o, h);
@@ -65,7 +74,7 @@ const GROUP_NAMES: [&str; 3] = [RiskGroup::Exempt.name(), RiskGroup::Rg1.name(),
 
 /// One hazard of a set: band, weighting, conditions, C_α, field of view and limit pieces.
 fn hazard_definition(o: &mut String, h: &Hazard) {
-    let w = h.weighting.as_deref().unwrap_or("unweighted");
+    let w = terminal_line(h.weighting.as_deref().unwrap_or("unweighted"));
     let kind = match h.quantity {
         LimitQuantity::Irradiance => "irradiance",
         LimitQuantity::Radiance => "radiance",
@@ -73,12 +82,16 @@ fn hazard_definition(o: &mut String, h: &Hazard) {
     let _ = writeln!(
         o,
         "\n{} ({}) — {}, {}–{} nm, {w}, {kind}",
-        h.name, h.id, h.clause, h.band_nm.0, h.band_nm.1
+        terminal_line(&h.name),
+        terminal_line(&h.id),
+        terminal_line(&h.clause),
+        h.band_nm.0,
+        h.band_nm.1
     );
     for c in &h.conditions {
-        let _ = writeln!(o, "  applies: {c:?}");
+        let _ = writeln!(o, "  applies: {}", terminal_line(&format!("{c:?}")));
     }
-    let _ = writeln!(o, "  status: {}", h.status);
+    let _ = writeln!(o, "  status: {}", terminal_line(&h.status));
     if let Some(c) = &h.c_alpha {
         let _ = writeln!(
             o,
@@ -86,7 +99,7 @@ fn hazard_definition(o: &mut String, h: &Hazard) {
             num(c.min_rad * 1e3),
             num(c.max_rad * 1e3),
             if c.in_mrad { " (coefficients with C_α in mrad)" } else { " (coefficients with C_α in rad)" },
-            c.provenance.labelled("    ")
+            labelled(&c.provenance)
         );
     }
     for f in &h.field_of_view {
@@ -97,7 +110,7 @@ fn hazard_definition(o: &mut String, h: &Hazard) {
             num(f.to_s),
             num(f.coefficient_rad),
             f.time_exponent,
-            f.provenance.labelled("    ")
+            labelled(&f.provenance)
         );
     }
     for l in &h.limits {
@@ -113,41 +126,61 @@ fn hazard_definition(o: &mut String, h: &Hazard) {
             num(l.coefficient),
             l.time_exponent,
             l.alpha_exponent,
-            l.provenance.labelled("    ")
+            labelled(&l.provenance)
         );
     }
     if let Some(rg) = &h.risk_groups {
-        let b = rg.time_bases_s;
-        let _ = writeln!(
-            o,
-            "  risk-group time bases (Exempt, RG1, RG2): {} s, {} s, {} s  {}",
-            num(b[0]),
-            num(b[1]),
-            num(b[2]),
-            rg.provenance.labelled("    ")
-        );
-        for (i, f) in rg.field_of_view.iter().enumerate() {
-            if let Some(f) = f {
-                let _ = writeln!(
-                    o,
-                    "  risk-group field of view, {} ({} s): {} mrad  {}",
-                    GROUP_NAMES[i],
-                    num(b[i]),
-                    num(f.rad * 1e3),
-                    f.provenance.labelled("    ")
-                );
-            }
+        risk_group_bases(o, rg);
+    }
+}
+
+/// A hazard's IEC 62471 risk-group time bases and fields of view, each with its provenance.
+fn risk_group_bases(o: &mut String, rg: &RiskGroupBases) {
+    let b = rg.time_bases_s;
+    let _ = writeln!(
+        o,
+        "  risk-group time bases (Exempt, RG1, RG2): {} s, {} s, {} s  {}",
+        num(b[0]),
+        num(b[1]),
+        num(b[2]),
+        labelled(&rg.provenance)
+    );
+    for (i, f) in rg.field_of_view.iter().enumerate() {
+        if let Some(f) = f {
+            let _ = writeln!(
+                o,
+                "  risk-group field of view, {} ({} s): {} mrad  {}",
+                GROUP_NAMES[i],
+                num(b[i]),
+                num(f.rad * 1e3),
+                labelled(&f.provenance)
+            );
         }
     }
+}
+
+/// `[status]  source` of a value, then `stricter choice: why` on an indented line (as
+/// [`Provenance::labelled`]), each part made safe for the terminal.
+fn labelled(p: &Provenance) -> String {
+    let mut t = format!("[{}]  {}", terminal_line(&p.status), terminal_line(&p.source));
+    if let Some(why) = &p.stricter_choice {
+        let _ = write!(t, "\n    stricter choice: {}", terminal_line(why));
+    }
+    t
 }
 
 /// The terminal table of a limits check.
 pub fn check(r: &LimitsAssessment) -> String {
     let mut o = String::new();
     let _ = writeln!(o, "{LIMITS_CAUTION}\n");
-    let _ = writeln!(o, "retidose limits check: {} against {}", r.source, r.set_id);
-    let _ = writeln!(o, "  document   {}", r.document);
-    let _ = writeln!(o, "  edition    {}; errata: {}", r.edition, r.errata);
+    let _ = writeln!(
+        o,
+        "retidose limits check: {} against {}",
+        terminal_line(&r.source),
+        terminal_line(&r.set_id)
+    );
+    let _ = writeln!(o, "  document   {}", terminal_line(&r.document));
+    let _ = writeln!(o, "  edition    {}; errata: {}", terminal_line(&r.edition), terminal_line(&r.errata));
     let _ = writeln!(o, "  duration   {}", duration_text(r.duration.si()));
     let _ = writeln!(o, "  spectrum   {}–{} nm", r.range_nm.0, r.range_nm.1);
     for h in &r.hazards {
@@ -156,7 +189,7 @@ pub fn check(r: &LimitsAssessment) -> String {
     match &r.classification {
         None => {}
         Some(Err(e)) => {
-            let _ = writeln!(o, "\nRisk group (IEC 62471): not assessed: {e}");
+            let _ = writeln!(o, "\nRisk group (IEC 62471): not assessed: {}", terminal_line(e));
         }
         Some(Ok(c)) => risk_group(&mut o, c),
     }
@@ -167,7 +200,8 @@ pub fn check(r: &LimitsAssessment) -> String {
 /// One hazard of a check: weighted and averaged quantities, exposure against limit, verdict.
 fn hazard(o: &mut String, h: &HazardResult) {
     let memo = if h.from_memory.is_empty() { String::new() } else { " [from memory]".to_string() };
-    let _ = writeln!(o, "\n{} — {} ({}–{} nm)", h.name, h.clause, h.band_nm.0, h.band_nm.1);
+    let (name, clause) = (terminal_line(&h.name), terminal_line(&h.clause));
+    let _ = writeln!(o, "\n{name} — {clause} ({}–{} nm)", h.band_nm.0, h.band_nm.1);
     if let Some(q) = h.weighted {
         let _ = writeln!(o, "  weighted        {} {}", num(q), h.quantity_unit);
     }
@@ -175,12 +209,14 @@ fn hazard(o: &mut String, h: &HazardResult) {
         let _ = writeln!(o, "  averaged        {} {} over {} mrad", num(a), h.quantity_unit, num(g * 1e3));
     }
     if let (Some(g), Some(p)) = (h.field_of_view_rad, &h.field_of_view_provenance) {
-        let _ = writeln!(o, "  field of view   {} mrad  [{}]  {}", num(g * 1e3), p.status, p.source);
+        let (status, source) = (terminal_line(&p.status), terminal_line(&p.source));
+        let _ = writeln!(o, "  field of view   {} mrad  [{status}]  {source}", num(g * 1e3));
     }
     if let Some(c) = h.c_alpha {
         match &h.c_alpha_provenance {
             Some(p) => {
-                let _ = writeln!(o, "  C_α             {}  [{}]  {}", num(c), p.status, p.source);
+                let (status, source) = (terminal_line(&p.status), terminal_line(&p.source));
+                let _ = writeln!(o, "  C_α             {}  [{status}]  {source}", num(c));
             }
             None => {
                 let _ = writeln!(o, "  C_α             {}", num(c));
@@ -212,13 +248,13 @@ fn hazard(o: &mut String, h: &HazardResult) {
     };
     let _ = writeln!(o, "  verdict         {}{partial}{coarse}{memo}", h.verdict.text());
     if !h.from_memory.is_empty() {
-        let _ = writeln!(o, "  from memory     {}", h.from_memory.join("; "));
+        let _ = writeln!(o, "  from memory     {}", terminal_line(&h.from_memory.join("; ")));
     }
     for c in &h.stricter_choices {
-        let _ = writeln!(o, "  stricter choice {c}");
+        let _ = writeln!(o, "  stricter choice {}", terminal_line(c));
     }
     if !h.source.is_empty() {
-        let _ = writeln!(o, "  limit from      {}", h.source);
+        let _ = writeln!(o, "  limit from      {}", terminal_line(&h.source));
     }
 }
 
@@ -228,47 +264,11 @@ fn risk_group(o: &mut String, c: &Classification) {
         o,
         "\nRisk group (IEC 62471 cl. 6) at {} mm ({}), {} lx",
         num(c.distance.si() * 1e3),
-        c.distance_basis,
+        terminal_line(&c.distance_basis),
         num(c.illuminance_lx)
     );
     for g in &c.hazards {
-        let group = match (g.group, g.lower_bound) {
-            (Some(x), true) => {
-                format!("at least {} ({})", x.name(), g.reason.clone().unwrap_or_default())
-            }
-            (Some(x), false) => x.name().to_string(),
-            (None, _) => g.reason.clone().unwrap_or_default(),
-        };
-        let ratios: Vec<String> = g.ratios.iter().map(|x| x.map_or("—".into(), num)).collect();
-        let _ = writeln!(
-            o,
-            "  {:<44} {:<8} (ratios at {}/{}/{} s: {})",
-            g.name,
-            group,
-            num(g.time_bases_s[0]),
-            num(g.time_bases_s[1]),
-            num(g.time_bases_s[2]),
-            ratios.join(", ")
-        );
-        let _ = writeln!(o, "    time bases [{}]  {}", g.time_bases.status, g.time_bases.source);
-        for (i, name) in GROUP_NAMES.iter().enumerate() {
-            if let (Some(f), Some(p)) = (g.fields_of_view_rad[i], &g.field_of_view_provenance[i]) {
-                let _ = writeln!(
-                    o,
-                    "    field of view at {name} ({} s): {} mrad  [{}]  {}",
-                    num(g.time_bases_s[i]),
-                    num(f * 1e3),
-                    p.status,
-                    p.source
-                );
-            }
-        }
-        if !g.from_memory.is_empty() {
-            let _ = writeln!(o, "    from memory: {}", g.from_memory.join("; "));
-        }
-        for x in &g.stricter_choices {
-            let _ = writeln!(o, "    stricter choice: {x}");
-        }
+        group_of_hazard(o, g);
     }
     let overall = c.overall.map_or("—", |x| x.name());
     let lb = if c.not_assessed.is_empty() { "" } else { " (lower bound: some hazards not assessed)" };
@@ -285,6 +285,49 @@ fn risk_group(o: &mut String, c: &Classification) {
         let _ = writeln!(o, "  blue-light group is at most RG1 beyond {} m", num(d.si()));
     }
     for n in &c.notes {
-        let _ = writeln!(o, "  note: {n}");
+        let _ = writeln!(o, "  note: {}", terminal_line(n));
+    }
+}
+
+/// One hazard's risk group: the group with its ratios at each time base, the time bases' and
+/// fields of view's provenance, what is from memory and the stricter choices.
+fn group_of_hazard(o: &mut String, g: &HazardGroup) {
+    let group = match (g.group, g.lower_bound) {
+        (Some(x), true) => {
+            format!("at least {} ({})", x.name(), terminal_line(g.reason.as_deref().unwrap_or_default()))
+        }
+        (Some(x), false) => x.name().to_string(),
+        (None, _) => terminal_line(g.reason.as_deref().unwrap_or_default()).into_owned(),
+    };
+    let ratios: Vec<String> = g.ratios.iter().map(|x| x.map_or("—".into(), num)).collect();
+    let _ = writeln!(
+        o,
+        "  {:<44} {:<8} (ratios at {}/{}/{} s: {})",
+        terminal_line(&g.name),
+        group,
+        num(g.time_bases_s[0]),
+        num(g.time_bases_s[1]),
+        num(g.time_bases_s[2]),
+        ratios.join(", ")
+    );
+    let (status, source) = (terminal_line(&g.time_bases.status), terminal_line(&g.time_bases.source));
+    let _ = writeln!(o, "    time bases [{status}]  {source}");
+    for (i, name) in GROUP_NAMES.iter().enumerate() {
+        if let (Some(f), Some(p)) = (g.fields_of_view_rad[i], &g.field_of_view_provenance[i]) {
+            let _ = writeln!(
+                o,
+                "    field of view at {name} ({} s): {} mrad  [{}]  {}",
+                num(g.time_bases_s[i]),
+                num(f * 1e3),
+                terminal_line(&p.status),
+                terminal_line(&p.source)
+            );
+        }
+    }
+    if !g.from_memory.is_empty() {
+        let _ = writeln!(o, "    from memory: {}", terminal_line(&g.from_memory.join("; ")));
+    }
+    for x in &g.stricter_choices {
+        let _ = writeln!(o, "    stricter choice: {}", terminal_line(x));
     }
 }

@@ -1,10 +1,16 @@
 //! Tables for the terminal, one file per command, and the helpers they share: colour, box
 //! tables, coverage remarks, durations.
+//!
+//! Text from the user's files (titles, descriptions, ids, names, labels) and library wording
+//! that may quote it (notes, messages) goes through [`terminal_line`] or
+//! [`terminal_text`](super::escape::terminal_text) before it is printed, so it cannot carry
+//! escape sequences, control or bidi characters to the terminal.
 
 pub mod assess;
 pub mod bleach;
 pub mod limits;
 pub mod retina;
+pub mod room;
 pub mod sources;
 pub mod spectrum;
 
@@ -16,6 +22,7 @@ use retidose::spectrum::photometry::PhotometricResult;
 use tabled::builder::Builder;
 use tabled::settings::Style;
 
+use super::escape::terminal_line;
 use super::{CAUTION, num};
 
 /// Whether to colour terminal output: only on a terminal and when NO_COLOR is unset.
@@ -39,6 +46,12 @@ fn table(header: &[&str], rows: Vec<Vec<String>>) -> String {
     let mut t = b.build();
     t.with(Style::sharp());
     t.to_string()
+}
+
+/// Table rows whose every cell may hold user text (step names, source ids), each cell made safe
+/// for one terminal line.
+fn safe_rows(rows: Vec<Vec<String>>) -> Vec<Vec<String>> {
+    rows.into_iter().map(|r| r.iter().map(|c| terminal_line(c).into_owned()).collect()).collect()
 }
 
 /// A remark after a value whose weighting the spectrum covers only in part, or not at all.
@@ -95,7 +108,7 @@ fn duration_text(s: f64) -> String {
 fn notes_and_caution(o: &mut String, notes: &[impl Display]) {
     let _ = writeln!(o, "\nNotes");
     for n in notes {
-        let _ = writeln!(o, "  - {n}");
+        let _ = writeln!(o, "  - {}", terminal_line(&n.to_string()));
     }
     let _ = writeln!(o, "\n{CAUTION}");
 }

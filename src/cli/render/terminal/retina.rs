@@ -9,6 +9,7 @@ use uom::si::illuminance::lux;
 use uom::si::length::millimeter;
 
 use super::{coverage_text, notes_and_caution, pair, photometric_short};
+use crate::cli::render::escape::terminal_line;
 use crate::cli::render::num;
 
 /// The terminal table for a retinal assessment.
@@ -16,7 +17,7 @@ pub fn table(r: &RetinaReport) -> String {
     let mut o = String::new();
     eye(&mut o, r);
     for (i, s) in r.sources.iter().enumerate() {
-        let _ = writeln!(o, "\nSource {}: {}", i + 1, s.label);
+        let _ = writeln!(o, "\nSource {}: {}", i + 1, terminal_line(&s.label));
         at_the_cornea(&mut o, s);
         at_the_retina(&mut o, s);
     }
@@ -34,13 +35,13 @@ fn eye(o: &mut String, r: &RetinaReport) {
         o,
         "  pupil             {} mm, {} [{}]",
         num(r.pupil.diameter.get::<millimeter>()),
-        r.pupil.basis,
+        terminal_line(&r.pupil.basis),
         r.pupil.status
     );
     let _ = writeln!(o, "  collecting area   {} mm²", num(r.collecting_area_mm2));
     let _ = writeln!(o, "  nodal distance    {} mm", num(r.nodal_distance.get::<millimeter>()));
     if !r.filters.is_empty() {
-        let _ = writeln!(o, "  filters           {}", r.filters.join(", "));
+        let _ = writeln!(o, "  filters           {}", terminal_line(&r.filters.join(", ")));
     }
 }
 
@@ -63,7 +64,7 @@ fn at_the_cornea(o: &mut String, s: &SourceAtEye) {
         let _ = writeln!(o, "  subtense          {} mrad ({}°)", num(a.si() * 1e3), num(a.si().to_degrees()));
     }
     for n in &s.notes {
-        let _ = writeln!(o, "  note              {n}");
+        let _ = writeln!(o, "  note              {}", terminal_line(n));
     }
 }
 
@@ -108,7 +109,7 @@ fn catch(o: &mut String, c: &ReceptorCatch) {
     let _ = writeln!(
         o,
         "    {:<8} λmax {:>5} nm  {:>11}{}{memo}",
-        c.receptor,
+        terminal_line(&c.receptor),
         num(c.lambda_max_nm),
         num(c.rate.si()),
         coverage_text(&c.coverage)
@@ -118,7 +119,7 @@ fn catch(o: &mut String, c: &ReceptorCatch) {
             o,
             "             troland route {} R*/rod/s per scot td ({}): {}",
             num(t.factor),
-            t.name,
+            terminal_line(&t.name),
             num(t.rate.si())
         );
     }
@@ -150,8 +151,8 @@ fn human_alpha_opic(o: &mut String, r: &RetinaReport) {
         let q = a.quantity.map_or("—".into(), |q| pair(q.si_with_unit()));
         let edi = a.edi.map_or("—".into(), |e| pair(e.si_with_unit()));
         let mark = if a.reconstructed { " *reconstructed" } else { "" };
-        let _ =
-            writeln!(o, "  {:<13} {:>24}   EDI {:>12}{mark}{}", a.name, q, edi, coverage_text(&a.coverage));
+        let name = terminal_line(&a.name);
+        let _ = writeln!(o, "  {name:<13} {q:>24}   EDI {edi:>12}{mark}{}", coverage_text(&a.coverage));
     }
 }
 
@@ -171,7 +172,7 @@ fn species_alpha_opic(o: &mut String, r: &RetinaReport) {
         let _ = writeln!(
             o,
             "  {:<11} {:>6}  {:>26}  {:>14}{}",
-            s.channel,
+            terminal_line(&s.channel),
             format!("{} nm", num(s.lambda_max_nm)),
             format!("{} photons·m⁻²·s⁻¹", num(s.photon_irradiance.si())),
             format!("{} lx", num(s.equivalent_daylight.get::<lux>())),

@@ -7,6 +7,7 @@ use retidose::spectrum::photometry::{Photometric, PhotometricResult};
 use retidose::spectrum::report::SpectrumReport;
 
 use super::{coverage_text, notes_and_caution};
+use crate::cli::render::escape::terminal_line;
 use crate::cli::render::{basis_name, num};
 
 /// The terminal table for one spectrum.
@@ -22,9 +23,9 @@ pub fn table(r: &SpectrumReport) -> String {
 
 /// What the spectrum is: label, provenance, measure, range and scaling.
 fn source(o: &mut String, r: &SpectrumReport) {
-    let _ = writeln!(o, "retidose spectrum: {}", r.label);
+    let _ = writeln!(o, "retidose spectrum: {}", terminal_line(&r.label));
     if let Some(p) = &r.provenance {
-        let _ = writeln!(o, "  from          {p}");
+        let _ = writeln!(o, "  from          {}", terminal_line(p));
     }
     let _ = writeln!(
         o,
