@@ -5,13 +5,11 @@
 //! a window of width ln(upper/lower) placed by ln f. The best factor is therefore the placement
 //! of that window over the sorted ln E covering the most points (two pointers over the sorted
 //! values); among equally good placements the factor nearest 1 (the least change) is chosen,
-//! inside the feasible interval. The count at the chosen factor is then recounted with the
-//! same comparison the flags use, so the figure reported is what the factor achieves. Dimming
+//! inside the feasible interval. The counts at the chosen factor are made with the same
+//! comparisons the flags use, so the figures reported are what the factor achieves. Dimming
 //! scales the light phase only, readings included (they are taken to come from the luminaires).
 
-use rayon::prelude::*;
-
-use crate::housing::pass::{Plan, RackBounds};
+use crate::housing::pass::RackBounds;
 
 /// How many of the positions that stay out of range a lever lists (the furthest out).
 pub const LISTED: usize = 5;
@@ -49,92 +47,126 @@ pub struct Lever {
     pub range_ratio: f64,
 }
 
-fn in_range(b: &RackBounds, e: f64) -> bool {
-    !(b.lower.is_some_and(|l| e < l.lx) || b.upper.is_some_and(|u| e > u.lx))
+/// What the summary pass gathers for a rack's lever: its light-phase lux values (any order)
+/// and the lowest and highest few with their positions.
+#[derive(Debug, Clone, Default, PartialEq)]
+pub struct LeverData {
+    /// Room lux at cage level of every position (only for racks with guidance bounds).
+    pub lux: Vec<f64>,
+    /// The [`LISTED`] lowest (lux, global index), lowest first.
+    pub lowest: Vec<(f64, usize)>,
+    /// The [`LISTED`] highest, highest first.
+    pub highest: Vec<(f64, usize)>,
 }
 
-/// The best factor for lux values `e` (any order) and the bounds; 1 when nothing can be gained.
-pub fn best_factor(mut u: Vec<f64>, b: &RackBounds) -> f64 {
+impl LeverData {
+    /// Adds a position.
+    pub fn add(&mut self, lux: f64, index: usize) {
+        self.lux.push(lux + 0.0);
+        keep(&mut self.lowest, (lux, index), |a, b| a.0.total_cmp(&b.0).then(a.1.cmp(&b.1)));
+        keep(&mut self.highest, (lux, index), |a, b| b.0.total_cmp(&a.0).then(a.1.cmp(&b.1)));
+    }
+
+    /// Merges another block's data.
+    pub fn merge(&mut self, o: LeverData) {
+        self.lux.extend(o.lux);
+        for x in o.lowest {
+            keep(&mut self.lowest, x, |a, b| a.0.total_cmp(&b.0).then(a.1.cmp(&b.1)));
+        }
+        for x in o.highest {
+            keep(&mut self.highest, x, |a, b| b.0.total_cmp(&a.0).then(a.1.cmp(&b.1)));
+        }
+    }
+}
+
+/// Inserts `x` into the sorted, at most [`LISTED`]-long `v`.
+fn keep(
+    v: &mut Vec<(f64, usize)>,
+    x: (f64, usize),
+    cmp: impl Fn(&(f64, usize), &(f64, usize)) -> std::cmp::Ordering,
+) {
+    if v.len() == LISTED && cmp(&x, &v[LISTED - 1]).is_ge() {
+        return;
+    }
+    let at = v.partition_point(|y| cmp(y, &x).is_lt());
+    v.insert(at, x);
+    v.truncate(LISTED);
+}
+
+/// The best factor for ascending lux values `e` and the bounds (1 when nothing can be gained):
+/// two pointers over the sorted values, comparing ratios (no logarithms).
+pub fn best_factor(e: &[f64], b: &RackBounds) -> f64 {
     let lo = b.lower.map_or(0.0, |l| l.lx);
     let hi = b.upper.map_or(f64::INFINITY, |u| u.lx);
-    u.retain(|v| *v > 0.0 && v.is_finite());
-    u.par_iter_mut().for_each(|v| *v = v.ln());
-    if u.is_empty() || (lo <= 0.0 && hi.is_infinite()) {
+    let first = e.partition_point(|v| *v <= 0.0);
+    let e = &e[first..];
+    if e.is_empty() || (lo <= 0.0 && hi.is_infinite()) {
         return 1.0;
     }
-    u.par_sort_unstable_by(f64::total_cmp);
-    let (llo, lhi) = (lo.ln(), hi.ln());
-    let (mut best, mut best_f) = (0usize, 0.0f64);
+    if lo <= 0.0 {
+        return (hi / e[e.len() - 1]).min(1.0);
+    }
+    if hi.is_infinite() {
+        return (lo / e[0]).max(1.0);
+    }
+    let (mut best, mut best_f) = (0usize, 1.0f64);
     let mut j = 0;
-    for i in 0..u.len() {
+    for i in 0..e.len() {
         j = j.max(i);
-        while j + 1 < u.len() && u[j + 1] - u[i] <= lhi - llo {
+        while j + 1 < e.len() && e[j + 1] / e[i] <= hi / lo {
             j += 1;
         }
-        // ln f must lie in [llo − u_i, lhi − u_j]; pick the point nearest 0, inside.
-        let (a, c) = (llo - u[i], lhi - u[j]);
-        let f = 0.0f64.clamp(a.min(c), c.max(a));
-        let f = if a.is_finite() && c.is_finite() && c > a {
-            let inset = ((c - a) * 0.25).min(1e-9);
-            f.clamp(a + inset, c - inset)
+        // f must lie in [lo/e_i, hi/e_j]; take the point nearest 1, kept a hair inside.
+        let (a, c) = (lo / e[i], hi / e[j]);
+        let f = if c > a * (1.0 + 1e-9) {
+            1.0f64.clamp(a * (1.0 + 1e-12), c * (1.0 - 1e-12))
         } else {
-            f
+            0.5 * (a + c)
         };
         let count = j + 1 - i;
-        if count > best || (count == best && f.abs() < best_f.abs()) {
+        if count > best || (count == best && f.ln().abs() < best_f.ln().abs()) {
             (best, best_f) = (count, f);
         }
     }
-    best_f.exp()
+    best_f
 }
 
-/// The lever of rack `rack`, when it has guidance bounds.
-pub fn lever(plan: &Plan, rack: usize) -> Option<Lever> {
-    let rp = &plan.racks[rack];
-    let b = rp.bounds;
+/// The lever of a rack from the summary pass's `data`, when the rack has guidance bounds.
+pub fn lever(b: &RackBounds, mut data: LeverData) -> Option<Lever> {
     if b.lower.is_none() && b.upper.is_none() {
         return None;
     }
-    let range = rp.offset..rp.offset + rp.len;
-    let e: Vec<f64> = range.clone().into_par_iter().map(|i| plan.room_lux(rack, i).0).collect();
-    let in_range_now = e.iter().filter(|v| in_range(&b, **v)).count();
-    let (mn, mx) = e.iter().fold((f64::INFINITY, 0.0f64), |(a, c), v| (a.min(*v), c.max(*v)));
-    let factor = best_factor(e, &b);
-    let mut out: Vec<StayOut> = Vec::new();
-    let (mut below, mut above) = (0, 0);
-    for i in range.clone() {
-        let lux = plan.room_lux(rack, i).0 * factor;
-        let needs = match (b.lower, b.upper) {
-            (Some(l), _) if lux < l.lx => {
-                below += 1;
-                l.lx / lux
-            }
-            (_, Some(u)) if lux > u.lx => {
-                above += 1;
-                u.lx / lux
-            }
-            _ => continue,
-        };
-        out.push(StayOut { index: i, lux, needs });
-        if out.len() > 4 * LISTED {
-            keep_worst(&mut out);
-        }
+    let e = &mut data.lux;
+    // Non-negative floats order as their bit patterns: an integer sort (racks run in parallel).
+    let mut bits: Vec<u64> = e.iter().map(|v| v.to_bits()).collect();
+    bits.sort_unstable();
+    e.clear();
+    e.extend(bits.iter().map(|x| f64::from_bits(*x)));
+    drop(bits);
+    let lo = b.lower.map_or(f64::NEG_INFINITY, |l| l.lx);
+    let hi = b.upper.map_or(f64::INFINITY, |u| u.lx);
+    let count_in = |f: f64| e.partition_point(|v| v * f <= hi) - e.partition_point(|v| v * f < lo);
+    let factor = best_factor(e, b);
+    let below = e.partition_point(|v| v * factor < lo);
+    let above = e.len() - e.partition_point(|v| v * factor <= hi);
+    let mut worst: Vec<StayOut> = Vec::new();
+    for &(v, index) in data.lowest.iter().filter(|x| x.0 * factor < lo) {
+        worst.push(StayOut { index, lux: v * factor, needs: lo / (v * factor) });
     }
-    keep_worst(&mut out);
+    for &(v, index) in data.highest.iter().filter(|x| x.0 * factor > hi) {
+        worst.push(StayOut { index, lux: v * factor, needs: hi / (v * factor) });
+    }
+    worst.sort_by(|a, b| b.needs.ln().abs().total_cmp(&a.needs.ln().abs()).then(a.index.cmp(&b.index)));
+    worst.truncate(LISTED);
+    let (mn, mx) = (e.first().copied().unwrap_or(0.0), e.last().copied().unwrap_or(0.0));
     Some(Lever {
         factor,
-        in_range_now,
-        in_range_after: rp.len - below - above,
+        in_range_now: count_in(1.0),
+        in_range_after: e.len() - below - above,
         stay_below: below,
         stay_above: above,
-        worst: out,
+        worst,
         spread: if mn > 0.0 { mx / mn } else { f64::INFINITY },
-        range_ratio: b.upper.map_or(f64::INFINITY, |u| u.lx) / b.lower.map_or(0.0, |l| l.lx),
+        range_ratio: hi / b.lower.map_or(0.0, |l| l.lx),
     })
-}
-
-/// Keeps the [`LISTED`] furthest out (largest |ln needs|), ties by index.
-fn keep_worst(v: &mut Vec<StayOut>) {
-    v.sort_by(|a, b| b.needs.ln().abs().total_cmp(&a.needs.ln().abs()).then(a.index.cmp(&b.index)));
-    v.truncate(LISTED);
 }

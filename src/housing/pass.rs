@@ -20,7 +20,7 @@ use crate::housing::room::{EventLight, MAX_EVENTS, Room};
 use crate::pigment::kinetics::{Constants, Model, advance, light_time_to, steady_state};
 
 /// Bleached fraction within which a pigment counts as settled at its steady state.
-pub const SETTLED: f64 = 1e-9;
+pub const SETTLED: f64 = 1e-12;
 
 /// Positions per block handed to the threads.
 pub const BLOCK: usize = 16_384;
@@ -384,14 +384,17 @@ impl Kinetics {
         steady_state(self.model, self.c, k)
     }
 
-    /// A rate λ with |B(t) − B∞| ≤ |B₀ − B∞|·e^(−λt) at constant k. Rushton: λ = k + 1/τ₀
-    /// exactly. Rate-limited: dB/dt = f(B) = k(1 − B) − vB/(K_m + B) has f′(B) = −k −
-    /// vK_m/(K_m + B)², whose magnitude is smallest at B = 1, so |f(B)| ≥ (k + vK_m/(K_m + 1)²)
-    /// |B − B∞| on 0–1 and the distance shrinks at least that fast.
-    fn contraction(&self, k: f64) -> f64 {
+    /// A rate λ with |B(t) − B∞| ≤ |B₀ − B∞|·e^(−λt) at constant k while B stays at or below
+    /// `b_max`. Rushton: λ = k + 1/τ₀ exactly. Rate-limited: dB/dt = f(B) = k(1 − B) − vB/(K_m +
+    /// B) has |f′(B)| = k + vK_m/(K_m + B)², which falls as B rises; B moves monotonically
+    /// between B₀ and B∞, so on that stretch |f(B)| ≥ (k + vK_m/(K_m + b_max)²)·|B − B∞| with
+    /// b_max = max(B₀, B∞), and the distance shrinks at least that fast.
+    fn contraction(&self, k: f64, b_max: f64) -> f64 {
         match self.model {
             Model::Rushton => k + 1.0 / self.c.tau0_s,
-            Model::RateLimited => k + self.c.v_per_s * self.c.k_m / ((self.c.k_m + 1.0) * (self.c.k_m + 1.0)),
+            Model::RateLimited => {
+                k + self.c.v_per_s * self.c.k_m / ((self.c.k_m + b_max) * (self.c.k_m + b_max))
+            }
         }
     }
 
@@ -401,7 +404,7 @@ impl Kinetics {
         let bs = self.steady(k);
         let near = if b0 > bs { bs + SETTLED } else { bs - SETTLED };
         let gap = (b0 - bs).abs();
-        if gap <= SETTLED || gap * (-self.contraction(k) * dt).exp() <= SETTLED {
+        if gap <= SETTLED || gap * (-self.contraction(k, b0.max(bs)) * dt).exp() <= SETTLED {
             return bs;
         }
         match light_time_to(self.model, self.c, b0, k, near) {
@@ -426,16 +429,15 @@ impl Plan {
         let k_leak = row.leak_rod_rate * rp.k_per_rate;
         row.light_bleach = kin.steady(k_light);
         row.leak_bleach = kin.steady(k_leak);
-        let settled = (-kin.contraction(k_light) * self.room.light_s).exp() <= SETTLED
-            || (kin.settle(0.0, k_light, self.room.light_s) == row.light_bleach
-                && kin.settle(1.0, k_light, self.room.light_s) == row.light_bleach);
+        // Day one starts dark-adapted. When the light phase brings the state at lights-on back
+        // to the light's steady state, the next day repeats this one exactly (to SETTLED), so
+        // one day gives the figures of all; otherwise the days run on until they repeat.
         let mut b_on = 0.0;
-        let days = if settled { 1 } else { self.room.days.max(1) };
-        for day in 0..days {
-            let b_off = if settled { row.light_bleach } else { kin.settle(b_on, k_light, self.room.light_s) };
-            let next = self.night(&kin, rp, row, b_off, day + 1 < days, memo);
-            // Day after day the state at lights-on converges; once it repeats, so do the days.
-            if (next - b_on).abs() <= SETTLED * 1e-3 {
+        for _ in 0..self.room.days.max(1) {
+            let b_off = kin.settle(b_on, k_light, self.room.light_s);
+            let next = self.night(&kin, rp, row, b_off, memo);
+            if kin.settle(next, k_light, self.room.light_s) == b_off || (next - b_on).abs() <= SETTLED * 1e-3
+            {
                 break;
             }
             b_on = next;
@@ -443,14 +445,13 @@ impl Plan {
     }
 
     /// Runs one dark phase from `b_off`, filling the row's dark figures; returns the bleach at
-    /// lights-on when `need_end`.
+    /// lights-on.
     fn night(
         &self,
         kin: &Kinetics,
         rp: &RackPlan,
         row: &mut PositionRow,
         b_off: f64,
-        need_end: bool,
         memo: &mut Memo,
     ) -> f64 {
         let k_leak = row.leak_rod_rate * rp.k_per_rate;
@@ -476,6 +477,6 @@ impl Plan {
             row.events[e].peak_bleach = peak;
             row.events[e].recovery_s = recovery;
         }
-        if need_end { kin.settle(b, k_leak, self.room.dark_s - t) } else { b }
+        kin.settle(b, k_leak, self.room.dark_s - t)
     }
 }

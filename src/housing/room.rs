@@ -20,7 +20,7 @@ use crate::spectrum::Spectrum;
 pub const MAX_POSITIONS: usize = 20_000_000;
 
 /// The most timed dark-phase events one room may hold (each is a column group per position).
-pub const MAX_EVENTS: usize = 8;
+pub const MAX_EVENTS: usize = 4;
 
 /// A downward-facing Lambertian luminaire.
 #[derive(Debug, Clone, PartialEq)]

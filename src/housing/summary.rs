@@ -6,6 +6,7 @@
 
 use rayon::prelude::*;
 
+use crate::housing::lever::LeverData;
 use crate::housing::pass::{BLOCK, Basis, EventAt, Flags, Memo, Plan, PositionRow};
 use crate::housing::room::MAX_EVENTS;
 
@@ -230,10 +231,10 @@ fn add_event(s: &mut EventSummary, e: &EventAt, i: usize) {
     s.recovery_s.add(e.recovery_s, i);
 }
 
-/// Summarises every rack, on every core.
-pub fn summarise(plan: &Plan) -> Vec<RackSummary> {
+/// Summarises every rack, on every core, with the data of its lever.
+pub fn summarise(plan: &Plan) -> Vec<(RackSummary, LeverData)> {
     let events = plan.room.events.len();
-    let empty = || vec![RackSummary::new(events); plan.racks.len()];
+    let empty = || vec![(RackSummary::new(events), LeverData::default()); plan.racks.len()];
     let n = plan.len();
     (0..n.div_ceil(BLOCK))
         .into_par_iter()
@@ -241,11 +242,26 @@ pub fn summarise(plan: &Plan) -> Vec<RackSummary> {
             let mut memo = Memo::default();
             for i in b * BLOCK..((b + 1) * BLOCK).min(n) {
                 let r = plan.row_with(i, &mut memo);
-                acc[r.rack].add(&r);
+                let (sum, lever) = &mut acc[r.rack];
+                sum.add(&r);
+                let bounds = &plan.racks[r.rack].bounds;
+                if bounds.lower.is_some() || bounds.upper.is_some() {
+                    lever.add(r.room_lux, i);
+                }
             }
             acc
         })
-        .reduce(empty, |a, b| a.into_iter().zip(b).map(|(x, y)| x.merge(y)).collect())
+        .reduce(empty, |a, b| {
+            a.into_iter()
+                .zip(b)
+                .map(|((s1, l1), (s2, mut l2))| {
+                    // Keep the lux values in block order (the lever sorts them anyway).
+                    let mut l = l1;
+                    l.merge(std::mem::take(&mut l2));
+                    (s1.merge(s2), l)
+                })
+                .collect()
+        })
 }
 
 /// Computes every row, on every core, and hands them to `sink` in position order, a block of

@@ -18,8 +18,10 @@ use crate::retina::report::{RetinaScenario, assess_retina};
 use crate::scenario::{Phase, Pigmentation};
 use crate::spectrum::Spectrum;
 use crate::spectrum::scale::{ScaleTarget, scale_to};
-use uom::si::f64::Illuminance;
+use uom::si::f64::{Illuminance, LuminousIntensity, Time};
 use uom::si::illuminance::lux as lx;
+use uom::si::luminous_intensity::candela;
+use uom::si::time::second;
 
 /// Computes [`PerLux`] for light of `spectrum`'s shape at 1 lx of room light, seen full-field
 /// by the eye of `view` (its pupil rule; no filters), times the cage wall's `transmittance`:
@@ -221,21 +223,21 @@ pub struct RackResult {
 
 /// Runs the summary pass and the levers of `plan`.
 pub fn rack_results(plan: &Plan, evidence: &[crate::housing::guidance::Evidence]) -> Vec<RackResult> {
+    use rayon::prelude::*;
     let sums = summarise(plan);
     plan.room
         .racks
-        .iter()
+        .par_iter()
         .zip(&plan.racks)
         .zip(sums)
-        .enumerate()
-        .map(|(i, ((r, rp), summary))| RackResult {
+        .map(|((r, rp), (summary, data))| RackResult {
             id: r.id.clone(),
             animals: r.animals,
             shelves: r.top_shelf(),
             columns: r.last_column(),
             bounds: rp.bounds,
             per_lux: [rp.light, rp.leak].into_iter().chain(rp.events.iter().copied()).collect(),
-            lever: lever(plan, i),
+            lever: lever(&rp.bounds, data),
             evidence: compare_evidence(r.animals.species, &summary, evidence),
             summary,
         })
@@ -274,20 +276,62 @@ pub struct RoomResult {
     pub positions: usize,
     /// Positions with any flag.
     pub flagged: usize,
-    /// Light phase, dark phase (s) and days.
-    pub cycle: (f64, f64, u32),
-    /// Luminaires: id, intensity as written (cd), fitted scale.
-    pub luminaires: Vec<(String, f64, f64)>,
-    /// Events: name, start after lights-off (s), duration (s).
-    pub events: Vec<(String, f64, f64)>,
+    /// The light–dark cycle.
+    pub cycle: Cycle,
+    /// The luminaires as written and their fitted scales.
+    pub luminaires: Vec<LuminaireUse>,
+    /// The dark-phase events.
+    pub events: Vec<EventUse>,
     /// The readings file and how many positions it gives.
-    pub readings: Option<(String, usize)>,
+    pub readings: Option<ReadingsUse>,
     /// The fit of the model to the readings.
     pub fit: Option<Fit>,
     /// Per rack.
     pub racks: Vec<RackResult>,
     /// Every position, streamed when serialised.
     pub rows: Rows,
+}
+
+/// The light–dark cycle of a room.
+#[derive(Debug, Clone, Copy, PartialEq, serde::Serialize)]
+pub struct Cycle {
+    /// Light phase.
+    pub light: Time,
+    /// Dark phase.
+    pub dark: Time,
+    /// Days run.
+    pub days: u32,
+}
+
+/// A luminaire as written, and the scale the calibration gave it (1 without one).
+#[derive(Debug, Clone, PartialEq, serde::Serialize)]
+pub struct LuminaireUse {
+    /// Its id.
+    pub id: String,
+    /// Peak intensity as written.
+    pub intensity: LuminousIntensity,
+    /// Fitted scale.
+    pub scale: f64,
+}
+
+/// A dark-phase event, every night.
+#[derive(Debug, Clone, PartialEq, serde::Serialize)]
+pub struct EventUse {
+    /// Its name.
+    pub name: String,
+    /// Start after lights-off.
+    pub start: Time,
+    /// Duration.
+    pub duration: Time,
+}
+
+/// The readings used.
+#[derive(Debug, Clone, PartialEq, serde::Serialize)]
+pub struct ReadingsUse {
+    /// The file.
+    pub file: String,
+    /// Positions with a reading.
+    pub positions: usize,
 }
 
 /// The per-position rows of a room, computed when they are serialised (never held).
@@ -328,15 +372,31 @@ pub fn assess_room(
     Ok(RoomResult {
         positions: plan.len(),
         flagged: racks.iter().map(|r| r.summary.flagged).sum(),
-        cycle: (room.light_s, room.dark_s, room.days),
+        cycle: Cycle {
+            light: Time::new::<second>(room.light_s),
+            dark: Time::new::<second>(room.dark_s),
+            days: room.days,
+        },
         luminaires: room
             .luminaires
             .iter()
             .enumerate()
-            .map(|(j, l)| (l.id.clone(), l.intensity_cd, plan.scales.as_ref().map_or(1.0, |s| s[j])))
+            .map(|(j, l)| LuminaireUse {
+                id: l.id.clone(),
+                intensity: LuminousIntensity::new::<candela>(l.intensity_cd),
+                scale: plan.scales.as_ref().map_or(1.0, |s| s[j]),
+            })
             .collect(),
-        events: room.events.iter().map(|e| (e.name.clone(), e.start_s, e.duration_s)).collect(),
-        readings: room.readings.as_ref().map(|r| (r.origin.clone(), r.count)),
+        events: room
+            .events
+            .iter()
+            .map(|e| EventUse {
+                name: e.name.clone(),
+                start: Time::new::<second>(e.start_s),
+                duration: Time::new::<second>(e.duration_s),
+            })
+            .collect(),
+        readings: room.readings.as_ref().map(|r| ReadingsUse { file: r.origin.clone(), positions: r.count }),
         fit,
         racks,
         rows: Rows(std::sync::Arc::new(plan)),

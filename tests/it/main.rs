@@ -14,4 +14,5 @@ mod properties;
 mod reference;
 mod retina_reference;
 mod rng;
+mod room;
 mod verdicts;

@@ -9,6 +9,9 @@ use retidose::housing::summary::Extremes;
 use retidose::housing::survey::{NotCompared, RackResult, RoomResult};
 use retidose::scenario::Pigmentation;
 
+use uom::si::luminous_intensity::candela;
+use uom::si::time::second;
+
 use super::num;
 
 /// A duration as a person writes it: "45 s", "12 min", "1 h 30 min", "never".
@@ -132,13 +135,14 @@ fn dark_sentences(room: &RoomResult, r: &RackResult) -> Vec<String> {
     } else {
         out.push("Dark phase, leak: none given.".to_string());
     }
-    for ((name, start, dur), e) in room.events.iter().zip(&s.events) {
+    for (ev, e) in room.events.iter().zip(&s.events) {
+        let (name, start, dur) = (&ev.name, ev.start.get::<second>(), ev.duration.get::<second>());
         out.push(format!(
             "Dark phase, event '{name}' ({} from {} after lights-off, every night): up to {} lx at cage level{}, rod up \
              to {} R*/rod/s, melanopsin up to {} photons/cm²/s; it bleaches up to {} % of the rod pigment, and its \
              extra bleach falls to a tenth within {}.",
-            duration(*dur),
-            duration(*start),
+            duration(dur),
+            duration(start),
             num(e.room_lux.max),
             max_at(room, &e.room_lux),
             num(e.rod_rate.max),
@@ -175,11 +179,12 @@ fn evidence_sentences(room: &RoomResult, r: &RackResult, evidence: &[Evidence]) 
                 (None, Some((leak, events))) => {
                     let mut t =
                         format!("the leak here is {}× its {} lx", num(*leak), num(e.lux.unwrap_or(0.0)));
-                    for ((name, _, dur), x) in room.events.iter().zip(events) {
+                    for (ev, x) in room.events.iter().zip(events) {
                         t.push_str(&format!(
-                            "; '{name}' is {}× in lux but lasts {}, while the evidence is continuous light",
+                            "; '{}' is {}× in lux but lasts {}, while the evidence is continuous light",
+                            ev.name,
                             num(*x),
-                            duration(*dur)
+                            duration(ev.duration.get::<second>())
                         ));
                     }
                     t
@@ -240,7 +245,8 @@ pub fn rack_sentences(room: &RoomResult, r: &RackResult, evidence: &[Evidence]) 
 
 /// The room's heading sentence: racks, luminaires, readings and the fit.
 pub fn room_sentences(room: &RoomResult) -> Vec<String> {
-    let (light, dark, days) = room.cycle;
+    let (light, dark, days) =
+        (room.cycle.light.get::<second>(), room.cycle.dark.get::<second>(), room.cycle.days);
     let mut out = vec![format!(
         "{} positions on {} rack(s); {} luminaire(s); {} light : {} dark, {days} day(s), {} event(s) each night.",
         room.positions,
@@ -250,12 +256,15 @@ pub fn room_sentences(room: &RoomResult) -> Vec<String> {
         duration(dark),
         room.events.len()
     )];
-    if let Some((file, n)) = &room.readings {
-        out.push(format!("Readings: {n} positions from {file}."));
+    if let Some(r) = &room.readings {
+        out.push(format!("Readings: {} positions from {}.", r.positions, r.file));
     }
     if let Some(f) = &room.fit {
-        let scales: Vec<String> =
-            room.luminaires.iter().map(|(id, cd, s)| format!("{id} {} cd × {}", num(*cd), num(*s))).collect();
+        let scales: Vec<String> = room
+            .luminaires
+            .iter()
+            .map(|l| format!("{} {} cd × {}", l.id, num(l.intensity.get::<candela>()), num(l.scale)))
+            .collect();
         out.push(format!(
             "Calibration ({}, {} readings): {}; residual RMS {} lx (before {} lx), largest {} lx. Positions without a \
              reading are predicted by the calibrated model.",
