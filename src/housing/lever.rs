@@ -136,13 +136,12 @@ pub fn lever(b: &RackBounds, mut data: LeverData) -> Option<Lever> {
     if b.lower.is_none() && b.upper.is_none() {
         return None;
     }
-    let e = &mut data.lux;
-    // Non-negative floats order as their bit patterns: an integer sort (racks run in parallel).
-    let mut bits: Vec<u64> = e.iter().map(|v| v.to_bits()).collect();
+    // Non-negative floats order as their bit patterns: an integer sort, in place (the maps
+    // below reuse the vector's memory), racks in parallel.
+    let mut bits: Vec<u64> = std::mem::take(&mut data.lux).into_iter().map(f64::to_bits).collect();
     bits.sort_unstable();
-    e.clear();
-    e.extend(bits.iter().map(|x| f64::from_bits(*x)));
-    drop(bits);
+    let sorted: Vec<f64> = bits.into_iter().map(f64::from_bits).collect();
+    let e = &sorted;
     let lo = b.lower.map_or(f64::NEG_INFINITY, |l| l.lx);
     let hi = b.upper.map_or(f64::INFINITY, |u| u.lx);
     let count_in = |f: f64| e.partition_point(|v| v * f <= hi) - e.partition_point(|v| v * f < lo);

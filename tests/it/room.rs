@@ -318,3 +318,65 @@ fn the_report_says_in_words_which_cages_and_what_to_change() {
         assert_eq!(&rec[col("rack")], if r.rack == 0 { "rats" } else { "mice" });
     }
 }
+
+#[test]
+fn listed_positions_and_an_event_from_a_placed_lamp_follow_the_same_laws() {
+    let text = r#"[scenario]
+name = "list"
+title = "listed cages (invented)"
+[subject]
+species = "rat"
+pigmentation = "albino"
+pupil = "light"
+[room]
+light_spectrum = "neutral-white-led"
+light_phase = "12 h"
+dark_phase = "12 h"
+[[room.luminaire]]
+x = "1 m"
+y = "1 m"
+z = "3 m"
+intensity = "1000 cd"
+[[room.event]]
+name = "torch"
+spectrum = "red-safelight-led"
+start = "1 h"
+duration = "5 min"
+[room.event.luminaire]
+x = "2 m"
+y = "1 m"
+z = "2 m"
+intensity = "3 cd"
+[[room.rack]]
+id = "shelf unit"
+cage_transmittance = "1"
+shelf_shading = "0.5"
+[[room.rack.position]]
+shelf = 1
+column = 1
+x = "1 m"
+y = "1 m"
+z = "1 m"
+[[room.rack.position]]
+shelf = 2
+column = 1
+x = "2 m"
+y = "1.5 m"
+z = "1.4 m"
+"#;
+    let s = parse_scenario_file(text, "list.toml", None).unwrap_or_else(|e| panic!("{e}"));
+    let a = assess(&s).unwrap();
+    let plan = &a.room.as_ref().unwrap().rows.0;
+    let (r0, r1) = (plan.row(0), plan.row(1));
+    // Shelf 1 is under one shelf (× 0.5); shelf 2 is the top.
+    let e = |i: f64, (lx, ly, lz): (f64, f64, f64), (x, y, z): (f64, f64, f64)| {
+        let h = lz - z;
+        let d2 = (lx - x).powi(2) + (ly - y).powi(2) + h * h;
+        i * h * h / (d2 * d2)
+    };
+    assert!(rel(r0.room_lux, 0.5 * e(1000.0, (1.0, 1.0, 3.0), (1.0, 1.0, 1.0))) < 1e-12);
+    assert!(rel(r1.room_lux, e(1000.0, (1.0, 1.0, 3.0), (2.0, 1.5, 1.4))) < 1e-12);
+    assert!(rel(r0.events[0].room_lux, 0.5 * e(3.0, (2.0, 1.0, 2.0), (1.0, 1.0, 1.0))) < 1e-12);
+    assert!(rel(r1.events[0].room_lux, e(3.0, (2.0, 1.0, 2.0), (2.0, 1.5, 1.4))) < 1e-12);
+    assert_eq!((r1.shelf, r1.column), (2, 1));
+}
