@@ -58,12 +58,25 @@ pub fn demo(name: &str) -> Result<&'static str> {
     })
 }
 
-/// The cautions every report opens with.
-pub const CAUTIONS: [&str; 3] = [
-    LIMITS_CAUTION,
-    "Animal housing guidance is not a welfare assessment: the attending veterinarian and the institution's animal care and use committee decide, under local regulation.",
-    "retidose informs; it does not replace the standards bodies' texts, a qualified optical-radiation safety officer, the attending veterinarian, the institution's committee (IACUC, IRB) or local regulation.",
-];
+/// The animal caution: shown when animals are the subject or a room is surveyed.
+pub const ANIMAL_CAUTION: &str = "Animal housing guidance is not a welfare assessment: the attending veterinarian and the institution's animal care and use committee decide, under local regulation.";
+
+/// The general deferral, shown in every report.
+pub const GENERAL_CAUTION: &str = "retidose informs; it does not replace the standards bodies' texts, a qualified optical-radiation safety officer, the attending veterinarian, the institution's committee (IACUC, IRB) or local regulation.";
+
+/// The cautions that apply to `s`: the human-limits caution when limits are checked, the animal
+/// caution when animals are the subject or a room is surveyed, the general deferral always.
+pub fn cautions(s: &Scenario) -> Vec<String> {
+    let mut v = Vec::new();
+    if s.limits.is_some() {
+        v.push(LIMITS_CAUTION.to_string());
+    }
+    if s.species != Species::Human || s.room.is_some() {
+        v.push(ANIMAL_CAUTION.to_string());
+    }
+    v.push(GENERAL_CAUTION.to_string());
+    v
+}
 
 /// A cited document used by the assessment.
 #[derive(Debug, Clone, PartialEq, serde::Serialize)]
@@ -158,7 +171,7 @@ pub struct Assessment {
     pub description: Option<String>,
     /// Species of the subject.
     pub species: Species,
-    /// Cautions (always shown first).
+    /// The cautions that apply (after the summary).
     pub cautions: Vec<String>,
     /// Documents used.
     pub provenance: Vec<Provenance>,
@@ -271,7 +284,7 @@ fn assess_inner(s: &Scenario) -> Result<Assessment> {
         title: s.title.clone(),
         description: s.description.clone(),
         species: s.species,
-        cautions: CAUTIONS.iter().map(|c| c.to_string()).collect(),
+        cautions: cautions(s),
         provenance,
         pupils: paths.light.as_ref().map(|l| PupilUse {
             light: l.pupil.clone(),

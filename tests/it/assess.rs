@@ -33,7 +33,7 @@ fn rel(a: f64, b: f64) -> f64 {
 }
 
 #[test]
-fn the_demo_runs_all_three_and_opens_with_the_cautions() {
+fn the_demo_runs_all_three_each_opening_with_its_verdict_then_the_cautions_that_apply() {
     let out = retidose().args(["assess", "--demo"]).output().unwrap();
     assert_eq!(out.status.code(), Some(0), "a demo run succeeds even though it raises flags");
     let text = String::from_utf8(out.stdout).unwrap();
@@ -41,7 +41,20 @@ fn the_demo_runs_all_three_and_opens_with_the_cautions() {
         assert!(text.contains(title), "{title}");
     }
     let first_lines: Vec<&str> = text.lines().take(6).collect();
-    assert!(first_lines.iter().any(|l| l.starts_with("! These limits apply to humans")), "{first_lines:?}");
+    assert!(first_lines.iter().any(|l| l.trim_start().starts_with("Outcome: ")), "{first_lines:?}");
+    // Each demo's section: the human-limits caution only where limits are checked, the animal
+    // caution only where animals are the subject, the general deferral always.
+    let sections: Vec<&str> = text.split("retidose assess — ").skip(1).collect();
+    assert_eq!(sections.len(), 3);
+    let has = |s: &str, c: &str| s.split_whitespace().collect::<Vec<_>>().join(" ").contains(c);
+    for (s, limits, animals) in
+        [(sections[0], false, true), (sections[1], true, false), (sections[2], true, false)]
+    {
+        assert_eq!(has(s, "! These limits apply to humans"), limits, "{s}");
+        assert_eq!(has(s, "! Animal housing guidance is not a welfare assessment"), animals, "{s}");
+        assert!(has(s, "! retidose informs"));
+        assert!(s.find("Outcome: ").unwrap() < s.find("! retidose informs").unwrap(), "verdict first");
+    }
     assert!(text.contains("Not assessed"));
     assert!(text.contains("Sources of limits and guidance"));
 }

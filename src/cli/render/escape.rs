@@ -12,31 +12,39 @@
 
 use std::borrow::Cow;
 
-/// The characters [`markdown`] escapes with a backslash: CommonMark's punctuation that can start
-/// or end a construct (emphasis, code, links, images, headings, lists, block quotes, tables,
-/// raw HTML, entities via the backslash itself), plus `~` (GitHub's strikethrough).
-const MARKDOWN_PUNCTUATION: &[char] =
-    &['\\', '`', '*', '_', '{', '}', '[', ']', '(', ')', '#', '+', '-', '.', '!', '|', '<', '>', '~'];
+/// The characters [`markdown`] escapes with a backslash wherever they are: CommonMark's
+/// punctuation that can open or close an inline construct (emphasis, code spans, links and
+/// images, autolinks and raw HTML, table cells, the backslash itself) and `~` (GitHub's
+/// strikethrough). `(`, `)` and `!` need no escape once `[` and `]` have one.
+const MARKDOWN_INLINE: &[char] = &['\\', '`', '*', '_', '[', ']', '|', '<', '>', '~'];
+
+/// The characters that start a block (heading, list, block quote, setext underline) when they
+/// open a line; escaped only where the text begins.
+const MARKDOWN_BLOCK_START: &[char] = &['#', '+', '-', '=', '>'];
 
 /// Escapes user text for Markdown inline context (a heading, a paragraph, a list item or a table
-/// cell), so that it renders as the literal text in CommonMark:
+/// cell), so that it renders as the literal text in CommonMark and reads cleanly unrendered:
 ///
-/// - the punctuation `` \ ` * _ { } [ ] ( ) # + - . ! | < > ~ `` gets a backslash, so no
-///   heading, list, emphasis, code span, link or image (hence no `javascript:` link), autolink
-///   or raw HTML can form, and `|` cannot end a table cell;
+/// - `` \ ` * _ [ ] | < > ~ `` get a backslash anywhere, so no emphasis, code span, link or
+///   image (hence no `javascript:` link), autolink or raw HTML can form, and `|` cannot end a
+///   table cell;
+/// - where the text begins, a block marker (`#`, `+`, `-`, `=`, `>`, or the `.` / `)` after
+///   leading digits) gets a backslash, so the text cannot become a heading, list or quote;
 /// - `&` becomes `&amp;`, so no entity reference is decoded;
 /// - line feeds, carriage returns and every other control character become a space, so the text
 ///   stays on its line and cannot start a block of its own; so do the bidirectional embeddings,
 ///   overrides and isolates (U+202A–U+202E, U+2066–U+2069), which would show the text in another
 ///   order than it is.
-///
-/// One pass, one allocation sized for the common case.
 pub fn markdown(text: &str) -> String {
     let mut o = String::with_capacity(text.len() + text.len() / 8 + 4);
-    for c in text.chars() {
+    let lead = text.len() - text.trim_start_matches(' ').len();
+    let digits = text[lead..].chars().take_while(char::is_ascii_digit).count();
+    for (i, c) in text.char_indices() {
+        let at_start = i == lead && MARKDOWN_BLOCK_START.contains(&c);
+        let list_number = digits > 0 && i == lead + digits && matches!(c, '.' | ')');
         match c {
             '&' => o.push_str("&amp;"),
-            c if MARKDOWN_PUNCTUATION.contains(&c) => {
+            c if MARKDOWN_INLINE.contains(&c) || at_start || list_number => {
                 o.push('\\');
                 o.push(c);
             }
@@ -197,20 +205,24 @@ mod tests {
 
     #[test]
     fn markdown_escapes_html_links_and_headings() {
-        assert_eq!(markdown("<script>alert(1)</script>"), r"\<script\>alert\(1\)\</script\>");
-        assert_eq!(markdown("<img src=x onerror=alert(1)>"), r"\<img src=x onerror=alert\(1\)\>");
+        assert_eq!(markdown("<script>alert(1)</script>"), r"\<script\>alert(1)\</script\>");
+        assert_eq!(markdown("<img src=x onerror=alert(1)>"), r"\<img src=x onerror=alert(1)\>");
         assert_eq!(
             markdown("Title\n# Injected\n[x](javascript:alert(1))"),
-            r"Title \# Injected \[x\]\(javascript:alert\(1\)\)"
+            r"Title # Injected \[x\](javascript:alert(1))"
         );
+        assert_eq!(markdown("# Injected"), r"\# Injected");
+        assert_eq!(markdown("  - item"), r"  \- item");
+        assert_eq!(markdown("12. x"), r"12\. x");
+        assert_eq!(markdown("v2.5 at 20.40 lx (rack A-1)"), "v2.5 at 20.40 lx (rack A-1)");
         assert_eq!(markdown("a\r\nb"), "a  b");
     }
 
     #[test]
     fn markdown_escapes_every_construct_and_entities() {
         assert_eq!(markdown("*a* _b_ `c` ~~d~~ | e"), r"\*a\* \_b\_ \`c\` \~\~d\~\~ \| e");
-        assert_eq!(markdown("&lt; & {x} !"), r"&amp;lt; &amp; \{x\} \!");
-        assert_eq!(markdown("1. - + > \\"), r"1\. \- \+ \> \\");
+        assert_eq!(markdown("&lt; & {x} !"), r"&amp;lt; &amp; {x} !");
+        assert_eq!(markdown("1. - + > \\"), r"1\. - + \> \\");
         assert_eq!(markdown("tab\there\u{7}bell"), "tab here bell");
         assert_eq!(markdown("plain text, 5 mm"), "plain text, 5 mm");
         assert_eq!(markdown("µ°²"), "µ°²");

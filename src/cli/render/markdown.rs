@@ -49,12 +49,17 @@ pub fn assessment(all: &[Assessment]) -> String {
     o
 }
 
-/// Title, description, cautions and the pupil rule.
+/// Title, description, the summary in words, the cautions that apply and the pupil rule.
 fn heading(o: &mut String, a: &Assessment) {
     let _ = writeln!(o, "# {}\n", user(&a.title));
     if let Some(d) = &a.description {
         let _ = writeln!(o, "{}\n", user(d));
     }
+    let _ = writeln!(o, "## Summary\n");
+    for line in super::summary_lines(a) {
+        let _ = writeln!(o, "- {}", user(&line));
+    }
+    let _ = writeln!(o);
     for c in &a.cautions {
         // The library's fixed cautions, no user text.
         let _ = writeln!(o, "> **Caution.** {}\n", cell(c));

@@ -207,3 +207,66 @@ fn dur(s: f64) -> String {
         format!("{} s", num(s))
     }
 }
+
+/// The report's opening in words, the same in every format: the outcome and what it means for
+/// the exit status, each exceedance (where and by how much), each raised guidance flag, each
+/// rack's light-phase verdict, and how many items were not assessed.
+pub fn summary_lines(a: &Assessment) -> Vec<String> {
+    let mut out = vec![outcome_sentence(a)];
+    for l in &a.limits {
+        for h in l.hazards.iter().filter(|h| h.verdict == Verdict::Exceeds) {
+            let by = h.ratio.or(h.lower_bound_ratio).map_or(String::new(), |r| format!(" by {}×", num(r)));
+            let part = if h.partial { " (on the measured band alone: a lower bound)" } else { "" };
+            out.push(format!("{}: {} exceeds the {} limit{by}{part}.", l.source, h.name, l.set_id));
+        }
+    }
+    let within: Vec<&HazardResult> =
+        a.limits.iter().flat_map(|l| &l.hazards).filter(|h| h.verdict == Verdict::Within).collect();
+    if let Some(h) = within
+        .iter()
+        .filter(|h| h.ratio.is_some())
+        .max_by(|x, y| x.ratio.unwrap_or(0.0).total_cmp(&y.ratio.unwrap_or(0.0)))
+    {
+        out.push(format!(
+            "{} hazard check(s) within their limits; the closest is {} for {} at a ratio of {} to its limit.",
+            within.len(),
+            h.name,
+            h.source,
+            num(h.ratio.unwrap_or(0.0))
+        ));
+    }
+    for g in a.guidance.iter().filter(|g| g.flag.raised) {
+        out.push(format!("Guidance flag — {}: {} ({}).", g.flag.name, g.flag.message, basis_text(g)));
+    }
+    if let Some(room) = &a.room {
+        for r in &room.racks {
+            let s = &r.summary;
+            if r.bounds.lower.is_some() || r.bounds.upper.is_some() {
+                out.push(format!(
+                    "Rack {}: {} of {} positions below and {} above the guidance range; {} with dark-phase light.",
+                    r.id, s.below, s.positions, s.above, s.dark_flagged
+                ));
+            }
+        }
+    }
+    if !a.not_assessed.is_empty() {
+        out.push(format!(
+            "{} item(s) not assessed; the reasons are listed under Not assessed.",
+            a.not_assessed.len()
+        ));
+    }
+    out
+}
+
+/// The outcome in one sentence.
+fn outcome_sentence(a: &Assessment) -> String {
+    if a.limit_exceeded {
+        "Outcome: a limit is exceeded (a scenario file with this outcome exits with status 1).".to_string()
+    } else if a.flag_raised {
+        "Outcome: a guidance flag is raised (a scenario file with this outcome exits with status 1)."
+            .to_string()
+    } else {
+        "Outcome: no limit exceeded and no guidance flag raised among the items assessed (exit status 0)."
+            .to_string()
+    }
+}

@@ -13,8 +13,8 @@ use retidose::retina::report::RetinaReport;
 use super::{paint, safe_rows, table};
 use crate::cli::render::escape::{terminal_line, terminal_text};
 use crate::cli::render::{
-    STEP_HEADER, basis_text, data_notes, fov_and_c_alpha, num, pupil_line, recovery_text, step_rows, t_max,
-    verdict_word,
+    STEP_HEADER, basis_text, data_notes, fov_and_c_alpha, num, pupil_line, recovery_text, step_rows,
+    summary_lines, t_max, verdict_word,
 };
 
 /// The terminal summary.
@@ -70,9 +70,13 @@ fn heading(o: &mut String, a: &Assessment, colour: bool) {
     if let Some(d) = &a.description {
         let _ = writeln!(o, "{}", terminal_text(d));
     }
+    let _ = writeln!(o, "\n{}", paint("Summary", "1", colour));
+    for line in summary_lines(a) {
+        super::room::wrapped(o, &line, 100, "  ");
+    }
     let _ = writeln!(o);
     for c in &a.cautions {
-        let _ = writeln!(o, "! {}", terminal_line(c));
+        super::room::wrapped(o, &format!("! {c}"), 100, "");
     }
 }
 
