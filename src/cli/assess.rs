@@ -11,7 +11,7 @@ use retidose::scenario::file::Scenario;
 
 use super::Output;
 use super::output::{AtomicFile, check_target};
-use super::render::{csv, html, json, markdown, terminal};
+use super::render::{csv, csv_long, html, json, markdown, terminal};
 
 /// Help shown after `retidose assess --help`.
 pub const EXAMPLES: &str = "\
@@ -57,10 +57,12 @@ pub struct AssessArgs {
 pub enum ReportFormat {
     /// Tables for the terminal
     Table,
-    /// JSON (schema retidose.assessment/1)
+    /// JSON (schema retidose.assessment/2)
     Json,
-    /// CSV: one row per cage position, or per hazard
+    /// CSV: the whole report as one long table (scenario, section, item, quantity, value, unit, status)
     Csv,
+    /// CSV: one row per cage position of the room (streamed)
+    Positions,
     /// Markdown
     Markdown,
     /// One self-contained HTML file with inline SVG plots
@@ -83,6 +85,11 @@ pub fn run(a: AssessArgs) -> Result<Output> {
         }
     }
     let results = scenarios.iter().map(assess).collect::<std::result::Result<Vec<_>, _>>()?;
+    if a.format == ReportFormat::Positions && results.iter().all(|r| r.room.is_none()) {
+        bail!(
+            "--format positions writes one row per cage position, and no scenario here has a [room]; use --format csv"
+        );
+    }
     // A demo raises flags on purpose; its run is a success. Scenario files get the documented
     // status (1 when a limit is exceeded or a guidance flag is raised).
     let raised = results.iter().any(|r| r.limit_exceeded || r.flag_raised);
@@ -142,7 +149,8 @@ fn render_to(
     match format {
         ReportFormat::Table => w.write_all(terminal::assess::report(results, colour).as_bytes()),
         ReportFormat::Json => json::assess::document_to(results, w),
-        ReportFormat::Csv => csv::assessment_to(results, w),
+        ReportFormat::Csv => csv_long::write(results, w),
+        ReportFormat::Positions => csv::assessment_to(results, w),
         ReportFormat::Markdown => w.write_all(markdown::assessment(results).as_bytes()),
         ReportFormat::Html => w.write_all(html::assessment(results).as_bytes()),
     }

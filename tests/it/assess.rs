@@ -184,7 +184,8 @@ fn every_format_renders_and_the_html_holds_each_plot() {
     for (fmt, needle) in [
         ("table", "Outcome"),
         ("json", "retidose.assessment/2"),
-        ("csv", "shelf,column"),
+        ("csv", "scenario,section,item,quantity,value,unit,status"),
+        ("positions", "rack,shelf,column"),
         ("markdown", "# Holding room"),
     ] {
         retidose()
@@ -200,12 +201,20 @@ fn every_format_renders_and_the_html_holds_each_plot() {
         assert!(html.contains(&format!("aria-label=\"{label}")), "{label}");
     }
     assert_eq!(html.matches("<svg").count(), html.matches("</svg>").count());
-    // CSV per hazard when there is no survey.
+    // The long table holds every scenario of a run, hazards and risk groups included; the
+    // per-position table is refused, with what to use instead, when there is no room.
+    let out = retidose().args(["assess", "--demo", "--format", "csv"]).output().unwrap();
+    let csv = String::from_utf8(out.stdout).unwrap();
+    for needle in
+        ["\nvivarium,room,", "\ndark-adaptation,bleach,", "\nstimulus-review,limits,", ",risk group,RG1,"]
+    {
+        assert!(csv.contains(needle), "{needle}");
+    }
     retidose()
-        .args(["assess", "--demo", "stimulus-review", "--format", "csv"])
+        .args(["assess", "--demo", "stimulus-review", "--format", "positions"])
         .assert()
-        .success()
-        .stdout(predicate::str::starts_with("scenario,source,set,hazard"));
+        .code(2)
+        .stderr(predicate::str::contains("use --format csv"));
 }
 
 #[test]

@@ -301,7 +301,7 @@ fn the_report_says_in_words_which_cages_and_what_to_change() {
     // CSV rows are the library's rows, in order.
     let csv = Command::cargo_bin("retidose")
         .unwrap()
-        .args(["assess", p.to_str().unwrap(), "--format", "csv"])
+        .args(["assess", p.to_str().unwrap(), "--format", "positions"])
         .output()
         .unwrap()
         .stdout;

@@ -4,11 +4,8 @@
 use std::fmt::Write;
 
 use retidose::assess::Assessment;
-use retidose::limits::{TMax, Verdict};
 use retidose::pigment::bleach::BleachReport;
 use retidose::retina::report::RetinaReport;
-
-use super::verdict_word;
 
 /// The retinal spectral irradiance of every source with a known radiance, as CSV.
 pub fn retinal_spectrum(r: &RetinaReport) -> String {
@@ -40,19 +37,13 @@ pub fn time_course(r: &BleachReport) -> String {
     o
 }
 
-/// CSV of `assess`: one row per cage position when a scenario surveys a room (streamed: the
-/// rows are written as they are computed), otherwise one row per hazard.
+/// The per-position CSV of `assess` (`--format positions`): one row per cage position of every
+/// scenario's room, streamed (the rows are written as they are computed).
 ///
 /// # Errors
 /// The writer's errors.
 pub fn assessment_to(all: &[Assessment], w: &mut dyn std::io::Write) -> std::io::Result<()> {
-    if all.iter().any(|a| a.room.is_some()) {
-        position_rows(all, w)
-    } else {
-        let mut o = String::new();
-        hazard_rows(&mut o, all);
-        w.write_all(o.as_bytes())
-    }
+    position_rows(all, w)
 }
 
 /// The per-position header; `events` event column groups.
@@ -167,39 +158,6 @@ fn basis_word(b: retidose::housing::pass::Basis) -> &'static str {
         retidose::housing::pass::Basis::Reading => "reading",
         retidose::housing::pass::Basis::Model => "model",
         retidose::housing::pass::Basis::Predicted => "predicted",
-    }
-}
-
-/// One row per hazard of every limits check.
-fn hazard_rows(o: &mut String, all: &[Assessment]) {
-    o.push_str("scenario,source,set,hazard,clause,ratio,t_max_s,verdict,reason\n");
-    for a in all {
-        for l in &a.limits {
-            let src = &l.source;
-            for h in &l.hazards {
-                let reason = match &h.verdict {
-                    Verdict::NotAssessed(r) | Verdict::NotApplicable(r) => r.clone(),
-                    _ => String::new(),
-                };
-                let tm = match h.t_max {
-                    Some(TMax::Seconds(s)) => s.to_string(),
-                    _ => String::new(),
-                };
-                let _ = writeln!(
-                    o,
-                    "{},{},{},{},{},{},{},{},{}",
-                    csv_field(&a.name),
-                    csv_field(src),
-                    l.set_id,
-                    h.id,
-                    csv_field(&h.clause),
-                    h.ratio.map_or(String::new(), |r| r.to_string()),
-                    tm,
-                    verdict_word(h),
-                    csv_field(&reason)
-                );
-            }
-        }
     }
 }
 

@@ -14,6 +14,7 @@
 //! guidance basis, recovery).
 
 pub mod csv;
+pub mod csv_long;
 pub mod escape;
 pub mod html;
 pub mod json;
