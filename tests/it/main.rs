@@ -5,6 +5,7 @@ mod assess;
 mod bad_input;
 mod bleach_reference;
 mod cli;
+mod completeness;
 mod consistency;
 mod fuzz;
 mod hazard_oracle;

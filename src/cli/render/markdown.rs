@@ -28,6 +28,7 @@ pub fn assessment(all: &[Assessment]) -> String {
     let mut o = String::new();
     for a in all {
         heading(&mut o, a);
+        eye(&mut o, a);
         if !a.steps.is_empty() {
             steps(&mut o, a);
         }
@@ -69,6 +70,50 @@ fn heading(o: &mut String, a: &Assessment) {
     }
 }
 
+/// What reaches the eye from each source: corneal illuminance, trolands, the rod rate, then the
+/// α-opic quantities (CIE S 026 EDIs for people, photon irradiances for rodents).
+fn eye(o: &mut String, a: &Assessment) {
+    use retidose::base::quantity::{SiValue, as_td_f64};
+    let Some(r) = &a.retina else { return };
+    let _ = writeln!(
+        o,
+        "## What reaches the eye ({} eye)\n\n| source | corneal illuminance | photopic td | scotopic td | rod R*/rod/s |\n|---|---:|---:|---:|---:|",
+        r.species.name()
+    );
+    for s in &r.sources {
+        let ret = s.retinal.as_ref();
+        let rod = ret
+            .and_then(|x| x.catch.iter().find(|c| c.receptor == "rod"))
+            .map_or("—".into(), |c| num(c.rate.si()));
+        let _ = writeln!(
+            o,
+            "| {} | {} | {} | {} | {rod} |",
+            user(&s.label),
+            s.illuminance.value.map_or("—".into(), |v| format!("{} lx", num(v.si_value()))),
+            ret.map_or("—".into(), |x| num(as_td_f64(x.trolands.photopic))),
+            ret.map_or("—".into(), |x| num(as_td_f64(x.trolands.scotopic))),
+        );
+    }
+    let _ = writeln!(o, "\n| source | α-opic quantity | value |\n|---|---|---:|");
+    for s in &r.sources {
+        for x in &s.human_alpha_opic {
+            let v = x.edi.map_or("—".into(), |e| format!("{} lx EDI", num(e.si_value())));
+            let _ = writeln!(o, "| {} | {} | {v} |", user(&s.label), user(&x.name));
+        }
+        for x in &s.species_opic {
+            let _ = writeln!(
+                o,
+                "| {} | {} | {} photons/cm²/s ({} lx equivalent daylight) |",
+                user(&s.label),
+                user(&x.channel),
+                num(x.photon_irradiance.si() * 1e-4),
+                num(x.equivalent_daylight.get::<uom::si::illuminance::lux>())
+            );
+        }
+    }
+    let _ = writeln!(o);
+}
+
 /// The schedule steps of one cycle.
 fn steps(o: &mut String, a: &Assessment) {
     let _ = writeln!(
@@ -108,23 +153,34 @@ fn pigment(o: &mut String, b: &BleachReport) {
         );
     }
     let _ = writeln!(o, "\nPeak {:.3} %; {}.\n", 100.0 * b.summary.peak, user(&recovery_text(b)));
+    for t in &b.thresholds {
+        if let Some(s) = t.to_within_0_1_log_min {
+            let _ = writeln!(
+                o,
+                "Rod threshold estimate: within 0.1 log unit of its dark-adapted level after {} ({}).\n",
+                super::room::duration(s),
+                user(&t.basis)
+            );
+        }
+    }
 }
 
 /// One limits check: a row per hazard with its verdict.
 fn limits(o: &mut String, src: &str, l: &LimitsAssessment) {
     let _ = writeln!(
         o,
-        "## Exposure limits: {} against {}\n\n| hazard | clause | ratio | t_max | field / C_α | verdict |\n|---|---|---|---|---|---|",
+        "## Exposure limits: {} against {}\n\n| hazard | clause | ratio | lower bound | t_max | field / C_α | verdict |\n|---|---|---|---|---|---|---|",
         user(src),
         user(&l.set_id)
     );
     for h in &l.hazards {
         let _ = writeln!(
             o,
-            "| {} | {} | {} | {} | {} | {}{} |",
+            "| {} | {} | {} | {} | {} | {} | {}{} |",
             user(&h.name),
             user(&h.clause),
             h.ratio.map_or("—".into(), num),
+            h.lower_bound_ratio.map_or("—".into(), num),
             cell(&t_max(h)),
             user(&fov_and_c_alpha(h)),
             verdict_word(h),
@@ -146,6 +202,16 @@ fn limits(o: &mut String, src: &str, l: &LimitsAssessment) {
             c.overall.map_or("—", |g| g.name()),
             if c.not_assessed.is_empty() { "" } else { " (a lower bound: some hazards were not assessed)" }
         );
+        if let Some(e) = c.e_thr_lx {
+            let _ = writeln!(
+                o,
+                "- E_thr (IEC TR 62778: the illuminance at the eye up to which the blue-light hazard stays within RG1): {} lx",
+                num(e)
+            );
+        }
+        if let Some(d) = c.threshold_distance {
+            let _ = writeln!(o, "- threshold distance: {} mm", num(d.get::<uom::si::length::millimeter>()));
+        }
         for n in &c.notes {
             let _ = writeln!(o, "- {}", user(n));
         }
