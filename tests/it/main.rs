@@ -4,6 +4,7 @@
 mod assess;
 mod bad_input;
 mod bleach_reference;
+mod browser;
 mod cli;
 mod completeness;
 mod consistency;
