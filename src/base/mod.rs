@@ -5,6 +5,7 @@ pub mod constants;
 pub mod curve;
 pub mod data;
 pub mod error;
+pub mod inputs;
 pub mod quantity;
 pub mod toml_errors;
 pub mod units;

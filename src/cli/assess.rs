@@ -131,7 +131,9 @@ fn load_scenarios(a: &AssessArgs) -> Result<(Vec<Scenario>, Vec<PathBuf>)> {
             let text =
                 std::fs::read_to_string(file).with_context(|| format!("cannot read the scenario {file}"))?;
             inputs.push(Path::new(file).to_path_buf());
-            vec![parse_scenario_file(&text, file, Path::new(file).parent())?]
+            let s = parse_scenario_file(&text, file, Path::new(file).parent())?;
+            inputs.extend(s.inputs.iter().cloned());
+            vec![s]
         }
         (None, None) => bail!("give a scenario file, --demo or --example"),
     };

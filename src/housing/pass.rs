@@ -22,6 +22,10 @@ use crate::pigment::kinetics::{Constants, Model, advance, light_time_to, steady_
 /// Bleached fraction within which a pigment counts as settled at its steady state.
 pub const SETTLED: f64 = 1e-12;
 
+/// ln(1/[`SETTLED`]): a contraction λ·t at least this settles any bleach (≤ 1) to within
+/// [`SETTLED`].
+const SETTLED_DECAY: f64 = 27.631_021_115_928_547;
+
 /// Positions per block handed to the threads.
 pub const BLOCK: usize = 16_384;
 
@@ -404,7 +408,9 @@ impl Kinetics {
         let bs = self.steady(k);
         let near = if b0 > bs { bs + SETTLED } else { bs - SETTLED };
         let gap = (b0 - bs).abs();
-        if gap <= SETTLED || gap * (-self.contraction(k, b0.max(bs)) * dt).exp() <= SETTLED {
+        let decay = self.contraction(k, b0.max(bs)) * dt;
+        // gap ≤ 1, so λ·dt ≥ ln(1/SETTLED) settles without an exponential.
+        if gap <= SETTLED || decay >= SETTLED_DECAY || gap * (-decay).exp() <= SETTLED {
             return bs;
         }
         match light_time_to(self.model, self.c, b0, k, near) {
@@ -478,5 +484,15 @@ impl Plan {
             row.events[e].recovery_s = recovery;
         }
         kin.settle(b, k_leak, self.room.dark_s - t)
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn the_settling_decay_is_ln_of_one_over_settled() {
+        assert!((SETTLED_DECAY + SETTLED.ln()).abs() < 1e-12);
     }
 }

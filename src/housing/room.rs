@@ -17,7 +17,7 @@ use crate::scenario::Pigmentation;
 use crate::spectrum::Spectrum;
 
 /// The most cage positions one room may hold (a cap is an error, never a truncation).
-pub const MAX_POSITIONS: usize = 20_000_000;
+pub const MAX_POSITIONS: usize = 10_000_000;
 
 /// The most timed dark-phase events one room may hold (each is a column group per position).
 pub const MAX_EVENTS: usize = 4;

@@ -174,6 +174,8 @@ pub struct Scenario {
     pub guidance: Vec<&'static GuidanceSet>,
     /// The holding room, when the scenario surveys one.
     pub room: Option<Room>,
+    /// Every file the scenario made retidose read (spectra, filters, eye files, readings).
+    pub inputs: Vec<std::path::PathBuf>,
 }
 
 impl Scenario {
@@ -195,7 +197,12 @@ impl Scenario {
 /// [`crate::base::error::Location`]: the file, the key path and its line.
 pub fn parse_scenario_file(text: &str, origin: &str, base: Option<&Path>) -> Result<Scenario> {
     let raw: RawScenario = toml::from_str(text).map_err(|e| Error::data(describe(&e, origin)))?;
-    resolve(raw, origin, base).map_err(|e| e.in_file(origin, Some(text)))
+    crate::base::inputs::start();
+    let resolved = resolve(raw, origin, base);
+    let inputs = crate::base::inputs::finish();
+    let mut s = resolved.map_err(|e| e.in_file(origin, Some(text)))?;
+    s.inputs = inputs;
+    Ok(s)
 }
 
 fn resolve(raw: RawScenario, origin: &str, base: Option<&Path>) -> Result<Scenario> {
@@ -254,6 +261,7 @@ fn resolve(raw: RawScenario, origin: &str, base: Option<&Path>) -> Result<Scenar
         limits,
         guidance,
         room,
+        inputs: Vec::new(),
     })
 }
 

@@ -130,12 +130,17 @@ struct RawScenario {
     filter: Vec<FilterSpec>,
 }
 
-/// `p` relative to `base` (the scenario file's folder) when it is a relative path.
+/// `p` relative to `base` (the scenario file's folder) when it is a relative path; a file that
+/// exists is recorded as an input of the run ([`crate::base::inputs`]).
 pub fn rel(base: Option<&Path>, p: &str) -> PathBuf {
-    match base {
+    let path = match base {
         Some(b) if Path::new(p).is_relative() => b.join(p),
         _ => PathBuf::from(p),
+    };
+    if path.is_file() {
+        crate::base::inputs::record(&path);
     }
+    path
 }
 
 fn opt<T>(v: &Option<String>, key: &str, parse: impl Fn(&str) -> Result<T>) -> Result<Option<T>> {

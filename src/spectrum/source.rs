@@ -225,6 +225,7 @@ pub fn parse_lamp(text: &str, origin: &str, dir: Option<&Path>, grid: Option<Gri
         }
         (None, Some(table)) => {
             let p = dir.map_or_else(|| Path::new(table).to_path_buf(), |d| d.join(table));
+            crate::base::inputs::record(&p);
             if p.extension().is_some_and(|e| e.eq_ignore_ascii_case("toml")) {
                 return Err(Error::data(format!(
                     "{}: {} is a lamp description; a lamp's table must be a spectrum file (two columns), so lamp \

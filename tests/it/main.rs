@@ -18,3 +18,4 @@ mod retina_reference;
 mod rng;
 mod room;
 mod verdicts;
+mod write_safety;

@@ -4,6 +4,7 @@
 use std::fmt::Write;
 
 use retidose::assess::Assessment;
+use retidose::housing::pass::PositionRow;
 use retidose::pigment::bleach::BleachReport;
 use retidose::retina::report::RetinaReport;
 
@@ -59,95 +60,98 @@ fn position_header(events: usize) -> String {
             ",event{k}_lux,event{k}_rod_r_star_per_s,event{k}_melanopsin_photons_per_m2_s,event{k}_peak_bleach,event{k}_recovery_s"
         );
     }
-    h.push_str(
-        ",melanopic_photons_per_m2_per_night,flags
-",
-    );
+    h.push_str(",melanopic_photons_per_m2_per_night,flags\n");
     h
 }
 
-/// A number for a data file: the shortest text that reads back to the same value; scientific
-/// notation outside 10⁻⁴–10¹⁵; empty for a missing value (NaN); `inf` for a time never reached.
-fn put(w: &mut dyn std::io::Write, v: f64) -> std::io::Result<()> {
-    let a = v.abs();
+/// A number for a data file, appended to `buf`: the shortest text that reads back to the same
+/// value (ryu), empty for a missing value (NaN), `inf` for a time never reached.
+fn put(buf: &mut Vec<u8>, num: &mut ryu::Buffer, v: f64) {
+    buf.push(b',');
     if v.is_nan() {
-        Ok(())
     } else if v.is_infinite() {
-        w.write_all(b"inf")
-    } else if a == 0.0 || (1e-4..1e15).contains(&a) {
-        write!(w, "{v}")
+        buf.extend_from_slice(b"inf");
     } else {
-        write!(w, "{v:e}")
+        buf.extend_from_slice(num.format_finite(v).as_bytes());
     }
 }
 
-/// One row per cage position of every room, streamed.
+/// What every row of one room shares.
+struct RowContext {
+    scenario: String,
+    racks: Vec<String>,
+    events: usize,
+    columns: usize,
+}
+
+/// Appends one position's row to `buf`.
+fn row(buf: &mut Vec<u8>, num: &mut ryu::Buffer, cx: &RowContext, p: &PositionRow) {
+    buf.extend_from_slice(cx.scenario.as_bytes());
+    buf.push(b',');
+    buf.extend_from_slice(cx.racks[p.rack].as_bytes());
+    for v in [p.shelf, p.column] {
+        buf.push(b',');
+        buf.extend_from_slice(itoa::Buffer::new().format(v).as_bytes());
+    }
+    buf.push(b',');
+    buf.extend_from_slice(basis_word(p.basis).as_bytes());
+    let ratio = p.reading_lux / p.model_lux;
+    for v in
+        [p.model_lux, p.calibrated_lux, p.reading_lux, ratio, p.room_lux, p.cage_lux, p.rod_rate, p.opic[3]]
+    {
+        put(buf, num, v);
+    }
+    for v in [p.light_bleach, p.recovery_90_s, p.leak_lux, p.leak_rod_rate, p.leak_melanopsin, p.leak_bleach]
+    {
+        put(buf, num, v);
+    }
+    for e in &p.events[..cx.events] {
+        for v in [e.room_lux, e.rod_rate, e.melanopsin, e.peak_bleach, e.recovery_s] {
+            put(buf, num, v);
+        }
+    }
+    for _ in cx.events..cx.columns {
+        buf.extend_from_slice(b",,,,,");
+    }
+    put(buf, num, p.melanopic_dose);
+    buf.push(b',');
+    for (k, f) in p.flags.names().enumerate() {
+        if k > 0 {
+            buf.push(b' ');
+        }
+        buf.extend_from_slice(f.as_bytes());
+    }
+    buf.push(b'\n');
+}
+
+/// Rows formatted per chunk on every core, then written in order.
+const FORMAT_CHUNK: usize = 2048;
+
+/// One row per cage position of every room, streamed: each block of rows is formatted on every
+/// core into one buffer per chunk and written in position order.
 fn position_rows(all: &[Assessment], w: &mut dyn std::io::Write) -> std::io::Result<()> {
-    let events = all.iter().filter_map(|a| a.room.as_ref()).map(|r| r.events.len()).max().unwrap_or(0);
-    w.write_all(position_header(events).as_bytes())?;
+    use rayon::prelude::*;
+    let columns = all.iter().filter_map(|a| a.room.as_ref()).map(|r| r.events.len()).max().unwrap_or(0);
+    w.write_all(position_header(columns).as_bytes())?;
+    let mut bufs: Vec<Vec<u8>> = Vec::new();
     for a in all {
         let Some(room) = &a.room else { continue };
-        let name = csv_field(&a.name);
-        let n = room.events.len();
+        let cx = RowContext {
+            scenario: csv_field(&a.name),
+            racks: room.racks.iter().map(|r| csv_field(&r.id)).collect(),
+            events: room.events.len(),
+            columns,
+        };
         retidose::housing::summary::stream(&room.rows.0, |rows| {
-            for p in rows {
-                write!(
-                    w,
-                    "{name},{},{},{},{}",
-                    csv_field(&room.racks[p.rack].id),
-                    p.shelf,
-                    p.column,
-                    basis_word(p.basis)
-                )?;
-                let ratio = p.reading_lux / p.model_lux;
-                for v in [
-                    p.model_lux,
-                    p.calibrated_lux,
-                    p.reading_lux,
-                    ratio,
-                    p.room_lux,
-                    p.cage_lux,
-                    p.rod_rate,
-                    p.opic[3],
-                ] {
-                    w.write_all(b",")?;
-                    put(w, v)?;
+            bufs.resize_with(rows.len().div_ceil(FORMAT_CHUNK), Vec::new);
+            bufs.par_iter_mut().zip(rows.par_chunks(FORMAT_CHUNK)).for_each(|(buf, chunk)| {
+                buf.clear();
+                let mut num = ryu::Buffer::new();
+                for p in chunk {
+                    row(buf, &mut num, &cx, p);
                 }
-                for v in [
-                    p.light_bleach,
-                    p.recovery_90_s,
-                    p.leak_lux,
-                    p.leak_rod_rate,
-                    p.leak_melanopsin,
-                    p.leak_bleach,
-                ] {
-                    w.write_all(b",")?;
-                    put(w, v)?;
-                }
-                for e in &p.events[..n] {
-                    for v in [e.room_lux, e.rod_rate, e.melanopsin, e.peak_bleach, e.recovery_s] {
-                        w.write_all(b",")?;
-                        put(w, v)?;
-                    }
-                }
-                for _ in n..events {
-                    w.write_all(b",,,,,")?;
-                }
-                w.write_all(b",")?;
-                put(w, p.melanopic_dose)?;
-                w.write_all(b",")?;
-                for (k, f) in p.flags.names().enumerate() {
-                    w.write_all(if k == 0 { f.as_bytes() } else { b" " })?;
-                    if k > 0 {
-                        w.write_all(f.as_bytes())?;
-                    }
-                }
-                w.write_all(
-                    b"
-",
-                )?;
-            }
-            Ok::<(), std::io::Error>(())
+            });
+            bufs.iter().try_for_each(|b| w.write_all(b))
         })?;
     }
     Ok(())
