@@ -8,12 +8,11 @@ use retidose::housing::survey::RoomResult;
 
 use super::room::{animals, rack_cells, rack_sentences, room_sentences};
 use retidose::base::quantity::SiValue;
+use retidose::limits::Verdict;
 use retidose::limits::report::LimitsAssessment;
-use retidose::limits::{Verdict, find_weighting};
 use retidose::pigment::bleach::BleachReport;
-use retidose::spectrum::Spectrum;
 
-use super::svg::{self, Series};
+use super::svg;
 use super::{
     STEP_HEADER, basis_text, data_notes, fov_and_c_alpha, num, pupil_line, step_rows, t_max, verdict_word,
 };
@@ -37,11 +36,17 @@ fn section(o: &mut String, a: &Assessment) {
     if let Some(d) = &a.description {
         let _ = write!(o, "<p>{}</p>", esc(d));
     }
+    o.push_str("<h2>Summary</h2><ul class=\"summary\">");
+    for line in super::summary_lines(a) {
+        let _ = write!(o, "<li>{}</li>", esc(&line));
+    }
+    o.push_str("</ul>");
     for c in &a.cautions {
         let _ = write!(o, "<p class=\"caution\">{}</p>", esc(c));
     }
-    if let Some((name, sp)) = a.spectra.first() {
-        spectrum(o, name, sp);
+    eye(o, a);
+    if let Some(f) = svg::spectrum(a) {
+        let _ = write!(o, "<h2>Spectra at the eye</h2>{}", svg::html(&f));
     }
     if let Some(line) = pupil_line(a) {
         let _ = write!(o, "<p>{}</p>", esc(&line));
@@ -51,6 +56,7 @@ fn section(o: &mut String, a: &Assessment) {
     }
     if let Some(b) = &a.bleach {
         pigment(o, b);
+        o.push_str(&svg::bleach(a).map_or_else(String::new, |f| svg::html(&f)));
     }
     if !a.limits.is_empty() {
         limits(o, a);
@@ -58,7 +64,7 @@ fn section(o: &mut String, a: &Assessment) {
     if !a.guidance.is_empty() {
         guidance(o, a);
     }
-    for e in &a.evidence {
+    for e in a.evidence.iter().filter(|_| a.room.is_none()) {
         let _ = write!(
             o,
             "<p><i>Evidence, not a limit:</i> {}: {} ({})</p>",
@@ -73,53 +79,48 @@ fn section(o: &mut String, a: &Assessment) {
     closing(o, a);
 }
 
-/// The first source's spectrum with the blue-light hazard, melanopic and rhodopic weightings.
-fn spectrum(o: &mut String, name: &str, sp: &Spectrum) {
-    let c = sp.curve();
-    let peak = c.values().iter().copied().fold(0.0, f64::max).max(1e-300);
-    let spec: Vec<(f64, f64)> = c
-        .wavelength_nm()
-        .iter()
-        .zip(c.values())
-        .filter(|(w, _)| **w >= 300.0 && **w <= 850.0)
-        .map(|(w, v)| (*w, v / peak))
-        .collect();
-    let series: Vec<Series<'_>> = vec![
-        ("spectrum (peak 1)", "#000", spec),
-        ("B(λ) blue-light hazard", "#1565c0", hazard_weighting("B")),
-        ("melanopic (S 026)", "#00897b", action_spectrum("melanopic")),
-        ("rhodopic V′(λ)", "#6a1b9a", action_spectrum("rhodopic")),
-    ];
+/// What reaches the eye from each source (corneal illuminance, trolands, rod R*/rod/s), then
+/// the α-opic quantities.
+fn eye(o: &mut String, a: &Assessment) {
+    use retidose::base::quantity::as_td_f64;
+    let Some(r) = &a.retina else { return };
     let _ = write!(
         o,
-        "<h2>Spectrum of {} with hazard and pigment weightings</h2>{}",
-        esc(name),
-        svg::lines("spectrum and weightings", &series, "wavelength, nm", "relative", false)
+        "<h2>What reaches the eye ({} eye)</h2><table><tr><th>source</th><th>corneal illuminance</th><th>photopic td</th><th>scotopic td</th><th>rod R*/rod/s</th></tr>",
+        r.species.name()
     );
-}
-
-/// A hazard weighting function up to 850 nm (empty if unknown).
-fn hazard_weighting(id: &str) -> Vec<(f64, f64)> {
-    find_weighting(id)
-        .map(|w| {
-            w.curve
-                .wavelength_nm()
-                .iter()
-                .zip(w.curve.values())
-                .filter(|(x, _)| **x <= 850.0)
-                .map(|(x, v)| (*x, *v))
-                .collect::<Vec<_>>()
-        })
-        .unwrap_or_default()
-}
-
-/// A CIE S 026 action spectrum by name (empty if unknown).
-fn action_spectrum(name: &str) -> Vec<(f64, f64)> {
-    retidose::weighting::alpha_opic::action_spectra()
-        .iter()
-        .find(|f| f.name == name)
-        .map(|f| f.curve.wavelength_nm().iter().zip(f.curve.values()).map(|(x, v)| (*x, *v)).collect())
-        .unwrap_or_default()
+    for s in &r.sources {
+        let ret = s.retinal.as_ref();
+        let rod = ret
+            .and_then(|x| x.catch.iter().find(|c| c.receptor == "rod"))
+            .map_or("—".into(), |c| num(c.rate.si()));
+        let _ = write!(
+            o,
+            "<tr><td>{}</td><td>{}</td><td>{}</td><td>{}</td><td>{rod}</td></tr>",
+            esc(&s.label),
+            s.illuminance.value.map_or("—".into(), |v| format!("{} lx", num(v.si_value()))),
+            ret.map_or("—".into(), |x| num(as_td_f64(x.trolands.photopic))),
+            ret.map_or("—".into(), |x| num(as_td_f64(x.trolands.scotopic))),
+        );
+    }
+    o.push_str("</table><table><tr><th>source</th><th>α-opic quantity</th><th>value</th></tr>");
+    for s in &r.sources {
+        for x in &s.human_alpha_opic {
+            let v = x.edi.map_or("—".into(), |e| format!("{} lx EDI", num(e.si_value())));
+            let _ = write!(o, "<tr><td>{}</td><td>{}</td><td>{v}</td></tr>", esc(&s.label), esc(&x.name));
+        }
+        for x in &s.species_opic {
+            let _ = write!(
+                o,
+                "<tr><td>{}</td><td>{}</td><td>{} photons/cm²/s ({} lx equivalent daylight)</td></tr>",
+                esc(&s.label),
+                esc(&x.channel),
+                num(x.photon_irradiance.si() * 1e-4),
+                num(x.equivalent_daylight.get::<uom::si::illuminance::lux>())
+            );
+        }
+    }
+    o.push_str("</table>");
 }
 
 /// The schedule steps of one cycle.
@@ -136,7 +137,7 @@ fn steps(o: &mut String, a: &Assessment) {
     o.push_str("</table>");
 }
 
-/// The pigment: one row per phase and the bleach time course.
+/// The pigment: one row per phase (the time course is a figure, see [`svg::bleach`]).
 fn pigment(o: &mut String, b: &BleachReport) {
     let _ = write!(
         o,
@@ -156,39 +157,35 @@ fn pigment(o: &mut String, b: &BleachReport) {
         );
     }
     o.push_str("</table>");
-    let course: Vec<(f64, f64)> = b.time_course.iter().map(|(t, x)| (t / 3600.0, 100.0 * x)).collect();
-    let _ = write!(
-        o,
-        "{}",
-        svg::lines(
-            "bleach time course",
-            &[("rod pigment bleached, %", "#c62828", course)],
-            "time, h",
-            "bleached, %",
-            false
-        )
-    );
+    let _ = write!(o, "<p>Peak {:.3} %; {}.</p>", 100.0 * b.summary.peak, esc(&super::recovery_text(b)));
+    for t in &b.thresholds {
+        if let Some(s) = t.to_within_0_1_log_min {
+            let _ = write!(
+                o,
+                "<p>Rod threshold estimate: within 0.1 log unit of its dark-adapted level after {} ({}).</p>",
+                super::duration(s * 60.0),
+                esc(&t.basis)
+            );
+        }
+    }
 }
 
-/// Every hazard ratio as a bar, then one table per limits check.
+/// Every hazard ratio in one figure, then per limits check its table and t_max against distance
+/// (or why that figure is not drawn).
 fn limits(o: &mut String, a: &Assessment) {
-    let bars: Vec<(String, f64)> = a
-        .limits
-        .iter()
-        .flat_map(|l| {
-            let src = &l.source;
-            l.hazards
-                .iter()
-                .filter_map(move |h| h.ratio.map(|r| (format!("{src} · {} · {}", l.set_id, h.id), r)))
-        })
-        .collect();
     o.push_str("<h2>Exposure limits</h2>");
-    if !bars.is_empty() {
-        o.push_str(&svg::bars("hazard ratios (exposure ÷ limit)", &bars));
+    if let Some(f) = svg::hazard_ratios(a) {
+        o.push_str(&svg::html(&f));
     }
     for l in &a.limits {
         let src = &l.source;
         limits_table(o, src, l);
+        match svg::t_max_distance(a, l) {
+            Ok(f) => o.push_str(&svg::html(&f)),
+            Err(why) => {
+                let _ = write!(o, "<p><i>{}</i></p>", esc(&why));
+            }
+        }
     }
 }
 
@@ -196,7 +193,7 @@ fn limits(o: &mut String, a: &Assessment) {
 fn limits_table(o: &mut String, src: &str, l: &LimitsAssessment) {
     let _ = write!(
         o,
-        "<h3>{} against {}</h3><table><tr><th>hazard</th><th>clause</th><th>ratio</th><th>t_max</th><th>field / C_α</th><th>verdict</th></tr>",
+        "<h3>{} against {}</h3><table><tr><th>hazard</th><th>clause</th><th>ratio</th><th>lower bound</th><th>t_max</th><th>field / C_α</th><th>verdict</th></tr>",
         esc(src),
         esc(&l.set_id)
     );
@@ -208,10 +205,11 @@ fn limits_table(o: &mut String, src: &str, l: &LimitsAssessment) {
         };
         let _ = write!(
             o,
-            "<tr><td>{}</td><td>{}</td><td>{}</td><td>{}</td><td>{}</td><td{cls}>{}{}{}</td></tr>",
+            "<tr><td>{}</td><td>{}</td><td>{}</td><td>{}</td><td>{}</td><td>{}</td><td{cls}>{}{}{}</td></tr>",
             esc(&h.name),
             esc(&h.clause),
             h.ratio.map_or("—".into(), num),
+            h.lower_bound_ratio.map_or("—".into(), num),
             esc(&t_max(h)),
             esc(&fov_and_c_alpha(h)),
             verdict_word(h),
@@ -234,6 +232,16 @@ fn limits_table(o: &mut String, src: &str, l: &LimitsAssessment) {
             c.overall.map_or("—", |g| g.name()),
             if c.not_assessed.is_empty() { "" } else { " (a lower bound: some hazards were not assessed)" }
         );
+        if let Some(e) = c.e_thr_lx {
+            let _ = write!(
+                o,
+                "<p>E_thr (IEC TR 62778: the illuminance at the eye up to which the blue-light hazard stays within RG1): {} lx</p>",
+                num(e)
+            );
+        }
+        if let Some(d) = c.threshold_distance {
+            let _ = write!(o, "<p>Threshold distance: {} mm</p>", num(d.si() * 1e3));
+        }
         if !c.notes.is_empty() {
             let items: String = c.notes.iter().map(|n| format!("<li>{}</li>", esc(n))).collect();
             let _ = write!(o, "<ul>{items}</ul>");
@@ -283,8 +291,8 @@ fn room(o: &mut String, a: &Assessment, room: &RoomResult) {
         for s in rack_sentences(room, r, &a.evidence) {
             let _ = write!(o, "<p>{}</p>", esc(&s));
         }
-        if let Some(c) = c {
-            o.push_str(&svg::heatmap(r, c));
+        if let Some(f) = c.as_ref().and_then(|c| svg::heatmap(r, c)) {
+            o.push_str(&svg::html(&f));
         }
     }
 }
