@@ -180,10 +180,22 @@ fn coverage_notes(
     for b in bands {
         if b.coverage.matters() && b.name != "ir" {
             notes.push(format!(
-                "band {} ({}–{} nm) is only partly covered by the spectrum ({lo}–{hi} nm): its share counts the covered part only",
-                b.name, b.band_nm.0, b.band_nm.1
+                "the {} band ({}–{} nm) is only partly covered by the spectrum ({lo}–{hi} nm): its share counts the covered part only",
+                band_words(b.name),
+                b.band_nm.0,
+                b.band_nm.1
             ));
         }
+    }
+}
+
+/// A band's key (`uv`, `blue-400-500`) as a reader names the band in a note.
+fn band_words(key: &str) -> &str {
+    match key {
+        "uv" => "UV",
+        "blue-400-500" => "blue",
+        "ir" => "IR",
+        other => other,
     }
 }
 

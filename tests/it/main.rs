@@ -17,5 +17,6 @@ mod reference;
 mod retina_reference;
 mod rng;
 mod room;
+mod terminal;
 mod verdicts;
 mod write_safety;

@@ -1,6 +1,4 @@
-//! The terminal table of `retidose retina`.
-
-use std::fmt::Write;
+//! The terminal text of `retidose retina`, fitted to the terminal's width.
 
 use retidose::base::quantity::{SiValue, as_td_f64};
 use retidose::retina::catch::ReceptorCatch;
@@ -8,125 +6,152 @@ use retidose::retina::report::{RetinaReport, SourceAtEye};
 use uom::si::illuminance::lux;
 use uom::si::length::millimeter;
 
-use super::{coverage_text, notes_and_caution, pair, photometric_short};
-use crate::cli::render::escape::terminal_line;
+use super::{Page, Table, coverage_note, coverage_text, pair, photometric_short};
 use crate::cli::render::num;
 
-/// The terminal table for a retinal assessment.
+/// The width of the labels.
+const LABEL: usize = 17;
+
+/// The terminal text of a retinal assessment.
 pub fn table(r: &RetinaReport) -> String {
-    let mut o = String::new();
+    table_at(r, super::width())
+}
+
+/// The terminal text of a retinal assessment, fitted to `width` columns.
+pub fn table_at(r: &RetinaReport, width: usize) -> String {
+    let mut o = Page::new(width, false);
     eye(&mut o, r);
     for (i, s) in r.sources.iter().enumerate() {
-        let _ = writeln!(o, "\nSource {}: {}", i + 1, terminal_line(&s.label));
+        o.heading(&format!("Source {}: {}", i + 1, s.label), false);
         at_the_cornea(&mut o, s);
         at_the_retina(&mut o, s);
     }
-    let _ = writeln!(o, "\nAll sources at the cornea: {}", photometric_short(&r.total_illuminance));
+    o.blank();
+    o.para(&format!("All sources at the cornea: {}", photometric_short(&r.total_illuminance)), "");
     human_alpha_opic(&mut o, r);
     species_alpha_opic(&mut o, r);
-    notes_and_caution(&mut o, &r.notes);
-    o
+    o.notes_and_caution(&r.notes);
+    o.finish()
 }
 
 /// The eye: species, pupil, collecting area, nodal distance and filters.
-fn eye(o: &mut String, r: &RetinaReport) {
-    let _ = writeln!(o, "retidose retina: {} eye", r.species.name());
-    let _ = writeln!(
-        o,
-        "  pupil             {} mm, {} [{}]",
-        num(r.pupil.diameter.get::<millimeter>()),
-        terminal_line(&r.pupil.basis),
-        r.pupil.status
+fn eye(o: &mut Page, r: &RetinaReport) {
+    o.heading(&format!("retidose retina: {} eye", r.species.name()), true);
+    o.field(
+        "  ",
+        "pupil",
+        LABEL,
+        &format!("{} mm, {} [{}]", num(r.pupil.diameter.get::<millimeter>()), r.pupil.basis, r.pupil.status),
     );
-    let _ = writeln!(o, "  collecting area   {} mm²", num(r.collecting_area_mm2));
-    let _ = writeln!(o, "  nodal distance    {} mm", num(r.nodal_distance.get::<millimeter>()));
+    o.field("  ", "collecting area", LABEL, &format!("{} mm²", num(r.collecting_area_mm2)));
+    o.field("  ", "nodal distance", LABEL, &format!("{} mm", num(r.nodal_distance.get::<millimeter>())));
     if !r.filters.is_empty() {
-        let _ = writeln!(o, "  filters           {}", terminal_line(&r.filters.join(", ")));
+        o.field("  ", "filters", LABEL, &r.filters.join(", "));
     }
 }
 
 /// One source at the cornea: illuminance, irradiance, the radiance the eye sees, subtense, notes.
-fn at_the_cornea(o: &mut String, s: &SourceAtEye) {
-    let _ = writeln!(o, "  at the cornea     {}", photometric_short(&s.illuminance));
-    let _ = writeln!(o, "                    {}", pair(s.irradiance.si_with_unit()));
-    let _ = writeln!(o, "                    {}", pair(s.photon_irradiance.si_with_unit()));
+fn at_the_cornea(o: &mut Page, s: &SourceAtEye) {
+    o.field("  ", "at the cornea", LABEL, &photometric_short(&s.illuminance));
+    o.field("  ", "", LABEL, &pair(s.irradiance.si_with_unit()));
+    o.field("  ", "", LABEL, &pair(s.photon_irradiance.si_with_unit()));
     match (&s.radiance, &s.luminance) {
         (Some(l), Some(lv)) => {
             let derived = if s.radiance_derived { " (derived)" } else { "" };
-            let _ = writeln!(o, "  seen radiance     {}{derived}", pair(l.si_with_unit()));
-            let _ = writeln!(o, "  seen luminance    {}", photometric_short(lv));
+            o.field("  ", "seen radiance", LABEL, &format!("{}{derived}", pair(l.si_with_unit())));
+            o.field("  ", "seen luminance", LABEL, &photometric_short(lv));
         }
-        _ => {
-            let _ = writeln!(o, "  seen radiance     not known");
-        }
+        _ => o.field("  ", "seen radiance", LABEL, "not known"),
     }
     if let Some(a) = s.subtense {
-        let _ = writeln!(o, "  subtense          {} mrad ({}°)", num(a.si() * 1e3), num(a.si().to_degrees()));
+        o.field(
+            "  ",
+            "subtense",
+            LABEL,
+            &format!("{} mrad ({}°)", num(a.si() * 1e3), num(a.si().to_degrees())),
+        );
     }
     for n in &s.notes {
-        let _ = writeln!(o, "  note              {}", terminal_line(n));
+        o.field("  ", "note", LABEL, n);
     }
 }
 
 /// One source at the retina: irradiance, trolands, image size and the photoreceptor catch.
-fn at_the_retina(o: &mut String, s: &SourceAtEye) {
+fn at_the_retina(o: &mut Page, s: &SourceAtEye) {
     let Some(ret) = &s.retinal else {
-        let _ = writeln!(o, "  retina            not assessed: the radiance the eye sees is not known");
+        o.field("  ", "retina", LABEL, "not assessed: the radiance the eye sees is not known");
         return;
     };
     let (e, eu) = ret.irradiance.si_with_unit();
     let (q, _) = ret.photon_irradiance.si_with_unit();
-    let _ = writeln!(o, "  retina            {} {eu}, {} photons·µm⁻²·s⁻¹", num(e), num(q * 1e-12));
+    o.field("  ", "retina", LABEL, &format!("{} {eu}, {} photons·µm⁻²·s⁻¹", num(e), num(q * 1e-12)));
     let t = &ret.trolands;
-    let _ = writeln!(
-        o,
-        "  trolands          photopic {} td, scotopic {} td",
-        num(as_td_f64(t.photopic)),
-        num(as_td_f64(t.scotopic))
+    o.field(
+        "  ",
+        "trolands",
+        LABEL,
+        &format!("photopic {} td, scotopic {} td", num(as_td_f64(t.photopic)), num(as_td_f64(t.scotopic))),
     );
-    let _ = writeln!(
-        o,
-        "                    Stiles–Crawford effective: {} td (Barten 1999), {} td (integral, ρ 0.05 mm⁻²)",
-        num(as_td_f64(t.photopic_effective_barten)),
-        num(as_td_f64(t.photopic_effective_integral))
+    o.field(
+        "  ",
+        "",
+        LABEL,
+        &format!(
+            "Stiles–Crawford effective: {} td (Barten 1999), {} td (integral, ρ 0.05 mm⁻²)",
+            num(as_td_f64(t.photopic_effective_barten)),
+            num(as_td_f64(t.photopic_effective_integral))
+        ),
     );
     if let Some(sz) = ret.image_size {
-        let _ = writeln!(o, "  image size        {} µm", num(sz.si() * 1e6));
+        o.field("  ", "image size", LABEL, &format!("{} µm", num(sz.si() * 1e6)));
     }
-    let _ = writeln!(o, "  photoisomerisations, R*/receptor/s (spectral route)");
+    o.para("photoisomerisations per receptor per second (spectral route)", "  ");
     for c in &ret.catch {
         catch(o, c);
     }
 }
 
 /// One receptor's catch: the spectral route, the troland routes and how far they differ.
-fn catch(o: &mut String, c: &ReceptorCatch) {
+fn catch(o: &mut Page, c: &ReceptorCatch) {
     let memo = if c.from_memory.is_empty() {
         String::new()
     } else {
         format!("  [from memory: {}]", c.from_memory.join(", "))
     };
-    let _ = writeln!(
-        o,
-        "    {:<8} λmax {:>5} nm  {:>11}{}{memo}",
-        terminal_line(&c.receptor),
-        num(c.lambda_max_nm),
-        num(c.rate.si()),
-        coverage_text(&c.coverage)
+    o.field(
+        "    ",
+        &c.receptor,
+        LABEL - 2,
+        &format!(
+            "{} R*/{}/s (λmax {} nm){}{memo}",
+            num(c.rate.si()),
+            c.receptor,
+            num(c.lambda_max_nm),
+            coverage_text(&c.coverage)
+        ),
     );
     for t in &c.troland_routes {
-        let _ = writeln!(
-            o,
-            "             troland route {} R*/rod/s per scot td ({}): {}",
-            num(t.factor),
-            terminal_line(&t.name),
-            num(t.rate.si())
+        o.field(
+            "    ",
+            "",
+            LABEL - 2,
+            &format!(
+                "troland route: {} R*/rod/s per scotopic td ({}): {} R*/rod/s",
+                num(t.factor),
+                t.source,
+                num(t.rate.si())
+            ),
         );
     }
     if let Some(ratio) = route_spread(c) {
-        let _ = writeln!(
-            o,
-            "             the routes differ by up to {ratio:.1}×: pupil, media and collecting-area assumptions differ"
+        o.field(
+            "    ",
+            "",
+            LABEL - 2,
+            &format!(
+                "the routes differ by up to {}×: pupil, media and collecting-area assumptions differ",
+                num(ratio)
+            ),
         );
     }
 }
@@ -142,41 +167,56 @@ fn route_spread(c: &ReceptorCatch) -> Option<f64> {
 }
 
 /// The CIE S 026 α-opic quantities at the cornea, all sources.
-fn human_alpha_opic(o: &mut String, r: &RetinaReport) {
+fn human_alpha_opic(o: &mut Page, r: &RetinaReport) {
     if r.human_alpha_opic.is_empty() {
         return;
     }
-    let _ = writeln!(o, "\nα-opic quantities at the cornea (CIE S 026:2018)");
+    o.heading("α-opic quantities at the cornea (CIE S 026:2018)", false);
+    let mut t = Table::new(&["", "α-opic irradiance", "EDI"]);
     for a in &r.human_alpha_opic {
-        let q = a.quantity.map_or("—".into(), |q| pair(q.si_with_unit()));
-        let edi = a.edi.map_or("—".into(), |e| pair(e.si_with_unit()));
-        let mark = if a.reconstructed { " *reconstructed" } else { "" };
-        let name = terminal_line(&a.name);
-        let _ = writeln!(o, "  {name:<13} {q:>24}   EDI {edi:>12}{mark}{}", coverage_text(&a.coverage));
+        let mark = if a.reconstructed { " *" } else { "" };
+        t.row(vec![
+            format!("{}{mark}", a.name),
+            a.quantity.map_or("—".into(), |q| pair(q.si_with_unit())),
+            a.edi.map_or("—".into(), |e| pair(e.si_with_unit())),
+        ]);
+    }
+    o.table(&t);
+    if r.human_alpha_opic.iter().any(|a| a.reconstructed) {
+        o.para("* reconstructed action spectrum: see the notes", "  ");
+    }
+    for a in &r.human_alpha_opic {
+        if let Some(note) = coverage_note(&a.coverage) {
+            o.hanging("! ", "  ", &format!("{}: {note}", a.name));
+        }
     }
 }
 
 /// The species' own α-opic quantities at the cornea (retidose's method), all sources.
-fn species_alpha_opic(o: &mut String, r: &RetinaReport) {
+fn species_alpha_opic(o: &mut Page, r: &RetinaReport) {
     if r.species_opic.is_empty() {
         return;
     }
-    let _ = writeln!(
-        o,
-        "\n{} α-opic quantities at the cornea (retidose method by analogy with CIE S 026; not a CIE quantity)",
-        r.species.name()
+    o.heading(
+        &format!(
+            "{} α-opic quantities at the cornea (retidose method by analogy with CIE S 026; not a CIE quantity)",
+            r.species.name()
+        ),
+        false,
     );
-    let _ =
-        writeln!(o, "  {:<11} {:>6}  {:>26}  {:>14}", "channel", "λmax", "photon irradiance", "equiv. D65");
+    let mut t = Table::new(&["channel", "λmax", "photon irradiance", "equivalent D65 illuminance"]);
     for s in &r.species_opic {
-        let _ = writeln!(
-            o,
-            "  {:<11} {:>6}  {:>26}  {:>14}{}",
-            terminal_line(&s.channel),
+        t.row(vec![
+            s.channel.clone(),
             format!("{} nm", num(s.lambda_max_nm)),
             format!("{} photons·m⁻²·s⁻¹", num(s.photon_irradiance.si())),
             format!("{} lx", num(s.equivalent_daylight.get::<lux>())),
-            coverage_text(&s.coverage)
-        );
+        ]);
+    }
+    o.table(&t);
+    for s in &r.species_opic {
+        if let Some(note) = coverage_note(&s.coverage) {
+            o.hanging("! ", "  ", &format!("{}: {note}", s.channel));
+        }
     }
 }

@@ -1,42 +1,31 @@
 //! The holding-room section of the terminal report: per rack, the sentences a manager reads,
-//! then the rack map (room lux at cage level, top shelf first) for racks small enough to print.
-
-use std::fmt::Write;
+//! then the rack map (room lux at cage level, top shelf first) for racks small enough to print;
+//! a map wider than the terminal is split by columns.
 
 use retidose::assess::Assessment;
 use retidose::housing::pass::{Basis, Flags};
 use retidose::housing::survey::RoomResult;
 
-use super::super::escape::terminal_line;
 use super::super::num;
 use super::super::room::{Cell, animals, rack_cells, rack_sentences, room_sentences};
-use super::{paint, table};
-
-/// Writes `text` wrapped to `width` columns, each line indented by `indent`.
-pub fn wrapped(o: &mut String, text: &str, width: usize, indent: &str) {
-    let opts = textwrap::Options::new(width).initial_indent(indent).subsequent_indent(indent);
-    for line in textwrap::wrap(&terminal_line(text), opts) {
-        let _ = writeln!(o, "{line}");
-    }
-}
+use super::{Page, Table};
 
 /// The room section.
-pub fn room(o: &mut String, a: &Assessment, room: &RoomResult, width: usize, colour: bool) {
-    let _ = writeln!(o, "\n{}", paint("Holding room", "1", colour));
+pub fn room(o: &mut Page, a: &Assessment, room: &RoomResult) {
+    o.heading("Holding room", false);
     for s in room_sentences(room) {
-        wrapped(o, &s, width, "");
+        o.para(&s, "");
     }
     let maps = rack_cells(room);
     for (k, r) in room.racks.iter().enumerate() {
-        let head = format!("\nRack {} — {}, {} shelves × {} columns", r.id, animals(r), r.shelves, r.columns);
-        let _ = writeln!(o, "{}", paint(&terminal_line(&head), "1", colour));
+        let head = format!("Rack {} — {}, {} shelves × {} columns", r.id, animals(r), r.shelves, r.columns);
+        o.heading(&head, false);
         for s in rack_sentences(room, r, &a.evidence) {
-            wrapped(o, &s, width, "  ");
+            o.para(&s, "  ");
         }
         let ratio = &r.summary.reading_over_model;
         if ratio.max.is_finite() {
-            wrapped(
-                o,
+            o.para(
                 &format!(
                     "Reading ÷ model as written: {}–{} (mean {}) over {} positions.",
                     num(ratio.min),
@@ -44,19 +33,15 @@ pub fn room(o: &mut String, a: &Assessment, room: &RoomResult, width: usize, col
                     num(ratio.sum / r.summary.basis[0].max(1) as f64),
                     r.summary.basis[0]
                 ),
-                width,
                 "  ",
             );
         }
         match &maps[k] {
-            Some(cells) => map(o, r.shelves, r.columns, cells, colour),
-            None => {
-                let _ = writeln!(
-                    o,
-                    "  (no map: {} positions; --format csv gives every one)",
-                    r.summary.positions
-                );
-            }
+            Some(cells) => map(o, r.shelves, r.columns, cells),
+            None => o.para(
+                &format!("(no map: {} positions; --format positions gives every one)", r.summary.positions),
+                "  ",
+            ),
         }
     }
 }
@@ -72,10 +57,13 @@ fn cell_text(c: &Cell) -> String {
     format!("{predicted}{}{mark}", num(c.lux))
 }
 
-fn map(o: &mut String, shelves: u32, columns: u32, cells: &[Option<Cell>], colour: bool) {
-    let mut rows = Vec::with_capacity(shelves as usize);
+/// The rack map: a row per shelf, top shelf first, a column per cage column.
+fn map(o: &mut Page, shelves: u32, columns: u32, cells: &[Option<Cell>]) {
+    let header: Vec<String> =
+        std::iter::once("lx".to_string()).chain((1..=columns).map(|c| format!("col {c}"))).collect();
+    let mut t = Table::new(&header);
     for s in (1..=shelves).rev() {
-        let mut row = vec![format!("shelf {s}")];
+        let mut row = vec![(format!("shelf {s}"), "")];
         for c in 1..=columns {
             let cell = cells[((s - 1) * columns + c - 1) as usize]
                 .as_ref()
@@ -87,16 +75,13 @@ fn map(o: &mut String, shelves: u32, columns: u32, cells: &[Option<Cell>], colou
             } else {
                 ""
             };
-            row.push(if code.is_empty() { cell } else { paint(&cell, code, colour) });
+            row.push((cell, code));
         }
-        rows.push(row);
+        t.painted_row(row);
     }
-    let header: Vec<String> =
-        std::iter::once("lx".to_string()).chain((1..=columns).map(|c| format!("col {c}"))).collect();
-    let refs: Vec<&str> = header.iter().map(String::as_str).collect();
-    let _ = writeln!(o, "{}", table(&refs, rows));
-    let _ = writeln!(
-        o,
-        "  room lux at cage level; + above the range, - below it, ~ predicted by the calibrated model (no reading), · no position"
+    o.table(&t);
+    o.para(
+        "room lux at cage level; + above the range, - below it, ~ predicted by the calibrated model (no reading), · no position",
+        "  ",
     );
 }
