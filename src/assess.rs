@@ -435,7 +435,7 @@ fn guidance_provenance(g: &GuidanceSet) -> Provenance {
         role: format!("guidance ({})", g.refers_to),
         document: g.document.clone(),
         edition: g.edition.clone(),
-        status: g.rule.iter().map(|r| format!("{}: {}", r.id, r.status)).collect::<Vec<_>>().join("; "),
+        status: g.rule.iter().map(|r| format!("{}: {}", r.name, r.status)).collect::<Vec<_>>().join("; "),
     }
 }
 

@@ -223,6 +223,72 @@ pub fn parse_power(text: &str) -> Result<Power> {
     parse_in(text, "radiant flux", POWER).map(Power::from_si)
 }
 
+/// A number for messages and reports: 4 significant digits, in scientific notation below 0.001
+/// and from a million (the exponent taken after rounding, so 0.99996 reads 1.000).
+pub fn sig4(v: f64) -> String {
+    if v == 0.0 || !v.is_finite() {
+        return format!("{v}");
+    }
+    let sci = format!("{v:.3e}");
+    let exp: i32 = sci.split('e').nth(1).and_then(|e| e.parse().ok()).unwrap_or(0);
+    if !(-3..6).contains(&exp) {
+        return sci;
+    }
+    let decimals = (3 - exp).max(0) as usize;
+    format!("{v:.decimals$}")
+}
+
+/// A duration as a person writes it: "45 s", "0.25 s", "2 min 13 s", "12 min", "5 h 5 min",
+/// "6 d 12 h"; "—" when not finite.
+pub fn duration_text(s: f64) -> String {
+    if !s.is_finite() {
+        return "—".into();
+    }
+    if s < 0.0 {
+        return format!("−{}", duration_text(-s));
+    }
+    // Seconds below a minute: up to 3 significant digits, without trailing zeros.
+    if s < 59.5 {
+        if s == 0.0 {
+            return "0 s".into();
+        }
+        if s < 1e-3 {
+            return format!("{} s", sig4(s));
+        }
+        let digits = if s >= 10.0 {
+            0
+        } else if s >= 1.0 {
+            1
+        } else {
+            (2 - s.log10().floor() as i32).max(0) as usize
+        };
+        let t = format!("{s:.digits$}");
+        let t = if t.contains('.') { t.trim_end_matches('0').trim_end_matches('.').to_string() } else { t };
+        return format!("{t} s");
+    }
+    let parts = |big: u64, big_unit: &str, small: u64, small_unit: &str| {
+        if small == 0 {
+            format!("{big} {big_unit}")
+        } else {
+            format!("{big} {big_unit} {small} {small_unit}")
+        }
+    };
+    // Under 10 min to the second, under 48 h to the minute, beyond to the hour.
+    if s < 599.5 {
+        let total = s.round() as u64;
+        return parts(total / 60, "min", total % 60, "s");
+    }
+    if s < 3570.0 {
+        return format!("{} min", (s / 60.0).round() as u64);
+    }
+    if s < 48.0 * 3600.0 - 1800.0 {
+        let total = (s / 60.0).round() as u64;
+        return parts(total / 60, "h", total % 60, "min");
+    }
+    let hours = (s / 3600.0).round() as u64;
+    parts(hours / 24, "d", hours % 24, "h")
+}
+
 /// A number for messages: rounded to 9 significant digits, so 9.000000000000002 reads 9.
 pub fn tidy(v: f64) -> String {
     if v == 0.0 || !v.is_finite() {

@@ -391,7 +391,12 @@ mod tests {
 
     #[test]
     fn a_simulated_full_disk_midway_leaves_the_old_file_intact() {
-        let d = folder("full");
+        simulated_full_disk("full");
+    }
+
+    /// A write that fails after 10 000 bytes, in its own folder `tag` (tests run in parallel).
+    fn simulated_full_disk(tag: &str) {
+        let d = folder(tag);
         let p = d.join("report.html");
         std::fs::write(&p, "old").unwrap();
         let err = write_atomically(&p, |w| {
@@ -425,7 +430,7 @@ mod tests {
     fn a_full_filesystem_leaves_the_old_file_intact_tmpfs_or_simulated() {
         let Some(mount) = std::env::var_os("RETIDOSE_TMPFS") else {
             eprintln!("RETIDOSE_TMPFS is not set: a simulated full disk instead of a real one");
-            return a_simulated_full_disk_midway_leaves_the_old_file_intact();
+            return simulated_full_disk("full-fallback");
         };
         let d = PathBuf::from(mount).join(format!("retidose-full-{}", std::process::id()));
         let _ = std::fs::remove_dir_all(&d);

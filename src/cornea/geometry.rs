@@ -207,8 +207,8 @@ fn derive_radiance(e: &Spectrum, alpha: Option<f64>, notes: &mut Vec<String>) ->
     match alpha {
         Some(a) => {
             notes.push(format!(
-                "radiance derived from the irradiance and a subtense of {:.4} mrad (uniform disc: L = E / (π sin²(α/2)))",
-                a * 1e3
+                "radiance derived from the irradiance and a subtense of {} mrad (uniform disc: L = E / (π sin²(α/2)))",
+                crate::base::units::sig4(a * 1e3)
             ));
             Ok(Some(e.scaled_as(1.0 / projected_solid_angle(a), Measure::Radiance)?))
         }

@@ -21,6 +21,7 @@ use super::set::{
 use super::weighting::find_weighting;
 use crate::base::curve::Curve;
 use crate::base::quantity::{SiValue, Time};
+use crate::base::units::{duration_text, sig4};
 use crate::spectrum::photometry::photopic;
 use crate::spectrum::{Coverage, Spectrum};
 
@@ -360,9 +361,11 @@ fn check_smaller_than(r: f64, e: &Exposure<'_>) -> Result<(), Verdict> {
         (_, true) => {
             Err(Verdict::NotApplicable(format!("the light fills the field (not a source below {r} rad)")))
         }
-        (Some(a), _) if a >= r => {
-            Err(Verdict::NotApplicable(format!("source subtends {a:.4} rad, not below {r} rad")))
-        }
+        (Some(a), _) if a >= r => Err(Verdict::NotApplicable(format!(
+            "the source subtends {} mrad, not below {} mrad",
+            sig4(a * 1e3),
+            sig4(r * 1e3)
+        ))),
         (None, _) => Err(Verdict::NotAssessed("needs the source's subtense".into())),
         _ => Ok(()),
     }
@@ -372,9 +375,11 @@ fn check_smaller_than(r: f64, e: &Exposure<'_>) -> Result<(), Verdict> {
 fn check_at_least(r: f64, e: &Exposure<'_>) -> Result<(), Verdict> {
     match (e.subtense_rad, e.full_field) {
         (_, true) => Ok(()),
-        (Some(a), _) if a < r => {
-            Err(Verdict::NotApplicable(format!("source subtends {a:.4} rad, below {r} rad")))
-        }
+        (Some(a), _) if a < r => Err(Verdict::NotApplicable(format!(
+            "the source subtends {} mrad, below {} mrad",
+            sig4(a * 1e3),
+            sig4(r * 1e3)
+        ))),
         (None, _) => Err(Verdict::NotAssessed("needs the source's subtense".into())),
         _ => Ok(()),
     }
@@ -386,7 +391,9 @@ fn check_luminance_below(limit: f64, e: &Exposure<'_>) -> Result<(), Verdict> {
     match lum {
         None => Err(Verdict::NotAssessed("needs the seen luminance".into())),
         Some(l) if l >= limit => Err(Verdict::NotApplicable(format!(
-            "seen luminance {l:.3} cd/m² is not below {limit} cd/m² (a visible stimulus)"
+            "the seen luminance {} cd/m² is not below {} cd/m² (a visible stimulus)",
+            sig4(l),
+            sig4(limit)
         ))),
         _ => Ok(()),
     }
@@ -416,7 +423,20 @@ fn duration_and_factor(e: &Exposure<'_>) -> Result<(f64, f64), Verdict> {
 fn no_limit_reason(h: &Hazard, p: &Prepared, t: f64) -> String {
     let (a, b) = (h.limits[0].from_s, h.limits[h.limits.len() - 1].to_s);
     if segment_at(h, t).is_none() {
-        format!("this set gives no limit for t = {t} s (it covers {a}–{b} s)")
+        if b.is_finite() {
+            format!(
+                "this set gives no limit for an exposure of {} (it covers {} to {})",
+                duration_text(t),
+                duration_text(a),
+                duration_text(b)
+            )
+        } else {
+            format!(
+                "this set gives no limit for an exposure of {} (it covers {} and longer)",
+                duration_text(t),
+                duration_text(a)
+            )
+        }
     } else if h.c_alpha.is_some() && p.c_alpha(h).is_none() {
         "needs the source's subtense for C_α".to_string()
     } else {

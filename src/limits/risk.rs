@@ -426,11 +426,11 @@ pub fn explain_exposure_check(c: &mut Classification, exposure: &[HazardResult],
             })
             .collect();
         c.notes.push(format!(
-            "{}: the exposure check used t = {} s{} as the source is placed: {verdict}; the risk-group check at \
+            "{}: the exposure check used t = {}{} as the source is placed: {verdict}; the risk-group check at \
              {} mm used {}, so {}. The exposure verdict says whether this exposure is within the limit; the \
              group classifies the lamp at the standard's time bases",
             g.name,
-            short(duration_s),
+            crate::base::units::duration_text(duration_s),
             field_text(r.field_of_view_rad, r.field_of_view_provenance.as_ref(), any),
             short(distance_mm),
             steps.join("; "),

@@ -317,8 +317,10 @@ fn saturation_text(pigment: &Pigment, schedule: &Schedule) -> Option<String> {
             ("is below", "")
         };
         format!(
-            "the brightest step ({max_level:.4e} {u}) {verb} the rod saturation level ({:.4e} {u}, {}){tail}",
-            sat.value, sat.status
+            "the brightest step ({} {u}) {verb} the rod saturation level ({} {u}, {}){tail}",
+            crate::base::units::sig4(max_level),
+            crate::base::units::sig4(sat.value),
+            sat.status
         )
     })
 }

@@ -155,8 +155,13 @@ pub struct LedBand {
 /// # Errors
 /// [`crate::ErrorKind::InvalidInput`] for a width not above 0 nm or a bad grid.
 pub fn ohno_led(peak: Length, width: Length, grid: Grid) -> Result<Spectrum> {
-    multi_band_led(&[LedBand { peak, width, ratio: 1.0 }], grid)
-        .map(|s| s.with_label(format!("LED {} nm / {} nm", as_nm_f64(peak), as_nm_f64(width))))
+    multi_band_led(&[LedBand { peak, width, ratio: 1.0 }], grid).map(|s| {
+        s.with_label(format!(
+            "LED {} nm / {} nm",
+            crate::base::units::tidy(as_nm_f64(peak)),
+            crate::base::units::tidy(as_nm_f64(width))
+        ))
+    })
 }
 
 /// A sum of Ohno (2005) bands, each scaled by its ratio: a phosphor-converted white LED is a

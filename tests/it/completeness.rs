@@ -1,7 +1,6 @@
 //! Every answer in every format: for each demo, each headline figure of the JSON (trolands,
 //! R*/rod/s, α-opic values, ratios and their lower bounds, E_thr, threshold distance, risk
-//! groups, recovery and threshold times, the outcome) appears in the terminal, CSV, Markdown
-//! and HTML reports. Text formats round to 4 significant digits (the rule written again here);
+//! groups, the outcome) appears in the terminal, CSV, Markdown and HTML reports. Text formats round to 4 significant digits (the rule written again here);
 //! the CSV keeps full precision.
 
 use assert_cmd::Command;
@@ -18,18 +17,32 @@ fn run(demo: &str, format: &str) -> String {
     String::from_utf8(out.stdout).unwrap()
 }
 
-/// 4 significant digits, scientific notation outside 10⁻³–10⁶ (the reports' rule).
+/// 4 significant digits: plain from 0.001 up to a million (thousands grouped with a space),
+/// scientific notation outside (the reports' rule, written again here).
 fn num4(v: f64) -> String {
     if v == 0.0 {
         return "0".into();
     }
-    let a = v.abs();
-    if (1e-3..1e6).contains(&a) {
-        let digits = (3 - a.log10().floor() as i32).max(0) as usize;
-        format!("{v:.digits$}")
-    } else {
-        format!("{v:.3e}")
+    let sci = format!("{v:.3e}");
+    let exp: i32 = sci.split('e').nth(1).and_then(|e| e.parse().ok()).unwrap_or(0);
+    if !(-3..6).contains(&exp) {
+        return sci;
     }
+    if exp >= 4 {
+        let step = 10f64.powi(exp - 3);
+        let digits = format!("{:.0}", (v / step).round() * step);
+        let (sign, d) = digits.strip_prefix('-').map_or(("", digits.as_str()), |d| ("-", d));
+        let mut out = String::new();
+        for (k, c) in d.chars().enumerate() {
+            if k > 0 && (d.len() - k) % 3 == 0 {
+                out.push(' ');
+            }
+            out.push(c);
+        }
+        return format!("{sign}{out}");
+    }
+    let decimals = (3 - exp).max(0) as usize;
+    format!("{v:.decimals$}")
 }
 
 /// A figure: what it is, its value, and how a text report writes it.
@@ -86,7 +99,7 @@ fn csv_has(csv: &str, v: f64) -> bool {
 }
 
 #[test]
-fn every_headline_figure_is_in_the_terminal_csv_and_markdown() {
+fn every_headline_figure_is_in_the_terminal_csv_markdown_and_html() {
     for demo in ["vivarium", "dark-adaptation", "stimulus-review"] {
         let json: Value = serde_json::from_str(&run(demo, "json")).unwrap();
         let (figs, words) = figures(&json);
@@ -94,14 +107,18 @@ fn every_headline_figure_is_in_the_terminal_csv_and_markdown() {
         let terminal = run(demo, "table");
         let markdown = run(demo, "markdown");
         let csv = run(demo, "csv");
+        let html = run(demo, "html");
         for fig in &figs {
             let text = num4(fig.value);
+            assert!(html.contains(&text), "{demo}: {} {text} missing from HTML", fig.what);
             assert!(terminal.contains(&text), "{demo}: {} {text} missing from the terminal", fig.what);
             assert!(markdown.contains(&text), "{demo}: {} {text} missing from Markdown", fig.what);
             assert!(csv_has(&csv, fig.value), "{demo}: {} {} missing from the CSV", fig.what, fig.value);
         }
         for w in &words {
-            for (name, out) in [("terminal", &terminal), ("markdown", &markdown), ("csv", &csv)] {
+            for (name, out) in
+                [("terminal", &terminal), ("markdown", &markdown), ("csv", &csv), ("html", &html)]
+            {
                 assert!(out.to_lowercase().contains(&w.to_lowercase()), "{demo}: {w} missing from {name}");
             }
         }

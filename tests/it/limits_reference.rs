@@ -269,7 +269,7 @@ fn icnirp_2013_leaves_out_what_is_not_confirmed() {
     let e = l.scaled_as(1e-3, Measure::Irradiance).unwrap();
     let r = eval("icnirp-2013-visible-ir", "retinal-thermal", &e, Some(&l), Some(0.05), 0.1);
     assert!(
-        matches!(r.verdict, Verdict::NotAssessed(ref s) if s.contains("no limit for t = 0.1 s")),
+        matches!(r.verdict, Verdict::NotAssessed(ref s) if s.contains("no limit for an exposure of 0.1 s")),
         "{:?}",
         r.verdict
     );
@@ -408,7 +408,7 @@ fn malformed_field_of_view_c_alpha_and_risk_group_provenance_is_rejected() {
             replace_after(
                 good,
                 fov,
-                "source = \"IEC 62471 cl. 4.3.3 limiting cone angle (recalled, reference notes §3.2); 1.7 mrad at 0.25 s: \
+                "source = \"IEC 62471 cl. 4.3.3 limiting cone angle (recalled); 1.7 mrad at 0.25 s: \
                  radiometer operating manual V1.3 p. 29 (secondary, attributing IEC 62471)\"",
                 "source = \" \"",
             ),
@@ -653,7 +653,7 @@ fn stimulus_demo_explains_its_8_h_check_against_its_risk_group() {
     assert!(blue.field_of_view_provenance.as_ref().is_some_and(|p| p.is_from_memory()));
     let Some(Ok(c)) = &iec.classification else { panic!("no classification") };
     assert_eq!(c.overall, Some(RiskGroup::Rg1));
-    let start = "retinal blue light (photochemical), radiance: the exposure check used t = 28800 s";
+    let start = "retinal blue light (photochemical), radiance: the exposure check used t = 8 h";
     let note = c.notes.iter().find(|n| n.starts_with(start)).unwrap_or_else(|| panic!("{:#?}", c.notes));
     for part in [
         "with a 100 mrad field of view (from memory)",

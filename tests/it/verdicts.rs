@@ -78,6 +78,7 @@ fn a_380_to_780_nm_measurement_exceeds_on_its_measured_band_alone() {
     Command::cargo_bin("retidose")
         .unwrap()
         .args(["assess", p.to_str().unwrap()])
+        .env("COLUMNS", "250")
         .assert()
         .code(1)
         .stdout(predicate::str::contains("EXCEEDS on the measured band alone"));

@@ -199,7 +199,7 @@ fn bleach(l: &mut Long<'_>, a: &Assessment) -> io::Result<()> {
     }
     for t in &b.thresholds {
         if let Some(s) = t.to_within_0_1_log_min {
-            l.num("bleach", &t.basis, "time to rod threshold within 0.1 log unit", s, "s")?;
+            l.num("bleach", &t.basis, "time to rod threshold within 0.1 log unit", s * 60.0, "s")?;
         }
     }
     Ok(())

@@ -158,7 +158,7 @@ fn pigment(o: &mut String, b: &BleachReport) {
             let _ = writeln!(
                 o,
                 "Rod threshold estimate: within 0.1 log unit of its dark-adapted level after {} ({}).\n",
-                super::room::duration(s),
+                super::duration(s * 60.0),
                 user(&t.basis)
             );
         }

@@ -34,18 +34,53 @@ pub const CAUTION: &str = "retidose informs; it does not replace the standards, 
 assessment, veterinary advice or local regulations. Check results with your optical safety officer, \
 veterinarian or review board before relying on them.";
 
-/// Formats a number with 4 significant digits, in scientific notation when very large or small.
+/// Formats a number as the reports write it everywhere: 4 significant digits; thousands
+/// grouped with a space from 10 000 (`16 950`, `720 100`); scientific notation below 0.001 and
+/// from a million (`3.281e-6`, `4.156e6`); "0" for zero.
 pub fn num(v: f64) -> String {
     if v == 0.0 {
         return "0".to_string();
     }
-    let a = v.abs();
-    if (1e-3..1e6).contains(&a) {
-        let digits = (3 - a.log10().floor() as i32).max(0) as usize;
-        format!("{v:.digits$}")
-    } else {
-        format!("{v:.3e}")
+    if !v.is_finite() {
+        return if v.is_nan() {
+            "—".into()
+        } else if v > 0.0 {
+            "∞".into()
+        } else {
+            "−∞".into()
+        };
     }
+    // The exponent after rounding to 4 significant digits (0.99996 is 1.000, not 0.9999 or 1.0000).
+    let sci = format!("{v:.3e}");
+    let exp: i32 = sci.split('e').nth(1).and_then(|e| e.parse().ok()).unwrap_or(0);
+    if !(-3..6).contains(&exp) {
+        return sci;
+    }
+    if exp >= 4 {
+        let step = 10f64.powi(exp - 3);
+        return group_thousands(&format!("{:.0}", (v / step).round() * step));
+    }
+    let decimals = (3 - exp).max(0) as usize;
+    format!("{v:.decimals$}")
+}
+
+/// An integer's digits grouped by three with a space (`-16950` → `-16 950`).
+fn group_thousands(int: &str) -> String {
+    let (sign, digits) = int.split_at(usize::from(int.starts_with('-')));
+    let mut out = String::from(sign);
+    for (i, c) in digits.chars().enumerate() {
+        if i > 0 && (digits.len() - i).is_multiple_of(3) {
+            out.push(' ');
+        }
+        out.push(c);
+    }
+    out
+}
+
+/// A duration as a person writes it: "45 s", "0.25 s", "2 min 13 s", "12 min", "5 h 5 min",
+/// "6 d 12 h"; "—" when not finite.
+pub fn duration(s: f64) -> String {
+    retidose::base::units::duration_text(s)
 }
 
 /// The name of a spectrum's basis.
@@ -96,17 +131,23 @@ fn fov_and_c_alpha(h: &HazardResult) -> String {
     if parts.is_empty() { "—".into() } else { parts.join("; ") }
 }
 
-/// The maximum exposure time, short (the `assess` report); at most this when the band is only
-/// partly covered.
-fn t_max(h: &HazardResult) -> String {
-    let at_most = if h.partial { "≤ " } else { "" };
-    match &h.t_max {
+/// The maximum exposure time in words, the same in every report: "5 h 5 min" (with "at most"
+/// when the band is only partly covered), "not reached within 8 h 20 min", "never reached",
+/// "exceeded before 0.25 s"; "—" when there is none.
+pub fn t_max_words(t: &Option<TMax>, partial: bool) -> String {
+    match t {
         None => "—".into(),
-        Some(TMax::Seconds(s)) => format!("{at_most}{} s", num(*s)),
-        Some(TMax::NotReached(u)) if u.is_infinite() => "no limit".into(),
-        Some(TMax::NotReached(u)) => format!("> {} s", num(*u)),
-        Some(TMax::BelowRange(s)) => format!("< {} s", num(*s)),
+        Some(TMax::Seconds(s)) if partial => format!("at most {}", duration(*s)),
+        Some(TMax::Seconds(s)) => duration(*s),
+        Some(TMax::NotReached(u)) if u.is_infinite() => "never reached".into(),
+        Some(TMax::NotReached(u)) => format!("not reached within {}", duration(*u)),
+        Some(TMax::BelowRange(s)) => format!("exceeded before {}", duration(*s)),
     }
+}
+
+/// The maximum exposure time of a hazard (see [`t_max_words`]).
+fn t_max(h: &HazardResult) -> String {
+    t_max_words(&h.t_max, h.partial)
 }
 
 /// The columns of [`step_rows`].
@@ -186,9 +227,9 @@ fn recovery_text(b: &retidose::pigment::bleach::BleachReport) -> String {
     };
     match b.recoveries.last() {
         Some(r) => format!(
-            "after lights-off (end of '{}', {:.3} % bleached) 90 % regenerated {}, 99 % {}",
+            "after lights-off (end of '{}', {} % bleached) 90 % regenerated {}, 99 % {}",
             r.after_step,
-            100.0 * r.bleached_at_start,
+            num(100.0 * r.bleached_at_start),
             t(r.to_90_s),
             t(r.to_99_s)
         ),
@@ -196,17 +237,9 @@ fn recovery_text(b: &retidose::pigment::bleach::BleachReport) -> String {
     }
 }
 
-/// A duration in h, min or s ("—" when not finite).
+/// A duration in words (see [`duration`]).
 fn dur(s: f64) -> String {
-    if !s.is_finite() {
-        "—".into()
-    } else if s >= 3600.0 {
-        format!("{} h", num(s / 3600.0))
-    } else if s >= 60.0 {
-        format!("{} min", num(s / 60.0))
-    } else {
-        format!("{} s", num(s))
-    }
+    duration(s)
 }
 
 /// The report's opening in words, the same in every format: the outcome and what it means for
@@ -269,5 +302,64 @@ fn outcome_sentence(a: &Assessment) -> String {
     } else {
         "Outcome: no limit exceeded and no guidance flag raised among the items assessed (exit status 0)."
             .to_string()
+    }
+}
+
+#[cfg(test)]
+mod tests {
+    use super::*;
+
+    #[test]
+    fn numbers_have_4_significant_digits_grouped_or_scientific() {
+        let cases = [
+            (0.0, "0"),
+            (0.001515, "0.001515"),
+            (0.0009999, "9.999e-4"),
+            (0.99996, "1.000"),
+            (12.5, "12.50"),
+            (6642.2, "6642"),
+            (9999.6, "10 000"),
+            (16948.0, "16 950"),
+            (101875.079, "101 900"),
+            (-720113.0, "-720 100"),
+            (999_950.0, "1.000e6"),
+            (4155814.372, "4.156e6"),
+            (1.642e-96, "1.642e-96"),
+        ];
+        for (v, text) in cases {
+            assert_eq!(num(v), text, "{v}");
+        }
+    }
+
+    #[test]
+    fn durations_read_as_a_person_writes_them() {
+        let cases = [
+            (0.25, "0.25 s"),
+            (0.0022, "0.0022 s"),
+            (1.5, "1.5 s"),
+            (45.0, "45 s"),
+            (59.6, "1 min"),
+            (132.5, "2 min 13 s"),
+            (720.0, "12 min"),
+            (3599.0, "1 h"),
+            (18299.0, "5 h 5 min"),
+            (28800.0, "8 h"),
+            (30000.0, "8 h 20 min"),
+            (156.0 * 3600.0, "6 d 12 h"),
+            (f64::INFINITY, "—"),
+        ];
+        for (s, text) in cases {
+            assert_eq!(duration(s), text, "{s}");
+        }
+    }
+
+    #[test]
+    fn t_max_has_one_wording() {
+        assert_eq!(t_max_words(&Some(TMax::Seconds(18299.0)), false), "5 h 5 min");
+        assert_eq!(t_max_words(&Some(TMax::Seconds(600.0)), true), "at most 10 min");
+        assert_eq!(t_max_words(&Some(TMax::NotReached(30000.0)), false), "not reached within 8 h 20 min");
+        assert_eq!(t_max_words(&Some(TMax::NotReached(f64::INFINITY)), false), "never reached");
+        assert_eq!(t_max_words(&Some(TMax::BelowRange(0.25)), false), "exceeded before 0.25 s");
+        assert_eq!(t_max_words(&None, false), "—");
     }
 }

@@ -14,19 +14,13 @@ use uom::si::time::second;
 
 use super::num;
 
-/// A duration as a person writes it: "45 s", "12 min", "1 h 30 min", "never".
+/// A duration as a person writes it ("45 s", "12 min", "1 h 30 min"), or "never" when the
+/// dark-phase light holds more bleach than the target.
 pub fn duration(s: f64) -> String {
-    if !s.is_finite() {
-        return "never (the dark-phase light holds more bleach)".to_string();
-    }
-    if s < 60.0 {
-        return format!("{} s", num(s));
-    }
-    let m = (s / 60.0).round() as u64;
-    match (m / 60, m % 60) {
-        (0, m) => format!("{m} min"),
-        (h, 0) => format!("{h} h"),
-        (h, m) => format!("{h} h {m} min"),
+    if s.is_finite() {
+        super::duration(s)
+    } else {
+        "never (the dark-phase light holds more bleach)".to_string()
     }
 }
 
