@@ -106,3 +106,20 @@ fn terminal_report_carries_no_escape_control_or_bidi_characters() {
     assert!(t.contains("retidose assess — <script>alert(1)</script> red abc"), "{t}");
     assert!(t.contains("<img src=x onerror=alert(1)>"), "{t}");
 }
+
+#[test]
+fn csv_cells_from_user_text_cannot_run_as_spreadsheet_formulas() {
+    let text = report("csv");
+    let mut rdr = csv::ReaderBuilder::new().has_headers(true).from_reader(text.as_bytes());
+    let mut cells = 0;
+    for rec in rdr.records() {
+        for c in rec.unwrap().iter() {
+            cells += 1;
+            let risky = c.starts_with(['=', '+', '-', '@', '\t', '\r']);
+            assert!(!risky || c.parse::<f64>().is_ok(), "a cell that a spreadsheet would run: {c:?}");
+        }
+    }
+    assert!(cells > 50);
+    // The hostile step name is there, neutralised with a leading apostrophe.
+    assert!(text.contains("'=HYPERLINK"), "{text}");
+}

@@ -64,15 +64,41 @@ fn position_header(events: usize) -> String {
     h
 }
 
-/// A number for a data file, appended to `buf`: the shortest text that reads back to the same
-/// value (ryu), empty for a missing value (NaN), `inf` for a time never reached.
-fn put(buf: &mut Vec<u8>, num: &mut ryu::Buffer, v: f64) {
-    buf.push(b',');
-    if v.is_nan() {
-    } else if v.is_infinite() {
-        buf.extend_from_slice(b"inf");
-    } else {
-        buf.extend_from_slice(num.format_finite(v).as_bytes());
+/// Formats the numbers of a chunk of rows: ryu's shortest round-trip text, with the last text
+/// of each column kept, so a value repeated down a column (a uniform leak or event) is copied,
+/// not formatted again.
+struct Numbers {
+    ryu: ryu::Buffer,
+    last: Vec<(u64, [u8; 32], u8)>,
+}
+
+impl Numbers {
+    fn new() -> Numbers {
+        Numbers { ryu: ryu::Buffer::new(), last: Vec::new() }
+    }
+
+    /// Appends `,` and the number in column `col` to `buf`: empty for a missing value (NaN),
+    /// `inf` for a time never reached.
+    fn put(&mut self, buf: &mut Vec<u8>, col: usize, v: f64) {
+        buf.push(b',');
+        if v.is_nan() {
+            return;
+        }
+        if v.is_infinite() {
+            buf.extend_from_slice(b"inf");
+            return;
+        }
+        if self.last.len() <= col {
+            self.last.resize(col + 1, (f64::NAN.to_bits(), [0; 32], 0));
+        }
+        let (bits, text, len) = &mut self.last[col];
+        if *bits != v.to_bits() {
+            let t = self.ryu.format_finite(v).as_bytes();
+            *bits = v.to_bits();
+            *len = t.len() as u8;
+            text[..t.len()].copy_from_slice(t);
+        }
+        buf.extend_from_slice(&text[..*len as usize]);
     }
 }
 
@@ -85,7 +111,7 @@ struct RowContext {
 }
 
 /// Appends one position's row to `buf`.
-fn row(buf: &mut Vec<u8>, num: &mut ryu::Buffer, cx: &RowContext, p: &PositionRow) {
+fn row(buf: &mut Vec<u8>, num: &mut Numbers, cx: &RowContext, p: &PositionRow) {
     buf.extend_from_slice(cx.scenario.as_bytes());
     buf.push(b',');
     buf.extend_from_slice(cx.racks[p.rack].as_bytes());
@@ -96,24 +122,29 @@ fn row(buf: &mut Vec<u8>, num: &mut ryu::Buffer, cx: &RowContext, p: &PositionRo
     buf.push(b',');
     buf.extend_from_slice(basis_word(p.basis).as_bytes());
     let ratio = p.reading_lux / p.model_lux;
+    let mut col = 0;
+    let mut put = |buf: &mut Vec<u8>, v: f64| {
+        num.put(buf, col, v);
+        col += 1;
+    };
     for v in
         [p.model_lux, p.calibrated_lux, p.reading_lux, ratio, p.room_lux, p.cage_lux, p.rod_rate, p.opic[3]]
     {
-        put(buf, num, v);
+        put(buf, v);
     }
     for v in [p.light_bleach, p.recovery_90_s, p.leak_lux, p.leak_rod_rate, p.leak_melanopsin, p.leak_bleach]
     {
-        put(buf, num, v);
+        put(buf, v);
     }
     for e in &p.events[..cx.events] {
         for v in [e.room_lux, e.rod_rate, e.melanopsin, e.peak_bleach, e.recovery_s] {
-            put(buf, num, v);
+            put(buf, v);
         }
     }
     for _ in cx.events..cx.columns {
         buf.extend_from_slice(b",,,,,");
     }
-    put(buf, num, p.melanopic_dose);
+    put(buf, p.melanopic_dose);
     buf.push(b',');
     for (k, f) in p.flags.names().enumerate() {
         if k > 0 {
@@ -127,13 +158,13 @@ fn row(buf: &mut Vec<u8>, num: &mut ryu::Buffer, cx: &RowContext, p: &PositionRo
 /// Rows formatted per chunk on every core, then written in order.
 const FORMAT_CHUNK: usize = 2048;
 
-/// One row per cage position of every room, streamed: each block of rows is formatted on every
-/// core into one buffer per chunk and written in position order.
+/// One row per cage position of every room, streamed: each block of rows is computed and
+/// formatted on every core, in a thread of its own, while this thread writes the block before
+/// it, in position order. Two blocks are in flight at most, so memory does not grow with the
+/// number of positions.
 fn position_rows(all: &[Assessment], w: &mut dyn std::io::Write) -> std::io::Result<()> {
-    use rayon::prelude::*;
     let columns = all.iter().filter_map(|a| a.room.as_ref()).map(|r| r.events.len()).max().unwrap_or(0);
     w.write_all(position_header(columns).as_bytes())?;
-    let mut bufs: Vec<Vec<u8>> = Vec::new();
     for a in all {
         let Some(room) = &a.room else { continue };
         let cx = RowContext {
@@ -142,19 +173,42 @@ fn position_rows(all: &[Assessment], w: &mut dyn std::io::Write) -> std::io::Res
             events: room.events.len(),
             columns,
         };
-        retidose::housing::summary::stream(&room.rows.0, |rows| {
-            bufs.resize_with(rows.len().div_ceil(FORMAT_CHUNK), Vec::new);
-            bufs.par_iter_mut().zip(rows.par_chunks(FORMAT_CHUNK)).for_each(|(buf, chunk)| {
-                buf.clear();
-                let mut num = ryu::Buffer::new();
-                for p in chunk {
-                    row(buf, &mut num, &cx, p);
-                }
-            });
-            bufs.iter().try_for_each(|b| w.write_all(b))
-        })?;
+        write_room(&room.rows.0, &cx, w)?;
     }
     Ok(())
+}
+
+/// Computes and formats `plan`'s rows in a helper thread; writes them here, in order.
+fn write_room(
+    plan: &retidose::housing::pass::Plan,
+    cx: &RowContext,
+    w: &mut dyn std::io::Write,
+) -> std::io::Result<()> {
+    use rayon::prelude::*;
+    let (full, filled) = std::sync::mpsc::sync_channel::<Vec<Vec<u8>>>(1);
+    let (empty, recycled) = std::sync::mpsc::channel::<Vec<Vec<u8>>>();
+    std::thread::scope(|scope| {
+        scope.spawn(move || {
+            retidose::housing::summary::stream(plan, |rows| {
+                let mut bufs = recycled.try_recv().unwrap_or_default();
+                bufs.resize_with(rows.len().div_ceil(FORMAT_CHUNK), Vec::new);
+                bufs.par_iter_mut().zip(rows.par_chunks(FORMAT_CHUNK)).for_each(|(buf, chunk)| {
+                    buf.clear();
+                    let mut num = Numbers::new();
+                    for p in chunk {
+                        row(buf, &mut num, cx, p);
+                    }
+                });
+                // The writer stopped (an error): stop computing.
+                full.send(bufs).map_err(|_| ())
+            })
+        });
+        for bufs in filled {
+            bufs.iter().try_for_each(|b| w.write_all(b))?;
+            let _ = empty.send(bufs);
+        }
+        Ok(())
+    })
 }
 
 fn basis_word(b: retidose::housing::pass::Basis) -> &'static str {

@@ -293,26 +293,25 @@ pub const MAP_COLUMNS: u32 = 12;
 /// See [`MAP_COLUMNS`].
 pub const MAP_SHELVES: u32 = 40;
 
-/// The cells of every rack small enough to map (`None` for the others), filled in one pass
-/// over the streamed rows; index `(shelf − 1) × columns + column − 1`.
+/// The cells of every rack small enough to map (`None` for the others), each from one pass
+/// over that rack's own positions (a map holds at most [`MAP_COLUMNS`] × [`MAP_SHELVES`]
+/// cells); index `(shelf − 1) × columns + column − 1`.
 pub fn rack_cells(room: &RoomResult) -> Vec<Option<Vec<Option<Cell>>>> {
-    let mut maps: Vec<Option<Vec<Option<Cell>>>> = room
-        .racks
+    let plan = &room.rows.0;
+    room.racks
         .iter()
-        .map(|r| {
-            (r.columns <= MAP_COLUMNS && r.shelves <= MAP_SHELVES)
-                .then(|| vec![None; (r.shelves * r.columns) as usize])
+        .zip(&plan.racks)
+        .map(|(r, rp)| {
+            (r.columns <= MAP_COLUMNS && r.shelves <= MAP_SHELVES).then(|| {
+                let mut cells = vec![None; (r.shelves * r.columns) as usize];
+                let mut rows = Vec::with_capacity(rp.len);
+                plan.rows_into(rp.offset..rp.offset + rp.len, &mut rows);
+                for p in &rows {
+                    cells[((p.shelf - 1) * r.columns + p.column - 1) as usize] =
+                        Some(Cell { lux: p.room_lux, flags: p.flags, basis: p.basis });
+                }
+                cells
+            })
         })
-        .collect();
-    let _ = retidose::housing::summary::stream(&room.rows.0, |rows| -> Result<(), ()> {
-        for p in rows {
-            if let Some(cells) = maps[p.rack].as_mut() {
-                let cols = room.racks[p.rack].columns;
-                cells[((p.shelf - 1) * cols + p.column - 1) as usize] =
-                    Some(Cell { lux: p.room_lux, flags: p.flags, basis: p.basis });
-            }
-        }
-        Ok(())
-    });
-    maps
+        .collect()
 }
