@@ -82,43 +82,24 @@ fn section(o: &mut String, a: &Assessment) {
 /// What reaches the eye from each source (corneal illuminance, trolands, rod R*/rod/s), then
 /// the α-opic quantities.
 fn eye(o: &mut String, a: &Assessment) {
-    use retidose::base::quantity::as_td_f64;
     let Some(r) = &a.retina else { return };
     let _ = write!(
         o,
         "<h2>What reaches the eye ({} eye)</h2><table><tr><th>source</th><th>corneal illuminance</th><th>photopic td</th><th>scotopic td</th><th>rod R*/rod/s</th></tr>",
         r.species.name()
     );
-    for s in &r.sources {
-        let ret = s.retinal.as_ref();
-        let rod = ret
-            .and_then(|x| x.catch.iter().find(|c| c.receptor == "rod"))
-            .map_or("—".into(), |c| num(c.rate.si()));
+    let (eye, opic) = super::eye_rows(r);
+    for [label, lx, phot, scot, rod] in eye {
         let _ = write!(
             o,
-            "<tr><td>{}</td><td>{}</td><td>{}</td><td>{}</td><td>{rod}</td></tr>",
-            esc(&s.label),
-            s.illuminance.value.map_or("—".into(), |v| format!("{} lx", num(v.si_value()))),
-            ret.map_or("—".into(), |x| num(as_td_f64(x.trolands.photopic))),
-            ret.map_or("—".into(), |x| num(as_td_f64(x.trolands.scotopic))),
+            "<tr><td>{}</td><td>{lx}</td><td>{phot}</td><td>{scot}</td><td>{rod}</td></tr>",
+            esc(&label)
         );
     }
     o.push_str("</table><table><tr><th>source</th><th>α-opic quantity</th><th>value</th></tr>");
-    for s in &r.sources {
-        for x in &s.human_alpha_opic {
-            let v = x.edi.map_or("—".into(), |e| format!("{} lx EDI", num(e.si_value())));
-            let _ = write!(o, "<tr><td>{}</td><td>{}</td><td>{v}</td></tr>", esc(&s.label), esc(&x.name));
-        }
-        for x in &s.species_opic {
-            let _ = write!(
-                o,
-                "<tr><td>{}</td><td>{}</td><td>{} photons/cm²/s ({} lx equivalent daylight)</td></tr>",
-                esc(&s.label),
-                esc(&x.channel),
-                num(x.photon_irradiance.si() * 1e-4),
-                num(x.equivalent_daylight.get::<uom::si::illuminance::lux>())
-            );
-        }
+    for [label, channel, value] in opic {
+        let _ =
+            write!(o, "<tr><td>{}</td><td>{}</td><td>{}</td></tr>", esc(&label), esc(&channel), esc(&value));
     }
     o.push_str("</table>");
 }

@@ -73,43 +73,19 @@ fn heading(o: &mut String, a: &Assessment) {
 /// What reaches the eye from each source: corneal illuminance, trolands, the rod rate, then the
 /// α-opic quantities (CIE S 026 EDIs for people, photon irradiances for rodents).
 fn eye(o: &mut String, a: &Assessment) {
-    use retidose::base::quantity::{SiValue, as_td_f64};
     let Some(r) = &a.retina else { return };
     let _ = writeln!(
         o,
         "## What reaches the eye ({} eye)\n\n| source | corneal illuminance | photopic td | scotopic td | rod R*/rod/s |\n|---|---:|---:|---:|---:|",
         r.species.name()
     );
-    for s in &r.sources {
-        let ret = s.retinal.as_ref();
-        let rod = ret
-            .and_then(|x| x.catch.iter().find(|c| c.receptor == "rod"))
-            .map_or("—".into(), |c| num(c.rate.si()));
-        let _ = writeln!(
-            o,
-            "| {} | {} | {} | {} | {rod} |",
-            user(&s.label),
-            s.illuminance.value.map_or("—".into(), |v| format!("{} lx", num(v.si_value()))),
-            ret.map_or("—".into(), |x| num(as_td_f64(x.trolands.photopic))),
-            ret.map_or("—".into(), |x| num(as_td_f64(x.trolands.scotopic))),
-        );
+    let (eye, opic) = super::eye_rows(r);
+    for [label, lx, phot, scot, rod] in eye {
+        let _ = writeln!(o, "| {} | {lx} | {phot} | {scot} | {rod} |", user(&label));
     }
     let _ = writeln!(o, "\n| source | α-opic quantity | value |\n|---|---|---:|");
-    for s in &r.sources {
-        for x in &s.human_alpha_opic {
-            let v = x.edi.map_or("—".into(), |e| format!("{} lx EDI", num(e.si_value())));
-            let _ = writeln!(o, "| {} | {} | {v} |", user(&s.label), user(&x.name));
-        }
-        for x in &s.species_opic {
-            let _ = writeln!(
-                o,
-                "| {} | {} | {} photons/cm²/s ({} lx equivalent daylight) |",
-                user(&s.label),
-                user(&x.channel),
-                num(x.photon_irradiance.si() * 1e-4),
-                num(x.equivalent_daylight.get::<uom::si::illuminance::lux>())
-            );
-        }
+    for [label, channel, value] in opic {
+        let _ = writeln!(o, "| {} | {} | {value} |", user(&label), user(&channel));
     }
     let _ = writeln!(o);
 }

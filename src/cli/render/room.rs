@@ -193,11 +193,11 @@ fn evidence_sentences(room: &RoomResult, r: &RackResult, evidence: &[Evidence]) 
 fn lever_sentence(room: &RoomResult, l: &Lever) -> String {
     let n = l.in_range_after + l.stay_below + l.stay_above;
     let change = if (l.factor - 1.0).abs() < 1e-9 {
-        "Leaving the luminaires as they are".to_string()
+        "leaving the luminaires as they are".to_string()
     } else if l.factor < 1.0 {
-        format!("Dimming every luminaire to {} % of its output", num(100.0 * l.factor))
+        format!("dimming every luminaire to {} % of its output", num(100.0 * l.factor))
     } else {
-        format!("Raising every luminaire to {} % of its output", num(100.0 * l.factor))
+        format!("raising every luminaire to {} % of its output", num(100.0 * l.factor))
     };
     let mut t = format!(
         "Lever: {change} brings {} of {n} positions into range (now {}).",
