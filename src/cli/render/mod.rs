@@ -305,6 +305,42 @@ fn outcome_sentence(a: &Assessment) -> String {
     }
 }
 
+/// The rows of the "what reaches the eye" tables, shared by Markdown and HTML: per source its
+/// label, corneal illuminance, photopic and scotopic trolands and rod R*/rod/s; then per source
+/// and α-opic channel its label, the channel and the value (CIE S 026 EDI for people; photon
+/// irradiance and equivalent daylight for rodents). Labels are user text: escape them.
+pub fn eye_rows(r: &retidose::retina::report::RetinaReport) -> (Vec<[String; 5]>, Vec<[String; 3]>) {
+    use retidose::base::quantity::{SiValue, as_td_f64};
+    let mut eye = Vec::new();
+    let mut opic = Vec::new();
+    for s in &r.sources {
+        let ret = s.retinal.as_ref();
+        let rod = ret
+            .and_then(|x| x.catch.iter().find(|c| c.receptor == "rod"))
+            .map_or("—".into(), |c| num(c.rate.si()));
+        eye.push([
+            s.label.clone(),
+            s.illuminance.value.map_or("—".into(), |v| format!("{} lx", num(v.si_value()))),
+            ret.map_or("—".into(), |x| num(as_td_f64(x.trolands.photopic))),
+            ret.map_or("—".into(), |x| num(as_td_f64(x.trolands.scotopic))),
+            rod,
+        ]);
+        for x in &s.human_alpha_opic {
+            let v = x.edi.map_or("—".into(), |e| format!("{} lx EDI", num(e.si_value())));
+            opic.push([s.label.clone(), x.name.clone(), v]);
+        }
+        for x in &s.species_opic {
+            let v = format!(
+                "{} photons/cm²/s ({} lx equivalent daylight)",
+                num(x.photon_irradiance.si() * 1e-4),
+                num(x.equivalent_daylight.get::<uom::si::illuminance::lux>())
+            );
+            opic.push([s.label.clone(), x.channel.clone(), v]);
+        }
+    }
+    (eye, opic)
+}
+
 #[cfg(test)]
 mod tests {
     use super::*;
@@ -362,40 +398,4 @@ mod tests {
         assert_eq!(t_max_words(&Some(TMax::BelowRange(0.25)), false), "exceeded before 0.25 s");
         assert_eq!(t_max_words(&None, false), "—");
     }
-}
-
-/// The rows of the "what reaches the eye" tables, shared by Markdown and HTML: per source its
-/// label, corneal illuminance, photopic and scotopic trolands and rod R*/rod/s; then per source
-/// and α-opic channel its label, the channel and the value (CIE S 026 EDI for people; photon
-/// irradiance and equivalent daylight for rodents). Labels are user text: escape them.
-pub fn eye_rows(r: &retidose::retina::report::RetinaReport) -> (Vec<[String; 5]>, Vec<[String; 3]>) {
-    use retidose::base::quantity::{SiValue, as_td_f64};
-    let mut eye = Vec::new();
-    let mut opic = Vec::new();
-    for s in &r.sources {
-        let ret = s.retinal.as_ref();
-        let rod = ret
-            .and_then(|x| x.catch.iter().find(|c| c.receptor == "rod"))
-            .map_or("—".into(), |c| num(c.rate.si()));
-        eye.push([
-            s.label.clone(),
-            s.illuminance.value.map_or("—".into(), |v| format!("{} lx", num(v.si_value()))),
-            ret.map_or("—".into(), |x| num(as_td_f64(x.trolands.photopic))),
-            ret.map_or("—".into(), |x| num(as_td_f64(x.trolands.scotopic))),
-            rod,
-        ]);
-        for x in &s.human_alpha_opic {
-            let v = x.edi.map_or("—".into(), |e| format!("{} lx EDI", num(e.si_value())));
-            opic.push([s.label.clone(), x.name.clone(), v]);
-        }
-        for x in &s.species_opic {
-            let v = format!(
-                "{} photons/cm²/s ({} lx equivalent daylight)",
-                num(x.photon_irradiance.si() * 1e-4),
-                num(x.equivalent_daylight.get::<uom::si::illuminance::lux>())
-            );
-            opic.push([s.label.clone(), x.channel.clone(), v]);
-        }
-    }
-    (eye, opic)
 }
