@@ -16,6 +16,7 @@
 //! Each command file holds that command's arguments, help text and body; a command only parses,
 //! calls the library and renders.
 
+mod adapt;
 mod args;
 mod assess;
 mod bleach;
@@ -25,6 +26,7 @@ mod render;
 mod retina;
 mod sources;
 mod spectrum;
+mod sweep;
 
 use anyhow::Result;
 use clap::{Parser, Subcommand};
@@ -76,6 +78,15 @@ enum Command {
     Limits(limits::LimitsCommand),
     /// List the built-in light sources, generators and reference tables
     Sources,
+    /// Move one source of a scenario along its axis: t_max and risk group against distance, or --solve
+    #[command(after_help = sweep::EXAMPLES)]
+    Sweep(Box<sweep::SweepArgs>),
+    /// Predicted rod threshold after a bleach, or a fit of measured thresholds
+    #[command(after_help = adapt::THRESHOLD_EXAMPLES)]
+    Threshold(Box<adapt::ThresholdArgs>),
+    /// A flash strength as R* per rod per flash, with the fraction of the saturating flash
+    #[command(after_help = adapt::FLASH_EXAMPLES)]
+    Flash(Box<adapt::FlashArgs>),
 }
 
 /// What a command produced: the text and the exit status.
@@ -95,6 +106,9 @@ pub fn run(cli: Cli) -> Result<Output> {
         Command::Bleach(args) => bleach::run(*args),
         Command::Limits(command) => return limits::run(command),
         Command::Sources => Ok(sources::run()),
+        Command::Sweep(args) => return sweep::run(*args),
+        Command::Threshold(args) => return adapt::run_threshold(*args),
+        Command::Flash(args) => return adapt::run_flash(*args),
     }?;
     Ok(Output { text, status: 0 })
 }

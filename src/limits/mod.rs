@@ -9,6 +9,7 @@
 //! averaging field of view γ(t) = c·t^e. Every value carries its status.
 
 pub mod report;
+pub mod sweep;
 
 mod evaluate;
 mod risk;

@@ -66,7 +66,10 @@ pub struct LimitsAssessment {
 /// distance turned into an intensity by
 /// the inverse-square law (I = E·d²; valid when the distance is several times the source's size).
 /// The filters of the lamp system go with it.
-fn movable_source(source: &PlacedSource, filters: &[Filter]) -> std::result::Result<MovableSource, String> {
+pub fn movable_source(
+    source: &PlacedSource,
+    filters: &[Filter],
+) -> std::result::Result<MovableSource, String> {
     let s = &source.spectrum;
     let size = match &source.geometry {
         Geometry::Intensity { size, .. } | Geometry::Flux { size, .. } => *size,

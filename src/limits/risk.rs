@@ -118,7 +118,7 @@ impl MovableSource {
     }
 
     /// What arrives at distance `d`, through the lamp system's filters.
-    fn at(&self, d: Length) -> Result<Corneal> {
+    pub fn at(&self, d: Length) -> Result<Corneal> {
         let placed = crate::cornea::PlacedSource {
             spectrum: self.spectrum.clone(),
             geometry: self.geometry_at(d)?,

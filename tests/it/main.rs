@@ -1,6 +1,7 @@
 //! The one integration-test binary: every file beside this one is a module of it, so the
 //! library and the test dependencies are linked once.
 
+mod adaptation;
 mod assess;
 mod bad_input;
 mod bleach_reference;
@@ -17,6 +18,7 @@ mod reference;
 mod retina_reference;
 mod rng;
 mod room;
+mod sweep;
 mod terminal;
 mod verdicts;
 mod write_safety;
