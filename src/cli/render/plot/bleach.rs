@@ -307,14 +307,8 @@ fn draw(root: &Area<'_>, b: &BleachReport, d: &Data) -> PlotResult<()> {
 
 #[cfg(test)]
 mod tests {
-    use super::super::test_support::{assert_well_formed, texts};
+    use super::super::test_support::{assert_well_formed, demo, texts};
     use super::*;
-
-    fn demo(name: &str) -> Assessment {
-        let s =
-            retidose::assess::parse_scenario_file(retidose::assess::demo(name).unwrap(), name, None).unwrap();
-        retidose::assess::assess(&s).unwrap()
-    }
 
     #[test]
     fn the_plotted_peak_is_the_tables_and_thresholds_are_drawn_for_people() {

@@ -294,14 +294,8 @@ fn runs(pts: &[(f64, f64)]) -> Vec<Vec<(f64, f64)>> {
 
 #[cfg(test)]
 mod tests {
-    use super::super::test_support::{assert_well_formed, texts};
+    use super::super::test_support::{assert_well_formed, demo, texts};
     use super::*;
-
-    fn demo(name: &str) -> Assessment {
-        let s =
-            retidose::assess::parse_scenario_file(retidose::assess::demo(name).unwrap(), name, None).unwrap();
-        retidose::assess::assess(&s).unwrap()
-    }
 
     #[test]
     fn the_stimulus_led_is_moved_and_agrees_with_the_table_at_200_mm() {

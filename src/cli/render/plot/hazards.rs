@@ -207,14 +207,8 @@ fn key_row(area: &Area<'_>, rows: &[Row], floor: f64) -> PlotResult<()> {
 
 #[cfg(test)]
 mod tests {
-    use super::super::test_support::{assert_well_formed, texts};
+    use super::super::test_support::{assert_well_formed, demo, texts};
     use super::*;
-
-    fn demo(name: &str) -> Assessment {
-        let s =
-            retidose::assess::parse_scenario_file(retidose::assess::demo(name).unwrap(), name, None).unwrap();
-        retidose::assess::assess(&s).unwrap()
-    }
 
     #[test]
     fn names_not_ids_a_ticked_log_axis_and_the_limit_line() {

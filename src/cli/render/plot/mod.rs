@@ -305,7 +305,15 @@ pub fn short_document(document: &str, edition: &str) -> String {
 
 #[cfg(test)]
 pub mod test_support {
-    //! Reading a figure's SVG back as XML (roxmltree, a dev-dependency of the crate).
+    //! Reading a figure's SVG back as XML (roxmltree, a dev-dependency of the crate), and the
+    //! demos' assessments the figures are drawn from.
+
+    /// The assessment of the built-in demo `name`.
+    pub fn demo(name: &str) -> retidose::assess::Assessment {
+        let s =
+            retidose::assess::parse_scenario_file(retidose::assess::demo(name).unwrap(), name, None).unwrap();
+        retidose::assess::assess(&s).unwrap()
+    }
 
     /// Panics unless `svg` parses as XML with an `<svg>` root.
     pub fn assert_well_formed(svg: &str) {
