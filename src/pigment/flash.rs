@@ -390,41 +390,8 @@ pub fn convert_flash(req: &FlashRequest) -> Result<FlashConversion> {
     let pupil = choose(eye, rule, &Adaptation { luminance: None, field: None, age: req.age, eyes: 2 })?;
     let a_p = pupil.area_mm2();
     let shape = req.spectrum.shape()?;
-    // The corneal spectral irradiance whose 1 s integral is the flash (full field, E = πL).
-    let (per_unit, target, what) = match req.strength {
-        FlashStrength::Luminous(h) => (photopic(&shape).raw / PI, h.si(), "luminance"),
-        FlashStrength::Retinal { kind: TrolandKind::Scotopic, exposure } => {
-            (scotopic(&shape).raw / PI * a_p, as_td_s_f64(exposure), "scotopic luminance")
-        }
-        FlashStrength::Retinal { kind: TrolandKind::Photopic, exposure } => {
-            (photopic(&shape).raw / PI * a_p, as_td_s_f64(exposure), "luminance")
-        }
-        FlashStrength::Photons(q) => (shape.to_photon().integral(), q.si(), "photons"),
-    };
-    if !(per_unit > 0.0 && per_unit.is_finite()) {
-        return Err(Error::input(format!(
-            "the flash's {} has no {what} to scale to (it lies outside the weighting's band)",
-            req.spectrum.describe()
-        )));
-    }
-    let corneal = shape.scaled_as(target / per_unit, Measure::Irradiance)?;
-    let scenario = RetinaScenario {
-        eye: eye.clone(),
-        sources: vec![PlacedSource {
-            spectrum: corneal.clone(),
-            geometry: Geometry::AtEye { field: Some(Field::FullField) },
-            size: None,
-            distance: None,
-            assumption: None,
-        }],
-        filters: Vec::new(),
-        pupil: PupilRule::Fixed(pupil.diameter),
-        age: req.age,
-        eyes: 2,
-        field: None,
-        adapting_luminance: None,
-        albino_iris: req.albino_iris,
-    };
+    let corneal = corneal_flash(req, &shape, a_p)?;
+    let scenario = flash_view(req, eye, &pupil, corneal.clone());
     let report = assess_retina(&scenario)?;
     let source = &report.sources[0];
     let retinal =
@@ -451,6 +418,81 @@ pub fn convert_flash(req: &FlashRequest) -> Result<FlashConversion> {
         LevelUnit::IsomerisationsPerSecond => r_star,
     };
     let saturation = saturating_flash(req.species)?;
+    let notes = flash_notes(req, eye, &pupil);
+    Ok(FlashConversion {
+        species: req.species,
+        given: req.strength.describe(),
+        spectrum: req.spectrum.describe(),
+        collecting_area_mm2: report.collecting_area_mm2,
+        luminous: photopic(&corneal).raw / PI,
+        scotopic_td_s: scot_td_s,
+        photopic_td_s: as_td_f64(retinal.trolands.photopic),
+        photons_per_um2: corneal.to_photon().integral() * 1e-12,
+        r_star_per_rod: r_star,
+        troland_routes,
+        bleached_fraction: -(-pigment.rate_of_level(dose)).exp_m1(),
+        fraction_of_saturation: r_star / saturation.flash,
+        saturation,
+        notes,
+        pupil,
+    })
+}
+
+/// The corneal spectral irradiance whose 1 s integral is the flash (full field, E = πL), for
+/// the flash's spectral `shape` and a pupil of `a_p` mm².
+fn corneal_flash(req: &FlashRequest, shape: &Spectrum, a_p: f64) -> Result<Spectrum> {
+    let (per_unit, target, what) = match req.strength {
+        FlashStrength::Luminous(h) => (photopic(shape).raw / PI, h.si(), "luminance"),
+        FlashStrength::Retinal { kind: TrolandKind::Scotopic, exposure } => {
+            (scotopic(shape).raw / PI * a_p, as_td_s_f64(exposure), "scotopic luminance")
+        }
+        FlashStrength::Retinal { kind: TrolandKind::Photopic, exposure } => {
+            (photopic(shape).raw / PI * a_p, as_td_s_f64(exposure), "luminance")
+        }
+        FlashStrength::Photons(q) => (shape.to_photon().integral(), q.si(), "photons"),
+    };
+    if !(per_unit > 0.0 && per_unit.is_finite()) {
+        return Err(Error::input(format!(
+            "the flash's {} has no {what} to scale to (it lies outside the weighting's band)",
+            req.spectrum.describe()
+        )));
+    }
+    shape.scaled_as(target / per_unit, Measure::Irradiance)
+}
+
+/// The eye of `req` seeing `corneal` as a full field through a fixed `pupil`.
+fn flash_view(
+    req: &FlashRequest,
+    eye: &crate::retina::eye::Eye,
+    pupil: &crate::retina::pupil::Pupil,
+    corneal: Spectrum,
+) -> RetinaScenario {
+    RetinaScenario {
+        eye: eye.clone(),
+        sources: vec![PlacedSource {
+            spectrum: corneal,
+            geometry: Geometry::AtEye { field: Some(Field::FullField) },
+            size: None,
+            distance: None,
+            assumption: None,
+        }],
+        filters: Vec::new(),
+        pupil: PupilRule::Fixed(pupil.diameter),
+        age: req.age,
+        eyes: 2,
+        field: None,
+        adapting_luminance: None,
+        albino_iris: req.albino_iris,
+    }
+}
+
+/// What a reader of a flash conversion must know: the full-field and dose assumptions, and the
+/// from-memory parameters the result rests on.
+fn flash_notes(
+    req: &FlashRequest,
+    eye: &crate::retina::eye::Eye,
+    pupil: &crate::retina::pupil::Pupil,
+) -> Vec<String> {
     let mut notes = vec![
         "the flash is taken as a full field (Ganzfeld): corneal irradiance = π × luminance".to_string(),
         "R* are for dark-adapted, unbleached pigment, counted as a 1 s exposure of the same time integral (the \
@@ -476,23 +518,7 @@ pub fn convert_flash(req: &FlashRequest) -> Result<FlashConversion> {
     if req.albino_iris {
         notes.push("albino iris: light through the unpigmented iris is added (an approximation)".to_string());
     }
-    Ok(FlashConversion {
-        species: req.species,
-        given: req.strength.describe(),
-        spectrum: req.spectrum.describe(),
-        collecting_area_mm2: report.collecting_area_mm2,
-        luminous: photopic(&corneal).raw / PI,
-        scotopic_td_s: scot_td_s,
-        photopic_td_s: as_td_f64(retinal.trolands.photopic),
-        photons_per_um2: corneal.to_photon().integral() * 1e-12,
-        r_star_per_rod: r_star,
-        troland_routes,
-        bleached_fraction: -(-pigment.rate_of_level(dose)).exp_m1(),
-        fraction_of_saturation: r_star / saturation.flash,
-        saturation,
-        notes,
-        pupil,
-    })
+    notes
 }
 
 #[cfg(test)]
