@@ -48,6 +48,8 @@ pub enum ThresholdFormat {
     Table,
     /// CSV: time_min,log_threshold; with --fit, one row per fitted parameter.
     Csv,
+    /// An SVG figure: the predicted curve, and the measured points with the fitted hinge.
+    Svg,
 }
 
 #[derive(Debug, Args)]
@@ -88,15 +90,19 @@ pub fn run_threshold(a: ThresholdArgs) -> Result<Output> {
         }
         None => None,
     };
-    let fit = match &a.fit {
+    let (measured, fit) = match &a.fit {
         Some(path) => {
             let text = std::fs::read_to_string(path).with_context(|| format!("cannot read {path}"))?;
             let data = parse_threshold_csv(&text, path)?;
-            Some(fit_threshold(&data).with_context(|| format!("fitting {path}"))?)
+            let fit = fit_threshold(&data).with_context(|| format!("fitting {path}"))?;
+            (data, Some(fit))
         }
-        None => None,
+        None => (Vec::new(), None),
     };
     let text = match (a.format, &curve, &fit) {
+        (ThresholdFormat::Svg, c, f) => crate::cli::render::svg::threshold(c.as_ref(), &measured, f.as_ref())
+            .map(|fig| fig.svg + "\n")
+            .ok_or_else(|| anyhow::anyhow!("nothing to draw: give --bleach or --fit"))?,
         (ThresholdFormat::Csv, _, Some(f)) => fit_csv(f),
         (ThresholdFormat::Csv, Some(c), None) => curve_csv(c),
         (ThresholdFormat::Table, c, f) => {

@@ -328,3 +328,17 @@ fn threshold_and_flash_commands_print_what_they_promise() {
     let out = retidose().args(["flash", "5 td s", "--species", "human"]).output().unwrap();
     assert!(String::from_utf8_lossy(&out.stderr).contains("say which trolands"));
 }
+
+#[test]
+fn the_threshold_figure_is_an_svg_with_its_break() {
+    let out = assert_cmd::Command::cargo_bin("retidose")
+        .unwrap()
+        .args(["threshold", "--bleach", "0.9", "--to", "40 min", "--format", "svg"])
+        .output()
+        .unwrap();
+    assert!(out.status.success());
+    let svg = String::from_utf8(out.stdout).unwrap();
+    let doc = roxmltree::Document::parse(&svg).expect("the figure parses as XML");
+    assert_eq!(doc.root_element().tag_name().name(), "svg");
+    assert!(svg.contains("rod–cone break") && svg.contains("log threshold above absolute"));
+}

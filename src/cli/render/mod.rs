@@ -20,7 +20,7 @@ pub mod html;
 pub mod json;
 pub mod markdown;
 pub mod room;
-mod svg;
+pub mod svg;
 pub mod terminal;
 
 use std::fmt::Write;

@@ -27,6 +27,16 @@ pub fn bleach(a: &Assessment) -> Option<Figure> {
     plot::bleach::figure(a)
 }
 
+/// The rod threshold against time in the dark: the predicted curve, and measured points with the
+/// fitted hinge when thresholds were fitted (`retidose threshold --format svg`).
+pub fn threshold(
+    curve: Option<&retidose::pigment::threshold::ThresholdCurve>,
+    measured: &[(retidose::base::quantity::Time, f64)],
+    fit: Option<&retidose::pigment::threshold::ThresholdFit>,
+) -> Option<Figure> {
+    plot::threshold::figure(curve, measured, fit)
+}
+
 /// Every hazard ratio on a log axis with the ratio-1 line.
 pub fn hazard_ratios(a: &Assessment) -> Option<Figure> {
     plot::hazards::figure(a)

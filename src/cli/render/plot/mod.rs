@@ -11,6 +11,7 @@ pub mod distance;
 pub mod hazards;
 pub mod heatmap;
 pub mod spectrum;
+pub mod threshold;
 
 use plotters::coord::Shift;
 use plotters::coord::combinators::LogCoord;
