@@ -30,6 +30,7 @@
 
 pub mod assess;
 pub mod base;
+pub mod compare;
 pub mod cornea;
 pub mod housing;
 pub mod limits;
@@ -37,6 +38,7 @@ pub mod pigment;
 pub mod retina;
 pub mod scenario;
 pub mod spectrum;
+pub mod uncertainty;
 pub mod weighting;
 
 pub use base::error::{Error, ErrorKind, Result};

@@ -20,6 +20,7 @@ mod adapt;
 mod args;
 mod assess;
 mod bleach;
+mod compare;
 mod limits;
 pub mod output;
 mod render;
@@ -27,6 +28,7 @@ mod retina;
 mod sources;
 mod spectrum;
 mod sweep;
+mod uncertain;
 
 use anyhow::Result;
 use clap::{Parser, Subcommand};
@@ -87,6 +89,12 @@ enum Command {
     /// A flash strength as R* per rod per flash, with the fraction of the saturating flash
     #[command(after_help = adapt::FLASH_EXAMPLES)]
     Flash(Box<adapt::FlashArgs>),
+    /// Monte Carlo uncertainty of every hazard ratio of one source (GUM Supplement 1)
+    #[command(after_help = uncertain::EXAMPLES)]
+    Uncertainty(Box<uncertain::UncertaintyArgs>),
+    /// Several scenario files (or the variants of a variants file) side by side, ranked by margin
+    #[command(after_help = compare::EXAMPLES)]
+    Compare(Box<compare::CompareArgs>),
 }
 
 /// What a command produced: the text and the exit status.
@@ -109,6 +117,8 @@ pub fn run(cli: Cli) -> Result<Output> {
         Command::Sweep(args) => return sweep::run(*args),
         Command::Threshold(args) => return adapt::run_threshold(*args),
         Command::Flash(args) => return adapt::run_flash(*args),
+        Command::Uncertainty(args) => return uncertain::run(*args),
+        Command::Compare(args) => return compare::run(*args),
     }?;
     Ok(Output { text, status: 0 })
 }

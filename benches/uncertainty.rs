@@ -1,0 +1,35 @@
+//! Speed of the Monte Carlo uncertainty (run with `cargo bench --bench uncertainty`): 10⁵ draws
+//! of every hazard of iec62471-2006 for the stimulus-review source, with all four inputs
+//! uncertain and the one-at-a-time variances (issue target: under 1 s on 2 cores).
+
+use retidose::assess::{demo, parse_scenario_file};
+use retidose::base::quantity::{Length, SiValue};
+use retidose::limits::find_set;
+use retidose::limits::report::LimitsRequest;
+use retidose::uncertainty::{InputUncertainties, assess_uncertainty};
+
+fn main() {
+    divan::main();
+}
+
+#[divan::bench(sample_count = 10)]
+fn draws_100_000_every_hazard(bencher: divan::Bencher) {
+    let s = parse_scenario_file(demo("stimulus-review").unwrap(), "demo stimulus-review", None).unwrap();
+    let r = LimitsRequest {
+        source: &s.view.sources[0],
+        filters: &s.view.filters,
+        set: find_set("iec62471-2006").unwrap(),
+        duration: s.limits.as_ref().unwrap().duration,
+        aphakic: false,
+        classify: None,
+        only: &[],
+    };
+    let u = InputUncertainties {
+        reading_relative: 0.05,
+        distance: Length::from_si(0.005),
+        size: Length::from_si(0.0005),
+        tilt_relative: 0.03,
+        pupil: Length::from_si(0.0003),
+    };
+    bencher.bench(|| assess_uncertainty(divan::black_box(&r), divan::black_box(&u), 100_000, 1).unwrap());
+}
