@@ -14,6 +14,7 @@ use retidose::scenario::file::Scenario;
 use retidose::uncertainty::{Input, InputUncertainties, MAX_DRAWS, UncertaintyReport, assess_uncertainty};
 
 use super::Output;
+use super::render::terminal::{Page, Table, width};
 use super::render::{duration, num};
 
 /// Help shown after `retidose uncertainty --help`.
@@ -200,29 +201,39 @@ fn mm(l: Length) -> String {
 /// The report as text for the terminal.
 fn table(r: &UncertaintyReport, id: &str) -> String {
     let u = &r.inputs;
-    let mut out = format!(
-        "Uncertainty of the hazard ratios: source {id}, {}, ratios for {}\n\
-         Inputs (standard uncertainties, normal): reading {}, distance {}, size {}, spectral tilt {} per 100 nm \
-         about {} nm, pupil {}\n\
-         Monte Carlo (JCGM 101): {} draws, seed {}; 95 % intervals probabilistically symmetric\n\n",
-        r.set_id,
-        duration(r.duration.si()),
-        percent(u.reading_relative),
-        mm(u.distance),
-        mm(u.size),
-        percent(u.tilt_relative),
-        num(r.pivot_nm),
-        mm(u.pupil),
-        r.draws,
-        r.seed,
+    let mut p = Page::new(width(), false);
+    p.para(
+        &format!(
+            "Uncertainty of the hazard ratios: source {id}, {}, ratios for {}",
+            r.set_id,
+            duration(r.duration.si())
+        ),
+        "",
     );
-    let mut rows = vec![
-        ["hazard", "ratio", "mean ± u", "95 % interval", "P(ratio ≥ 1)", "decision"]
-            .map(String::from)
-            .to_vec(),
-    ];
+    p.para(
+        &format!(
+            "Inputs (standard uncertainties, normal): reading {}, distance {}, size {}, spectral tilt {} per 100 nm \
+             about {} nm, pupil {}",
+            percent(u.reading_relative),
+            mm(u.distance),
+            mm(u.size),
+            percent(u.tilt_relative),
+            num(r.pivot_nm),
+            mm(u.pupil),
+        ),
+        "",
+    );
+    p.para(
+        &format!(
+            "Monte Carlo (JCGM 101): {} draws, seed {}; 95 % intervals probabilistically symmetric",
+            r.draws, r.seed
+        ),
+        "",
+    );
+    p.blank();
+    let mut t = Table::new(&["hazard", "ratio", "mean ± u", "95 % interval", "P(ratio ≥ 1)", "decision"]);
     for h in &r.hazards {
-        rows.push(vec![
+        t.row(vec![
             h.id.clone(),
             num(h.nominal),
             format!("{} ± {}", num(h.mean), num(h.standard_uncertainty)),
@@ -231,59 +242,39 @@ fn table(r: &UncertaintyReport, id: &str) -> String {
             h.decision.text().to_string(),
         ]);
     }
-    out.push_str(&columns(&rows));
-    out.push_str(&shares_table(r));
+    p.table(&t);
+    shares_table(&mut p, r);
     for (id, why) in &r.not_sampled {
-        out.push_str(&format!("not sampled: {id}: {why}\n"));
+        p.para(&format!("not sampled: {id}: {why}"), "");
     }
     for h in r.hazards.iter().filter(|h| h.inapplicable_draws > 0) {
-        out.push_str(&format!(
-            "{}: its condition of application fails in {} of {} draws (kept in the distribution)\n",
-            h.id, h.inapplicable_draws, r.draws
-        ));
+        p.para(
+            &format!(
+                "{}: its condition of application fails in {} of {} draws (kept in the distribution)",
+                h.id, h.inapplicable_draws, r.draws
+            ),
+            "",
+        );
     }
-    out.push_str(
-        "The pupil enters no corneal irradiance or radiance limit; a retinal irradiance would carry \
-         2·u(p)/p from it.\n",
-    );
-    out
+    p.para("The pupil enters no corneal irradiance or radiance limit; a retinal irradiance would carry 2·u(p)/p from it.", "");
+    p.finish()
 }
 
 /// Each input's share of the variance per hazard.
-fn shares_table(r: &UncertaintyReport) -> String {
+fn shares_table(p: &mut Page, r: &UncertaintyReport) {
     let mut header = vec!["hazard".to_string()];
     header.extend(Input::ALL.iter().map(|i| i.name().to_string()));
     header.push("Σ one-at-a-time ÷ variance".into());
-    let mut rows = vec![header];
+    let mut t = Table::new(&header);
     for h in &r.hazards {
         let mut row = vec![h.id.clone()];
         row.extend(h.shares.iter().map(|(_, s)| percent(*s)));
         row.push(num(h.one_at_a_time_sum));
-        rows.push(row);
+        t.row(row);
     }
-    format!(
-        "\nShare of the variance (one input at a time, the others at their values; normalised):\n{}\n",
-        columns(&rows)
-    )
-}
-
-/// Columns padded to their widest cell, separated by two spaces.
-fn columns(rows: &[Vec<String>]) -> String {
-    let n = rows.iter().map(Vec::len).max().unwrap_or(0);
-    let width: Vec<usize> = (0..n)
-        .map(|i| rows.iter().filter_map(|r| r.get(i)).map(|c| c.chars().count()).max().unwrap_or(0))
-        .collect();
-    let mut out = String::new();
-    for r in rows {
-        let cells: Vec<String> = r
-            .iter()
-            .enumerate()
-            .map(|(i, c)| format!("{c}{}", " ".repeat(width[i] - c.chars().count())))
-            .collect();
-        out.push_str(cells.join("  ").trim_end());
-        out.push('\n');
-    }
-    out
+    p.blank();
+    p.para("Share of the variance (one input at a time, the others at their values; normalised):", "");
+    p.table(&t);
 }
 
 /// One CSV row per hazard.

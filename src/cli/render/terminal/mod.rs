@@ -89,7 +89,7 @@ impl Page {
     }
 
     /// An empty line.
-    fn blank(&mut self) {
+    pub fn blank(&mut self) {
         self.text.push('\n');
     }
 
@@ -101,7 +101,7 @@ impl Page {
     }
 
     /// `text` wrapped, every line indented by `indent`.
-    fn para(&mut self, text: &str, indent: &str) {
+    pub fn para(&mut self, text: &str, indent: &str) {
         self.hanging(indent, indent, text);
     }
 
@@ -153,7 +153,7 @@ impl Page {
     }
 
     /// A box table narrowed, or split, to fit the width.
-    fn table(&mut self, t: &Table) {
+    pub fn table(&mut self, t: &Table) {
         let colour = self.colour;
         self.text.push_str(&t.render(self.width, colour));
     }
@@ -216,7 +216,7 @@ pub struct Table {
 
 impl Table {
     /// A table with these column headings.
-    fn new<S: AsRef<str>>(header: &[S]) -> Self {
+    pub fn new<S: AsRef<str>>(header: &[S]) -> Self {
         Table {
             header: header.iter().map(|h| terminal_line(h.as_ref()).into_owned()).collect(),
             rows: Vec::new(),
@@ -224,7 +224,7 @@ impl Table {
     }
 
     /// A row of plain cells.
-    fn row(&mut self, cells: Vec<String>) {
+    pub fn row(&mut self, cells: Vec<String>) {
         self.rows.push(cells.into_iter().map(|c| (terminal_line(&c).into_owned(), "")).collect());
     }
 
