@@ -164,7 +164,7 @@ fn length(text: &str, flag: &str) -> Result<Length> {
 }
 
 /// The index of the source `id`, or the one source when there is only one.
-fn source_index(s: &Scenario, id: Option<&str>) -> Result<usize> {
+pub(crate) fn source_index(s: &Scenario, id: Option<&str>) -> Result<usize> {
     let ids = s.source_ids.join(", ");
     match id {
         Some(id) => {

@@ -10,7 +10,6 @@ use retidose::base::quantity::{Length, SiValue};
 use retidose::base::units;
 use retidose::limits::find_set;
 use retidose::limits::report::LimitsRequest;
-use retidose::scenario::file::Scenario;
 use retidose::uncertainty::{Input, InputUncertainties, MAX_DRAWS, UncertaintyReport, assess_uncertainty};
 
 use super::Output;
@@ -90,7 +89,7 @@ pub fn run(a: UncertaintyArgs) -> Result<Output> {
     let text = std::fs::read_to_string(&a.scenario)
         .with_context(|| format!("cannot read the scenario {}", a.scenario))?;
     let s = parse_scenario_file(&text, &a.scenario, Path::new(&a.scenario).parent())?;
-    let index = source_index(&s, a.source.as_deref())?;
+    let index = super::sweep::source_index(&s, a.source.as_deref())?;
     let limits = s.limits.as_ref();
     let set = match (&a.set, limits.and_then(|l| l.sets.first())) {
         (Some(id), _) => find_set(id).context("--set")?,
@@ -171,20 +170,6 @@ fn length(text: &str, flag: &str) -> Result<Length> {
         bail!("{flag} must be a length of at least 0 m, such as \"5 mm\", not \"{text}\"");
     }
     Ok(d)
-}
-
-/// The index of the source `id`, or the one source when there is only one.
-fn source_index(s: &Scenario, id: Option<&str>) -> Result<usize> {
-    let ids = s.source_ids.join(", ");
-    match id {
-        Some(id) => {
-            s.source_ids.iter().position(|x| x == id).with_context(|| {
-                format!("--source: the scenario has no source '{id}'; its sources are: {ids}")
-            })
-        }
-        None if s.source_ids.len() == 1 => Ok(0),
-        None => bail!("--source: the scenario has {} sources; name one of: {ids}", s.source_ids.len()),
-    }
 }
 
 /// A fraction as a percentage with the shared number style; shares below 10⁻¹² (rounding in a
