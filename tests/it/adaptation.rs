@@ -254,7 +254,7 @@ fn temp_file(name: &str, text: &str) -> std::path::PathBuf {
     let dir = std::env::temp_dir().join(format!("retidose-adaptation-{}", std::process::id()));
     std::fs::create_dir_all(&dir).unwrap();
     let p = dir.join(name);
-    std::fs::write(&p, text).unwrap();
+    crate::files::write(&p, text);
     p
 }
 

@@ -17,7 +17,7 @@ fn temp_file(name: &str, text: &str) -> PathBuf {
     let dir = std::env::temp_dir().join(format!("retidose-assess-{}", std::process::id()));
     std::fs::create_dir_all(&dir).unwrap();
     let p = dir.join(name);
-    std::fs::write(&p, text).unwrap();
+    crate::files::write(&p, text);
     p
 }
 
@@ -259,7 +259,7 @@ fn output_files_are_never_overwritten_by_accident() {
     assert_eq!(std::fs::read_to_string(&input).unwrap(), before);
 }
 
-fn one_cage(lux: &str) -> String {
+fn one_cage(lux: &str, readings: &str) -> String {
     format!(
         r#"
 [scenario]
@@ -293,7 +293,7 @@ on = []
 sets = ["nrc-guide-2011"]
 [room]
 light_spectrum = "neutral-white-led"
-readings = "one.csv"
+readings = "{readings}"
 [[room.rack]]
 id = "only"
 shelves = 1
@@ -306,7 +306,7 @@ cage_transmittance = "1"
 #[test]
 fn a_survey_of_one_position_equals_assessing_that_position() {
     let dir = temp_file("one.csv", "shelf,column,lux\n1,1,200\n").parent().unwrap().to_path_buf();
-    let s = parse_scenario_file(&one_cage("200 lx"), "one.toml", Some(&dir)).unwrap();
+    let s = parse_scenario_file(&one_cage("200 lx", "one.csv"), "one.toml", Some(&dir)).unwrap();
     let a = assess(&s).unwrap();
     let room = a.room.as_ref().unwrap();
     let pos = room.rows.0.row(0);
@@ -321,8 +321,8 @@ fn a_survey_of_one_position_equals_assessing_that_position() {
 fn housing_flags_change_state_exactly_at_the_guidance_thresholds() {
     for (lux, flagged) in [("325", false), ("325.0001", true), ("130", false), ("129.9999", true)] {
         let dir =
-            temp_file("one.csv", &format!("shelf,column,lux\n1,1,{lux}\n")).parent().unwrap().to_path_buf();
-        let s = parse_scenario_file(&one_cage("200 lx"), "one.toml", Some(&dir)).unwrap();
+            temp_file("flags.csv", &format!("shelf,column,lux\n1,1,{lux}\n")).parent().unwrap().to_path_buf();
+        let s = parse_scenario_file(&one_cage("200 lx", "flags.csv"), "one.toml", Some(&dir)).unwrap();
         let a = assess(&s).unwrap();
         let p = a.room.as_ref().unwrap().rows.0.row(0);
         assert_eq!(p.flags.any(), flagged, "{lux} lx: {:?}", p.flags);

@@ -22,7 +22,7 @@ fn dir() -> PathBuf {
 
 fn write(name: &str, text: &str) -> PathBuf {
     let p = dir().join(name);
-    std::fs::write(&p, text).unwrap();
+    crate::files::write(&p, text);
     p
 }
 

@@ -21,7 +21,7 @@ fn folder(test: &str) -> PathBuf {
 
 fn write(dir: &std::path::Path, name: &str, text: &str) -> String {
     let p = dir.join(name);
-    std::fs::write(&p, text).unwrap();
+    crate::files::write(&p, text);
     p.display().to_string()
 }
 

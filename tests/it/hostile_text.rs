@@ -62,7 +62,7 @@ fn hostile_scenario() -> PathBuf {
     let dir = std::env::temp_dir().join(format!("retidose-hostile-{}", std::process::id()));
     std::fs::create_dir_all(&dir).unwrap();
     let p = dir.join("hostile.toml");
-    std::fs::write(&p, text).unwrap();
+    crate::files::write(&p, text);
     p
 }
 

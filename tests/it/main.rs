@@ -10,6 +10,7 @@ mod cli;
 mod compare;
 mod completeness;
 mod consistency;
+mod files;
 mod fuzz;
 mod hazard_oracle;
 mod hostile_text;

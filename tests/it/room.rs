@@ -76,7 +76,7 @@ fn scenario(dir: &std::path::Path) -> String {
     for (s, c, l) in readings() {
         csv.push_str(&format!("mice,{s},{c},{l}\n"));
     }
-    std::fs::write(dir.join("readings.csv"), csv).unwrap();
+    crate::files::write(&dir.join("readings.csv"), csv);
     let mut t = String::from(
         r#"[scenario]
 name = "two-racks"
@@ -281,7 +281,7 @@ fn the_lever_is_the_best_factor_of_a_fine_scan() {
 fn the_report_says_in_words_which_cages_and_what_to_change() {
     let d = dir();
     let p = d.join("room.toml");
-    std::fs::write(&p, scenario(&d)).unwrap();
+    crate::files::write(&p, scenario(&d));
     let out = Command::cargo_bin("retidose").unwrap().args(["assess", p.to_str().unwrap()]).output().unwrap();
     // The sentences are wrapped to the terminal's width: compare with single spaces.
     let text = String::from_utf8(out.stdout).unwrap().split_whitespace().collect::<Vec<_>>().join(" ");

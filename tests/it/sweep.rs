@@ -226,7 +226,7 @@ fn scenario_file() -> PathBuf {
     let dir = std::env::temp_dir().join(format!("retidose-sweep-{}", std::process::id()));
     std::fs::create_dir_all(&dir).unwrap();
     let p = dir.join("s.toml");
-    std::fs::write(&p, stimulus()).unwrap();
+    crate::files::write(&p, stimulus());
     p
 }
 

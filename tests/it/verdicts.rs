@@ -27,8 +27,9 @@ fn led_file(name: &str, step: usize) -> PathBuf {
         let g = (-((nm as f64 - 450.0) / 20.0).powi(2)).exp();
         text.push_str(&format!("{nm},{:e}\n", (g + 2.0 * g.powi(5)) / 3.0));
     }
+    // Tests run in parallel and share the file.
     let p = dir().join(name);
-    std::fs::write(&p, text).unwrap();
+    crate::files::write(&p, text);
     p
 }
 
