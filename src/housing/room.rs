@@ -199,6 +199,9 @@ pub struct DarkEvent {
     pub start_s: f64,
     /// Duration, s.
     pub duration_s: f64,
+    /// A rod R*/rod/s the event's light must stay at or below (with the leak), when the user
+    /// asks for the brightest such light.
+    pub rod_target: Option<crate::base::quantity::Frequency>,
 }
 
 /// How the model is fitted to the readings.

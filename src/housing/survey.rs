@@ -174,6 +174,52 @@ fn calibration(p: &Plan) -> Result<Option<Fit>> {
     fit(p.room.calibration, &rows, &y).map(Some).map_err(|e| e.key("calibrate").key("room"))
 }
 
+/// The brightest light of a dark-phase event that keeps the rod R*/rod/s of every position of a
+/// rack, with the leak, at or below the event's target. The rod rate is linear in the event's
+/// light: at factor s it is leak_i + s·k·E_i (k the rack's rod rate per lux of that light, E_i
+/// the event's lux at position i), so s = (T − max leak) / (k · max E). That is exact for an
+/// event and a leak that are the same at every cage, and on the safe side (never brighter than
+/// allowed) when they vary.
+#[derive(Debug, Clone, Copy, PartialEq, serde::Serialize)]
+pub struct Safelight {
+    /// The target.
+    pub target: uom::si::f64::Frequency,
+    /// The factor on the event's light as written (its lux, or its lamp's intensity).
+    pub scale: f64,
+    /// The highest room illuminance at cage level at that factor, lx.
+    pub brightest_lux: f64,
+    /// The leak alone reaches the target: no event light fits.
+    pub leak_exceeds: bool,
+}
+
+/// The safelight solve of each event of `room` for a rack with `summary` and `per_lux`
+/// (light, leak, each event).
+fn safelights(room: &Room, summary: &RackSummary, per_lux: &[PerLux]) -> Vec<Option<Safelight>> {
+    room.events
+        .iter()
+        .enumerate()
+        .map(|(e, ev)| {
+            let target = ev.rod_target?;
+            let t = target.si();
+            let headroom = t - summary.leak_rod_rate.max;
+            let per_scale = per_lux[2 + e].rod_rate * summary.events[e].room_lux.max;
+            let scale = if headroom <= 0.0 {
+                0.0
+            } else if per_scale > 0.0 {
+                headroom / per_scale
+            } else {
+                f64::INFINITY
+            };
+            Some(Safelight {
+                target,
+                scale,
+                brightest_lux: scale * summary.events[e].room_lux.max,
+                leak_exceeds: headroom <= 0.0,
+            })
+        })
+        .collect()
+}
+
 /// A piece of dark-phase evidence set beside one rack.
 #[derive(Debug, Clone, PartialEq, serde::Serialize)]
 pub struct EvidenceComparison {
@@ -217,6 +263,8 @@ pub struct RackResult {
     pub summary: RackSummary,
     /// The dimming lever, when a guidance range applies.
     pub lever: Option<Lever>,
+    /// Per event (the room's order), the brightest light within its rod target, when it has one.
+    pub safelights: Vec<Option<Safelight>>,
     /// Dark-phase evidence beside it.
     pub evidence: Vec<EvidenceComparison>,
 }
@@ -238,6 +286,11 @@ pub fn rack_results(plan: &Plan, evidence: &[crate::housing::guidance::Evidence]
             bounds: rp.bounds,
             per_lux: [rp.light, rp.leak].into_iter().chain(rp.events.iter().copied()).collect(),
             lever: lever(&rp.bounds, data),
+            safelights: safelights(
+                &plan.room,
+                &summary,
+                &[rp.light, rp.leak].into_iter().chain(rp.events.iter().copied()).collect::<Vec<_>>(),
+            ),
             evidence: compare_evidence(r.animals.species, &summary, evidence),
             summary,
         })

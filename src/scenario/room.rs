@@ -90,6 +90,7 @@ struct RawEvent {
     luminaire: Option<RawLuminaire>,
     start: String,
     duration: String,
+    rod_target: Option<String>,
 }
 
 /// What the rest of the scenario tells the room: the subject and the schedule's phases.
@@ -393,7 +394,19 @@ fn event(e: &RawEvent, base: Option<&Path>, i: usize) -> Result<DarkEvent> {
         light,
         start_s: positive_time(&e.start, "start", true)?,
         duration_s: positive_time(&e.duration, "duration", false)?,
+        rod_target: e.rod_target.as_deref().map(rod_target).transpose()?,
     })
+}
+
+/// A rod isomerisation rate above 0 ("50 R*/rod/s").
+fn rod_target(text: &str) -> Result<crate::base::quantity::Frequency> {
+    let r = crate::base::units::parse_isomerisation_rate(text).map_err(|e| e.key("rod_target"))?;
+    if !(r.si() > 0.0 && r.si().is_finite()) {
+        return Err(
+            Error::input(format!("{text}: give a rate above 0, such as \"50 R*/rod/s\"")).key("rod_target")
+        );
+    }
+    Ok(r)
 }
 
 fn read_file(file: &str, base: Option<&Path>, racks: &[Rack]) -> Result<crate::housing::readings::Readings> {

@@ -114,6 +114,11 @@ fn readings_and_room_values_must_be_physical() {
         &v.replacen("shelves = 5", "shelves = 2.5", 1),
         &["room.rack[0].shelves", "whole number"],
     );
+    rejects(
+        "target.toml",
+        &v.replace("rod_target = \"100 R*/rod/s\"", "rod_target = \"-5 R*/rod/s\""),
+        &["room.event[0].rod_target", "above 0"],
+    );
     let with_readings = v.replace("leak = \"0.3 lx\"", "leak = \"0.3 lx\"\nreadings = \"half.csv\"");
     let cases = [
         ("rack,shelf,column,lux\nA,2.5,1,100\n", &["half.csv:2", "field 'shelf'", "whole number"][..]),

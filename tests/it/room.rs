@@ -380,3 +380,26 @@ z = "1.4 m"
     assert!(rel(r1.events[0].room_lux, e(3.0, (2.0, 1.0, 2.0), (2.0, 1.5, 1.4))) < 1e-12);
     assert_eq!((r1.shelf, r1.column), (2, 1));
 }
+
+#[test]
+fn the_brightest_safelight_within_a_rod_target_gives_that_target_when_used() {
+    let d = dir();
+    let text =
+        scenario(&d).replace("duration = \"10 min\"", "duration = \"10 min\"\nrod_target = \"200 R*/rod/s\"");
+    let s = parse_scenario_file(&text, "room.toml", Some(&d)).unwrap_or_else(|e| panic!("{e}"));
+    let a = assess(&s).unwrap();
+    for (k, rack) in a.room.as_ref().unwrap().racks.iter().enumerate() {
+        let sl = rack.safelights[0].expect("a target gives a solve");
+        assert!(!sl.leak_exceeds && sl.scale > 0.0);
+        // Put the brightest light back: the highest rod rate during the event is the target.
+        let back = text.replace("lux = \"5 lx\"", &format!("lux = \"{} lx\"", sl.brightest_lux));
+        let s2 = parse_scenario_file(&back, "room.toml", Some(&d)).unwrap();
+        let a2 = assess(&s2).unwrap();
+        let rate = a2.room.as_ref().unwrap().racks[k].summary.events[0].rod_rate.max;
+        assert!(rel(rate, 200.0) < 1e-9, "rack {k}: {rate} R*/rod/s at {} lx", sl.brightest_lux);
+    }
+    // A target the leak alone reaches leaves no room for the event's light.
+    let low = text.replace("rod_target = \"200 R*/rod/s\"", "rod_target = \"1e-6 R*/rod/s\"");
+    let a3 = assess(&parse_scenario_file(&low, "room.toml", Some(&d)).unwrap()).unwrap();
+    assert!(a3.room.as_ref().unwrap().racks.iter().all(|r| r.safelights[0].unwrap().leak_exceeds));
+}

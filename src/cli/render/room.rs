@@ -145,6 +145,25 @@ fn dark_sentences(room: &RoomResult, r: &RackResult) -> Vec<String> {
             duration(e.recovery_s.max)
         ));
     }
+    for (ev, sl) in room.events.iter().zip(&r.safelights) {
+        let Some(sl) = sl else { continue };
+        let t = num(sl.target.get::<uom::si::frequency::hertz>());
+        out.push(if sl.leak_exceeds {
+            format!(
+                "Brightest '{}' within {t} R*/rod/s: none; the leak alone gives up to {} R*/rod/s.",
+                ev.name,
+                num(s.leak_rod_rate.max)
+            )
+        } else {
+            format!(
+                "Brightest '{}' within {t} R*/rod/s at every cage (with the leak): up to {} lx at cage level, {}× the \
+                 light as written.",
+                ev.name,
+                num(sl.brightest_lux),
+                num(sl.scale)
+            )
+        });
+    }
     out.push(format!(
         "Melanopsin-weighted photon exposure per night: up to {} photons/cm² (leak and events).",
         num(s.melanopic_dose.max * 1e-4)
