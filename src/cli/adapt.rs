@@ -41,6 +41,15 @@ Examples:
   retidose flash \"100 photons/um2\" --species mouse --wavelength \"500 nm\"
   retidose flash \"1 cd s/m2\" --species rat --spectrum cool-white-led";
 
+/// Output formats of `retidose flash`.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, ValueEnum)]
+pub enum FlashFormat {
+    /// A table for the terminal.
+    Table,
+    /// JSON (schema retidose.flash/1).
+    Json,
+}
+
 /// Output formats of `retidose threshold`.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, ValueEnum)]
 pub enum ThresholdFormat {
@@ -50,6 +59,8 @@ pub enum ThresholdFormat {
     Csv,
     /// An SVG figure: the predicted curve, and the measured points with the fitted hinge.
     Svg,
+    /// JSON (schema retidose.threshold/1): the predicted curve and the fit.
+    Json,
 }
 
 #[derive(Debug, Args)]
@@ -100,6 +111,10 @@ pub fn run_threshold(a: ThresholdArgs) -> Result<Output> {
         None => (Vec::new(), None),
     };
     let text = match (a.format, &curve, &fit) {
+        (ThresholdFormat::Json, c, f) => crate::cli::render::json::with_schema(
+            "retidose.threshold/1",
+            &serde_json::json!({ "predicted": c, "fit": f }),
+        )?,
         (ThresholdFormat::Svg, c, f) => crate::cli::render::svg::threshold(c.as_ref(), &measured, f.as_ref())
             .map(|fig| fig.svg + "\n")
             .ok_or_else(|| anyhow::anyhow!("nothing to draw: give --bleach or --fit"))?,
@@ -284,6 +299,9 @@ pub struct FlashArgs {
     /// Age of the subject ("32 y"): human ocular media
     #[arg(long, value_name = "AGE")]
     age: Option<String>,
+    /// Output format: a table, or JSON (schema retidose.flash/1)
+    #[arg(long, value_enum, default_value_t = FlashFormat::Table)]
+    format: FlashFormat,
 }
 
 /// The flash spectrum assumed when none is given.
@@ -316,7 +334,11 @@ pub fn run_flash(a: FlashArgs) -> Result<Output> {
     let mut conv =
         convert_flash(&FlashRequest { species, strength, spectrum, pupil, albino_iris: a.albino, age })?;
     conv.notes.extend(assumed);
-    Ok(Output { text: flash_table(&conv), status: 0 })
+    let text = match a.format {
+        FlashFormat::Table => flash_table(&conv),
+        FlashFormat::Json => crate::cli::render::json::with_schema("retidose.flash/1", &conv)?,
+    };
+    Ok(Output { text, status: 0 })
 }
 
 /// The conversion as a table.

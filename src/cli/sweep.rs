@@ -71,6 +71,8 @@ pub struct SweepArgs {
 pub enum SweepFormat {
     /// A table for the terminal
     Table,
+    /// JSON (schema retidose.sweep/1; with --solve, retidose.solve/1)
+    Json,
     /// Tidy long CSV rows
     Csv,
 }
@@ -102,18 +104,37 @@ pub fn run(a: SweepArgs) -> Result<Output> {
     let id = &s.scenario.source_ids[s.index];
     let text = if a.solve {
         if a.format == SweepFormat::Csv {
-            bail!("--solve prints a table; leave out --format csv (or drop --solve for the CSV sweep)");
+            bail!(
+                "--solve prints a table or JSON; leave out --format csv (or drop --solve for the CSV sweep)"
+            );
         }
         let n = solve_nearest_distance(&r, s.from, s.to)?;
         let placed =
             r.source.distance.map(|d| (d, solve_longest_duration(&r))).map(|(d, l)| l.map(|l| (d, l)));
-        solve_table(&n, id, s.set, placed.transpose()?)
+        let placed = placed.transpose()?;
+        if a.format == SweepFormat::Json {
+            #[derive(serde::Serialize)]
+            struct Solved<'a> {
+                source: &'a str,
+                nearest: &'a retidose::limits::sweep::NearestDistances,
+                longest_at_placed_distance: Option<&'a retidose::limits::sweep::LongestDuration>,
+            }
+            let doc =
+                Solved { source: id, nearest: &n, longest_at_placed_distance: placed.as_ref().map(|p| &p.1) };
+            super::render::json::with_schema("retidose.solve/1", &doc)?
+        } else {
+            solve_table(&n, id, s.set, placed)
+        }
     } else {
         let distances = log_distances(s.from, s.to, a.points)?;
         let points = sweep_distance(&r, &distances)?;
         match a.format {
             SweepFormat::Table => sweep_table(&points, id, s.set, s.duration),
             SweepFormat::Csv => sweep_csv(&points)?,
+            SweepFormat::Json => super::render::json::with_schema(
+                "retidose.sweep/1",
+                &serde_json::json!({ "source": id, "set": s.set.id, "points": points }),
+            )?,
         }
     };
     Ok(Output { text, status: 0 })

@@ -80,6 +80,8 @@ pub struct UncertaintyArgs {
 pub enum UncertaintyFormat {
     /// A table for the terminal
     Table,
+    /// JSON (schema retidose.uncertainty/1)
+    Json,
     /// One CSV row per hazard
     Csv,
 }
@@ -120,6 +122,7 @@ pub fn run(a: UncertaintyArgs) -> Result<Output> {
     let text = match a.format {
         UncertaintyFormat::Table => table(&report, &s.source_ids[index]),
         UncertaintyFormat::Csv => csv(&report)?,
+        UncertaintyFormat::Json => super::render::json::with_schema("retidose.uncertainty/1", &report)?,
     };
     Ok(Output { text, status: 0 })
 }

@@ -685,3 +685,31 @@ fn bleach_trolands_must_say_which_and_match_the_receptor() {
     let wrong = temp_file("wrong-td.toml", &schedule("20000 phot td"));
     fails(&["bleach", "--schedule", wrong.to_str().unwrap()], "human-rod levels are scotopic trolands");
 }
+
+#[test]
+fn the_study_commands_write_json_with_their_schema() {
+    let ex = retidose().args(["assess", "--example", "stimulus-review"]).output().unwrap().stdout;
+    let p = temp_file("json-lamp.toml", &String::from_utf8(ex).unwrap());
+    let lamp = p.to_str().unwrap();
+    for (args, schema, field) in [
+        (vec!["sweep", lamp, "--points", "3", "--format", "json"], "retidose.sweep/1", "points"),
+        (vec!["sweep", lamp, "--solve", "--format", "json"], "retidose.solve/1", "nearest"),
+        (
+            vec!["uncertainty", lamp, "--reading", "5%", "--draws", "1000", "--format", "json"],
+            "retidose.uncertainty/1",
+            "hazards",
+        ),
+        (vec!["threshold", "--bleach", "0.9", "--format", "json"], "retidose.threshold/1", "predicted"),
+        (
+            vec!["flash", "0.01 cd s/m2", "--species", "mouse", "--format", "json"],
+            "retidose.flash/1",
+            "r_star_per_rod",
+        ),
+    ] {
+        let out = retidose().args(&args).output().unwrap();
+        assert!(out.status.success(), "{args:?}: {}", String::from_utf8_lossy(&out.stderr));
+        let v: serde_json::Value = serde_json::from_slice(&out.stdout).unwrap();
+        assert_eq!(v["schema"], schema, "{args:?}");
+        assert!(!v[field].is_null(), "{args:?}: no {field}");
+    }
+}

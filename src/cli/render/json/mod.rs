@@ -46,3 +46,22 @@ fn photometric_json(p: &PhotometricResult) -> Value {
 fn si_json(v: (f64, &str)) -> Value {
     json!({ "value": v.0, "unit": v.1 })
 }
+
+/// Pretty JSON of a library record under a `schema` field (the records' field names are the
+/// documented names; units as in the assessment's JSON: coherent SI).
+///
+/// # Errors
+/// serde's, should a record not serialise.
+pub fn with_schema<T: serde::Serialize>(schema: &str, value: &T) -> anyhow::Result<String> {
+    let mut v = serde_json::to_value(value)?;
+    let doc = match v.as_object_mut() {
+        Some(map) => {
+            let mut out = serde_json::Map::new();
+            out.insert("schema".into(), Value::from(schema));
+            out.append(map);
+            Value::Object(out)
+        }
+        None => json!({ "schema": schema, "data": v }),
+    };
+    Ok(pretty(&doc))
+}
