@@ -45,7 +45,13 @@ pub struct Lever {
     pub spread: f64,
     /// upper ÷ lower of the guidance range.
     pub range_ratio: f64,
+    /// Positions in range against the factor for every luminaire: [`DIMMING_POINTS`] factors
+    /// spaced evenly in log from 1/10 to 10 (the sweep "what if the panels are dimmed").
+    pub dimming: Vec<(f64, usize)>,
 }
+
+/// Points of [`Lever::dimming`].
+pub const DIMMING_POINTS: usize = 41;
 
 /// What the summary pass gathers for a rack's lever: its light-phase lux values (any order)
 /// and the lowest and highest few with their positions.
@@ -167,5 +173,9 @@ pub fn lever(b: &RackBounds, mut data: LeverData) -> Option<Lever> {
         worst,
         spread: if mn > 0.0 { mx / mn } else { f64::INFINITY },
         range_ratio: hi / b.lower.map_or(0.0, |l| l.lx),
+        dimming: (0..DIMMING_POINTS)
+            .map(|k| 10f64.powf(-1.0 + 2.0 * k as f64 / (DIMMING_POINTS - 1) as f64))
+            .map(|f| (f, count_in(f)))
+            .collect(),
     })
 }

@@ -275,6 +275,13 @@ fn the_lever_is_the_best_factor_of_a_fine_scan() {
     assert!(lever.in_range_after >= best_scan, "{} < {best_scan}", lever.in_range_after);
     assert_eq!(lever.in_range_now, count(1.0));
     assert_eq!(lever.stay_below + lever.stay_above + lever.in_range_after, 30);
+    // The dimming sweep: each point is the count at its factor, and none beats the lever.
+    assert_eq!(lever.dimming.len(), retidose::housing::lever::DIMMING_POINTS);
+    for (f, n) in &lever.dimming {
+        assert_eq!(*n, count(*f), "at ×{f}");
+        assert!(*n <= lever.in_range_after);
+    }
+    assert!((lever.dimming[0].0 - 0.1).abs() < 1e-12 && (lever.dimming[40].0 - 10.0).abs() < 1e-9);
 }
 
 #[test]

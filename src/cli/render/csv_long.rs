@@ -326,6 +326,15 @@ fn room(l: &mut Long<'_>, a: &Assessment) -> io::Result<()> {
             l.num("room", &item, "lever: factor for every luminaire", lv.factor, "1")?;
             l.num("room", &item, "lever: positions in range now", lv.in_range_now as f64, "1")?;
             l.num("room", &item, "lever: positions in range at the factor", lv.in_range_after as f64, "1")?;
+            for (f, n) in &lv.dimming {
+                l.num(
+                    "room",
+                    &item,
+                    &format!("positions in range with every luminaire at {}", super::num(*f)),
+                    *n as f64,
+                    "1",
+                )?;
+            }
         }
     }
     Ok(())

@@ -222,6 +222,20 @@ fn lever_sentence(room: &RoomResult, l: &Lever) -> String {
         "Lever: {change} brings {} of {n} positions into range (now {}).",
         l.in_range_after, l.in_range_now
     );
+    let at: Vec<String> = [8, 14, 20, 26]
+        .iter()
+        .filter_map(|&k| l.dimming.get(k))
+        .map(|(f, c)| format!("{c} at ×{}", num(*f)))
+        .collect();
+    let dim = if at.is_empty() {
+        String::new()
+    } else {
+        format!(
+            " In range with every luminaire scaled: {} (the CSV has {} factors from ×0.1 to ×10).",
+            at.join(", "),
+            l.dimming.len()
+        )
+    };
     if l.stay_below + l.stay_above > 0 {
         t.push_str(&format!(
             " {} stay out even then (the rack's own spread is {}× against the range's {}×):",
@@ -242,6 +256,7 @@ fn lever_sentence(room: &RoomResult, l: &Lever) -> String {
         t.pop();
         t.push('.');
     }
+    t.push_str(&dim);
     t
 }
 
