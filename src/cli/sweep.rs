@@ -142,26 +142,9 @@ pub fn run(a: SweepArgs) -> Result<Output> {
 
 /// Reads the scenario and settles every flag, with errors naming the flag.
 fn settle(a: &SweepArgs) -> Result<Settled> {
-    let text = std::fs::read_to_string(&a.scenario)
-        .with_context(|| format!("cannot read the scenario {}", a.scenario))?;
-    let scenario = parse_scenario_file(&text, &a.scenario, Path::new(&a.scenario).parent())?;
-    let index = source_index(&scenario, a.source.as_deref())?;
+    let Chosen { scenario, index, set, duration } =
+        choose(&a.scenario, a.source.as_deref(), a.set.as_deref(), a.duration.as_deref())?;
     let limits = scenario.limits.as_ref();
-    let set = match (&a.set, limits.and_then(|l| l.sets.first())) {
-        (Some(id), _) => find_set(id).context("--set")?,
-        (None, Some(set)) => set,
-        (None, None) => {
-            bail!("--set: the scenario has no [limits] sets; give --set (see `retidose limits list`)")
-        }
-    };
-    let duration = match (&a.duration, limits) {
-        (Some(t), _) => units::parse_time(t).context("--for")?,
-        (None, Some(l)) => l.duration,
-        (None, None) => bail!("--for: the scenario has no [limits] duration; give --for, e.g. --for \"8 h\""),
-    };
-    if !(duration.si() > 0.0 && duration.si().is_finite()) {
-        bail!("--for: the exposure duration must be above 0 s, e.g. \"8 h\"");
-    }
     let from = length(&a.from, "--from")?;
     let to = length(&a.to, "--to")?;
     if from.si() >= to.si() {
@@ -173,6 +156,49 @@ fn settle(a: &SweepArgs) -> Result<Settled> {
     let classify = limits.map_or(Some(false), |l| l.classify.then_some(l.general_lighting));
     let aphakic = limits.is_some_and(|l| l.aphakic);
     Ok(Settled { scenario, index, set, duration, classify, aphakic, from, to })
+}
+
+/// A scenario read and resolved, with the source, limit set and exposure duration its flags
+/// name (set and duration default to the scenario's [limits]); shared by `sweep` and
+/// `uncertainty`.
+pub(crate) struct Chosen {
+    /// The resolved scenario.
+    pub scenario: Scenario,
+    /// The source's index.
+    pub index: usize,
+    /// The limit set.
+    pub set: &'static LimitSet,
+    /// The exposure duration.
+    pub duration: Time,
+}
+
+/// Reads `path` and settles `--source`, `--set` and `--for`, with errors naming the flag.
+pub(crate) fn choose(
+    path: &str,
+    source: Option<&str>,
+    set: Option<&str>,
+    duration: Option<&str>,
+) -> Result<Chosen> {
+    let text = std::fs::read_to_string(path).with_context(|| format!("cannot read the scenario {path}"))?;
+    let scenario = parse_scenario_file(&text, path, Path::new(path).parent())?;
+    let index = source_index(&scenario, source)?;
+    let limits = scenario.limits.as_ref();
+    let set = match (set, limits.and_then(|l| l.sets.first())) {
+        (Some(id), _) => find_set(id).context("--set")?,
+        (None, Some(set)) => set,
+        (None, None) => {
+            bail!("--set: the scenario has no [limits] sets; give --set (see `retidose limits list`)")
+        }
+    };
+    let duration = match (duration, limits) {
+        (Some(t), _) => units::parse_time(t).context("--for")?,
+        (None, Some(l)) => l.duration,
+        (None, None) => bail!("--for: the scenario has no [limits] duration; give --for, e.g. --for \"8 h\""),
+    };
+    if !(duration.si() > 0.0 && duration.si().is_finite()) {
+        bail!("--for: the exposure duration must be above 0 s, e.g. \"8 h\"");
+    }
+    Ok(Chosen { scenario, index, set, duration })
 }
 
 /// A distance flag: a length above 0 m.

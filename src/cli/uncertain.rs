@@ -1,14 +1,10 @@
 //! `retidose uncertainty`: the Monte Carlo uncertainty (JCGM 101, GUM Supplement 1) of every
 //! hazard ratio of one source of a scenario against one limit set.
 
-use std::path::Path;
-
 use anyhow::{Context, Result, bail};
 use clap::{Args, ValueEnum};
-use retidose::assess::parse_scenario_file;
 use retidose::base::quantity::{Length, SiValue};
 use retidose::base::units;
-use retidose::limits::find_set;
 use retidose::limits::report::LimitsRequest;
 use retidose::uncertainty::{Input, InputUncertainties, MAX_DRAWS, UncertaintyReport, assess_uncertainty};
 
@@ -88,23 +84,9 @@ pub enum UncertaintyFormat {
 
 /// Runs `retidose uncertainty`.
 pub fn run(a: UncertaintyArgs) -> Result<Output> {
-    let text = std::fs::read_to_string(&a.scenario)
-        .with_context(|| format!("cannot read the scenario {}", a.scenario))?;
-    let s = parse_scenario_file(&text, &a.scenario, Path::new(&a.scenario).parent())?;
-    let index = super::sweep::source_index(&s, a.source.as_deref())?;
+    let super::sweep::Chosen { scenario: s, index, set, duration } =
+        super::sweep::choose(&a.scenario, a.source.as_deref(), a.set.as_deref(), a.duration.as_deref())?;
     let limits = s.limits.as_ref();
-    let set = match (&a.set, limits.and_then(|l| l.sets.first())) {
-        (Some(id), _) => find_set(id).context("--set")?,
-        (None, Some(set)) => set,
-        (None, None) => {
-            bail!("--set: the scenario has no [limits] sets; give --set (see `retidose limits list`)")
-        }
-    };
-    let duration = match (&a.duration, limits) {
-        (Some(t), _) => units::parse_time(t).context("--for")?,
-        (None, Some(l)) => l.duration,
-        (None, None) => bail!("--for: the scenario has no [limits] duration; give --for, e.g. --for \"8 h\""),
-    };
     if !(1 < a.draws && a.draws <= MAX_DRAWS) {
         bail!("--draws must be 2 to {MAX_DRAWS}, such as 100000, not {}", a.draws);
     }
