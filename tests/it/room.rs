@@ -410,3 +410,31 @@ fn the_brightest_safelight_within_a_rod_target_gives_that_target_when_used() {
     let a3 = assess(&parse_scenario_file(&low, "room.toml", Some(&d)).unwrap()).unwrap();
     assert!(a3.room.as_ref().unwrap().racks.iter().all(|r| r.safelights[0].unwrap().leak_exceeds));
 }
+
+#[test]
+fn a_380_to_780_nm_measurement_marks_rodent_opic_values_as_lower_bounds() {
+    let d = dir();
+    let mut csv = String::from("# kind: irradiance\n");
+    for nm in (380..=780).step_by(5) {
+        csv.push_str(&format!("{nm},{:e}\n", (-((nm as f64 - 450.0) / 12.0).powi(2)).exp() + 0.3));
+    }
+    crate::files::write(&d.join("measured.csv"), csv);
+    let text = "[scenario]\nname = \"m\"\ntitle = \"measured lamp (invented)\"\n[subject]\nspecies = \"mouse\"\n\
+                pigmentation = \"albino\"\npupil = \"light\"\n[[source]]\nid = \"lamp\"\nspectrum = \"measured.csv\"\n\
+                illuminance = \"100 lx\"\nfull_field = true\n";
+    let p = d.join("measured.toml");
+    crate::files::write(&p, text);
+    let out = Command::cargo_bin("retidose").unwrap().args(["assess", p.to_str().unwrap()]).output().unwrap();
+    let t = String::from_utf8(out.stdout).unwrap();
+    // The mouse UV cone peaks near 360 nm, outside the measured band: its value is a lower bound.
+    let uv = t.lines().find(|l| l.contains("source lamp")).expect("the α-opic row");
+    assert!(uv.contains("≥"), "{uv}");
+    assert!(t.contains("≥: a lower bound"), "{t}");
+    let md = Command::cargo_bin("retidose")
+        .unwrap()
+        .args(["assess", p.to_str().unwrap(), "--format", "markdown"])
+        .output()
+        .unwrap()
+        .stdout;
+    assert!(String::from_utf8(md).unwrap().contains("| lamp | uv-cone | ≥ "));
+}

@@ -308,7 +308,8 @@ fn outcome_sentence(a: &Assessment) -> String {
 /// The rows of the "what reaches the eye" tables, shared by Markdown and HTML: per source its
 /// label, corneal illuminance, photopic and scotopic trolands and rod R*/rod/s; then per source
 /// and α-opic channel its label, the channel and the value (CIE S 026 EDI for people; photon
-/// irradiance and equivalent daylight for rodents). Labels are user text: escape them.
+/// irradiance and equivalent daylight for rodents), "≥ " before a value whose band the spectrum
+/// covers only in part (a lower bound). Labels are user text: escape them.
 pub fn eye_rows(r: &retidose::retina::report::RetinaReport) -> (Vec<[String; 5]>, Vec<[String; 3]>) {
     use retidose::base::quantity::{SiValue, as_td_f64};
     let mut eye = Vec::new();
@@ -325,13 +326,17 @@ pub fn eye_rows(r: &retidose::retina::report::RetinaReport) -> (Vec<[String; 5]>
             ret.map_or("—".into(), |x| num(as_td_f64(x.trolands.scotopic))),
             rod,
         ]);
+        let at_least = |c: &retidose::spectrum::Coverage| if c.matters() { "≥ " } else { "" };
         for x in &s.human_alpha_opic {
-            let v = x.edi.map_or("—".into(), |e| format!("{} lx EDI", num(e.si_value())));
+            let v = x
+                .edi
+                .map_or("—".into(), |e| format!("{}{} lx EDI", at_least(&x.coverage), num(e.si_value())));
             opic.push([s.label.clone(), x.name.clone(), v]);
         }
         for x in &s.species_opic {
             let v = format!(
-                "{} photons/cm²/s ({} lx equivalent daylight)",
+                "{}{} photons/cm²/s ({} lx equivalent daylight)",
+                at_least(&x.coverage),
                 num(x.photon_irradiance.si() * 1e-4),
                 num(x.equivalent_daylight.get::<uom::si::illuminance::lux>())
             );

@@ -132,12 +132,21 @@ fn alpha_opic(o: &mut Page, a: &Assessment, r: &RetinaReport) {
         Some(s) => s.species_opic.iter().map(|x| x.channel.clone()).collect(),
         None => return,
     };
+    let at_least = |c: &retidose::spectrum::Coverage| if c.matters() { "≥ " } else { "" };
     let human_row = |v: &[retidose::weighting::alpha_opic::AlphaOpicValue]| -> Vec<String> {
-        v.iter().map(|x| x.edi.map_or("—".into(), |e| format!("{} lx", num(e.si_value())))).collect()
+        v.iter()
+            .map(|x| {
+                x.edi.map_or("—".into(), |e| format!("{}{} lx", at_least(&x.coverage), num(e.si_value())))
+            })
+            .collect()
     };
     let rodent_row = |v: &[retidose::retina::catch::SpeciesOpic]| -> Vec<String> {
-        v.iter().map(|x| format!("{} lx", num(x.equivalent_daylight.si()))).collect()
+        v.iter().map(|x| format!("{}{} lx", at_least(&x.coverage), num(x.equivalent_daylight.si()))).collect()
     };
+    let partial = r.sources.iter().any(|s| {
+        s.human_alpha_opic.iter().any(|x| x.coverage.matters())
+            || s.species_opic.iter().any(|x| x.coverage.matters())
+    });
     let header: Vec<&str> = std::iter::once("").chain(names.iter().map(String::as_str)).collect();
     let mut t = Table::new(&header);
     for s in &r.sources {
@@ -159,6 +168,13 @@ fn alpha_opic(o: &mut Page, a: &Assessment, r: &RetinaReport) {
     };
     o.heading(&title, false);
     o.table(&t);
+    if partial {
+        o.para(
+            "≥: a lower bound; the spectrum does not cover the whole band of that channel (measure further into \
+             the UV or give emission_range when the source emits nothing outside its measured range)",
+            "  ",
+        );
+    }
 }
 
 /// The pigment: one row per phase, peak and mean, recovery, rod threshold and saturation.
