@@ -98,7 +98,7 @@ pub fn run(a: AssessArgs) -> Result<Output> {
     match &a.output {
         None => {
             let mut w = std::io::BufWriter::new(std::io::stdout().lock());
-            match render_to(&results, a.format, colour, &mut w).and_then(|()| w.flush()) {
+            match render_to(&results, &scenarios, a.format, colour, &mut w).and_then(|()| w.flush()) {
                 // A closed pipe (`retidose … | head`) is not an error.
                 Err(e) if e.kind() != std::io::ErrorKind::BrokenPipe => {
                     return Err(e).context("cannot write the report");
@@ -108,7 +108,8 @@ pub fn run(a: AssessArgs) -> Result<Output> {
         }
         Some(path) => {
             let mut f = AtomicFile::create(Path::new(path))?;
-            render_to(&results, a.format, colour, &mut f).with_context(|| format!("cannot write {path}"))?;
+            render_to(&results, &scenarios, a.format, colour, &mut f)
+                .with_context(|| format!("cannot write {path}"))?;
             f.commit()?;
         }
     }
@@ -144,6 +145,7 @@ fn load_scenarios(a: &AssessArgs) -> Result<(Vec<Scenario>, Vec<PathBuf>)> {
 /// the number of cage positions), the others rendered whole.
 fn render_to(
     results: &[Assessment],
+    scenarios: &[Scenario],
     format: ReportFormat,
     colour: bool,
     w: &mut dyn Write,
@@ -154,6 +156,6 @@ fn render_to(
         ReportFormat::Csv => csv_long::write(results, w),
         ReportFormat::Positions => csv::assessment_to(results, w),
         ReportFormat::Markdown => w.write_all(markdown::assessment(results).as_bytes()),
-        ReportFormat::Html => w.write_all(html::assessment(results).as_bytes()),
+        ReportFormat::Html => w.write_all(html::assessment(results, scenarios).as_bytes()),
     }
 }

@@ -137,23 +137,91 @@ pub fn best_factor(e: &[f64], b: &RackBounds) -> f64 {
     best_f
 }
 
+/// Non-negative lux values in ascending order: such floats order as their bit patterns, so an
+/// integer sort (in place: the maps reuse the vector's memory).
+pub fn sorted_lux(lux: Vec<f64>) -> Vec<f64> {
+    let mut bits: Vec<u64> = lux.into_iter().map(f64::to_bits).collect();
+    bits.sort_unstable();
+    bits.into_iter().map(f64::from_bits).collect()
+}
+
+/// The positions of a rack at one factor on every luminaire: below, in and above the guidance
+/// range, with the comparisons the flags use (in range: lower ≤ f·E ≤ upper).
+#[derive(Debug, Clone, Copy, PartialEq, Eq, serde::Serialize)]
+pub struct Counts {
+    /// Below the lower bound.
+    pub below: usize,
+    /// In range.
+    pub in_range: usize,
+    /// Above the upper bound.
+    pub above: usize,
+}
+
+/// The [`Counts`] of the ascending lux values `e` of a rack with bounds `b` at factor `f`: two
+/// binary searches.
+pub fn counts(e: &[f64], b: &RackBounds, f: f64) -> Counts {
+    let lo = b.lower.map_or(f64::NEG_INFINITY, |l| l.lx);
+    let hi = b.upper.map_or(f64::INFINITY, |u| u.lx);
+    let below = e.partition_point(|v| v * f < lo);
+    let above = e.len() - e.partition_point(|v| v * f <= hi);
+    Counts { below, in_range: e.len() - below - above, above }
+}
+
+/// One point of a rack's dimming curve.
+#[derive(Debug, Clone, Copy, PartialEq, serde::Serialize)]
+pub struct DimmingPoint {
+    /// The factor on every luminaire (1: as now).
+    pub factor: f64,
+    /// The positions below, in and above the range at that factor.
+    #[serde(flatten)]
+    pub counts: Counts,
+}
+
+/// A rack's positions against the dimming factor.
+#[derive(Debug, Clone, PartialEq, serde::Serialize)]
+pub struct RackDimming {
+    /// Rack id.
+    pub rack: String,
+    /// Its positions.
+    pub positions: usize,
+    /// The guidance bounds compared.
+    pub bounds: RackBounds,
+    /// One point per factor asked for, in order.
+    pub points: Vec<DimmingPoint>,
+}
+
+/// Every rack of `plan` with a guidance range, counted at each of `factors` on every luminaire
+/// (dimming scales the light phase only, readings included): the summary pass gathers each
+/// rack's lux values, sorted once, then each factor is two binary searches ([`counts`]).
+pub fn dimming(plan: &crate::housing::pass::Plan, factors: &[f64]) -> Vec<RackDimming> {
+    let sums = crate::housing::summary::summarise(plan);
+    plan.room
+        .racks
+        .iter()
+        .zip(&plan.racks)
+        .zip(sums)
+        .filter(|((_, rp), _)| rp.bounds.lower.is_some() || rp.bounds.upper.is_some())
+        .map(|((r, rp), (_, data))| {
+            let e = sorted_lux(data.lux);
+            let points =
+                factors.iter().map(|&factor| DimmingPoint { factor, counts: counts(&e, &rp.bounds, factor) });
+            RackDimming { rack: r.id.clone(), positions: rp.len, bounds: rp.bounds, points: points.collect() }
+        })
+        .collect()
+}
+
 /// The lever of a rack from the summary pass's `data`, when the rack has guidance bounds.
 pub fn lever(b: &RackBounds, mut data: LeverData) -> Option<Lever> {
     if b.lower.is_none() && b.upper.is_none() {
         return None;
     }
-    // Non-negative floats order as their bit patterns: an integer sort, in place (the maps
-    // below reuse the vector's memory), racks in parallel.
-    let mut bits: Vec<u64> = std::mem::take(&mut data.lux).into_iter().map(f64::to_bits).collect();
-    bits.sort_unstable();
-    let sorted: Vec<f64> = bits.into_iter().map(f64::from_bits).collect();
+    // Racks are levered in parallel; each sorts its own values.
+    let sorted = sorted_lux(std::mem::take(&mut data.lux));
     let e = &sorted;
     let lo = b.lower.map_or(f64::NEG_INFINITY, |l| l.lx);
     let hi = b.upper.map_or(f64::INFINITY, |u| u.lx);
-    let count_in = |f: f64| e.partition_point(|v| v * f <= hi) - e.partition_point(|v| v * f < lo);
     let factor = best_factor(e, b);
-    let below = e.partition_point(|v| v * factor < lo);
-    let above = e.len() - e.partition_point(|v| v * factor <= hi);
+    let at = counts(e, b, factor);
     let mut worst: Vec<StayOut> = Vec::new();
     for &(v, index) in data.lowest.iter().filter(|x| x.0 * factor < lo) {
         worst.push(StayOut { index, lux: v * factor, needs: lo / (v * factor) });
@@ -166,16 +234,16 @@ pub fn lever(b: &RackBounds, mut data: LeverData) -> Option<Lever> {
     let (mn, mx) = (e.first().copied().unwrap_or(0.0), e.last().copied().unwrap_or(0.0));
     Some(Lever {
         factor,
-        in_range_now: count_in(1.0),
-        in_range_after: e.len() - below - above,
-        stay_below: below,
-        stay_above: above,
+        in_range_now: counts(e, b, 1.0).in_range,
+        in_range_after: at.in_range,
+        stay_below: at.below,
+        stay_above: at.above,
         worst,
         spread: if mn > 0.0 { mx / mn } else { f64::INFINITY },
         range_ratio: hi / b.lower.map_or(0.0, |l| l.lx),
         dimming: (0..DIMMING_POINTS)
             .map(|k| 10f64.powf(-1.0 + 2.0 * k as f64 / (DIMMING_POINTS - 1) as f64))
-            .map(|f| (f, count_in(f)))
+            .map(|f| (f, counts(e, b, f).in_range))
             .collect(),
     })
 }

@@ -5,6 +5,7 @@ use std::fmt::Write;
 
 use retidose::assess::Assessment;
 use retidose::housing::survey::RoomResult;
+use retidose::scenario::file::Scenario;
 
 use super::room::{animals, rack_cells, rack_sentences, room_sentences};
 use retidose::base::quantity::SiValue;
@@ -20,18 +21,19 @@ use super::{
 /// The document head with its style sheet.
 const HEAD: &str = "<!DOCTYPE html><html lang=\"en\"><head><meta charset=\"utf-8\"><title>retidose assessment</title><style>body{font-family:sans-serif;max-width:980px;margin:2em auto;padding:0 1em;color:#222}table{border-collapse:collapse;margin:.5em 0}td,th{border:1px solid #bbb;padding:3px 7px;font-size:13px}th{background:#eee}.caution{background:#fff4e5;border-left:4px solid #e65100;padding:.4em .8em}.flag{color:#b71c1c;font-weight:bold}svg{max-width:100%;background:#fafafa;margin:.6em 0}</style></head><body>";
 
-/// One self-contained HTML file with inline SVG plots.
-pub fn assessment(all: &[Assessment]) -> String {
+/// One self-contained HTML file with inline SVG plots; `scenarios` are the resolved scenarios of
+/// `all`, in order (figures that re-run the library on a source need them).
+pub fn assessment(all: &[Assessment], scenarios: &[Scenario]) -> String {
     let mut o = String::from(HEAD);
-    for a in all {
-        section(&mut o, a);
+    for (a, s) in all.iter().zip(scenarios) {
+        section(&mut o, a, s);
     }
     o.push_str("</body></html>\n");
     o
 }
 
 /// One assessment, section by section.
-fn section(o: &mut String, a: &Assessment) {
+fn section(o: &mut String, a: &Assessment, s: &Scenario) {
     let _ = write!(o, "<section><h1>{}</h1>", esc(&a.title));
     if let Some(d) = &a.description {
         let _ = write!(o, "<p>{}</p>", esc(d));
@@ -59,7 +61,7 @@ fn section(o: &mut String, a: &Assessment) {
         o.push_str(&svg::bleach(a).map_or_else(String::new, |f| svg::html(&f)));
     }
     if !a.limits.is_empty() {
-        limits(o, a);
+        limits(o, a, s);
     }
     if !a.guidance.is_empty() {
         guidance(o, a);
@@ -153,7 +155,7 @@ fn pigment(o: &mut String, b: &BleachReport) {
 
 /// Every hazard ratio in one figure, then per limits check its table and t_max against distance
 /// (or why that figure is not drawn).
-fn limits(o: &mut String, a: &Assessment) {
+fn limits(o: &mut String, a: &Assessment, s: &Scenario) {
     o.push_str("<h2>Exposure limits</h2>");
     if let Some(f) = svg::hazard_ratios(a) {
         o.push_str(&svg::html(&f));
@@ -161,7 +163,7 @@ fn limits(o: &mut String, a: &Assessment) {
     for l in &a.limits {
         let src = &l.source;
         limits_table(o, src, l);
-        match svg::t_max_distance(a, l) {
+        match svg::t_max_distance(s, l) {
             Ok(f) => o.push_str(&svg::html(&f)),
             Err(why) => {
                 let _ = write!(o, "<p><i>{}</i></p>", esc(&why));
@@ -275,6 +277,7 @@ fn room(o: &mut String, a: &Assessment, room: &RoomResult) {
         if let Some(f) = c.as_ref().and_then(|c| svg::heatmap(r, c)) {
             o.push_str(&svg::html(&f));
         }
+        o.push_str(&svg::dimming::rack(r).map_or_else(String::new, |f| svg::html(&f)));
     }
 }
 

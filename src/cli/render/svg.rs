@@ -15,6 +15,7 @@ use super::html::esc;
 use super::room::Cell;
 
 pub use plot::Figure;
+pub use plot::{dimming, sweep as sweep_figures};
 
 /// Every source's spectral irradiance at the eye, with the weightings of the subject's species.
 pub fn spectrum(a: &Assessment) -> Option<Figure> {
@@ -44,8 +45,11 @@ pub fn hazard_ratios(a: &Assessment) -> Option<Figure> {
 
 /// t_max of each hazard of one limits check against the distance from the source, or why it
 /// cannot be drawn, in words.
-pub fn t_max_distance(a: &Assessment, l: &LimitsAssessment) -> Result<Figure, String> {
-    plot::distance::figure(a, l)
+pub fn t_max_distance(
+    s: &retidose::scenario::file::Scenario,
+    l: &LimitsAssessment,
+) -> Result<Figure, String> {
+    plot::distance::figure(s, l)
 }
 
 /// A rack as a heat map of room light at cage level.

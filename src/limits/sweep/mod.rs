@@ -1,7 +1,9 @@
 //! One source moved along its axis: every hazard of a limit set at each of many distances
 //! ([`sweep_distance`]), the nearest distance at which each hazard and each IEC 62471 risk group
 //! is met ([`solve_nearest_distance`]), and the longest exposure within every limit at the placed
-//! distance ([`solve_longest_duration`]).
+//! distance ([`solve_longest_duration`]). With the source where it is placed, [`sweep_duration`],
+//! [`sweep_level`] and [`sweep_transmittance`] vary the exposure duration, a factor on the
+//! source's light and a neutral filter's transmittance.
 //!
 //! The source is made movable as the risk-group classification makes it
 //! ([`super::report::movable_source`]): a spectral intensity I (a measured irradiance becomes
@@ -18,6 +20,13 @@
 //! point equals an assessment with the source placed at that distance. The hazards' weighted
 //! integrals are taken again at each distance (the engine takes a spectrum, not a weighted
 //! sum); the light path (placing and filtering) is not.
+
+mod placed;
+
+pub use placed::{
+    DurationPoint, LevelPoint, TransmittancePoint, log_durations, log_factors, sweep_duration, sweep_level,
+    sweep_transmittance,
+};
 
 use std::f64::consts::PI;
 
@@ -38,7 +47,7 @@ pub const SOLVE_TOLERANCE: f64 = 1e-6;
 /// change from exceeding to within.
 pub const SCAN_POINTS: usize = 64;
 
-/// The most distances [`log_distances`] makes.
+/// The most points a sweep's grid ([`log_distances`], [`log_durations`], [`log_factors`]) makes.
 pub const MAX_POINTS: usize = 100_000;
 
 /// The longest permissible exposure duration t_max of a hazard.
@@ -269,19 +278,31 @@ fn hazard_group(h: &Hazard, rg: &RiskGroupBases, a: &Arrival) -> Grouped {
 /// # Errors
 /// [`crate::ErrorKind::InvalidInput`] unless 0 < from < to (finite) and 1 ≤ points ≤ [`MAX_POINTS`].
 pub fn log_distances(from: Length, to: Length, points: usize) -> Result<Vec<Length>> {
-    let (a_m, b_m) = (from.si(), to.si());
-    if !(a_m > 0.0 && b_m.is_finite() && a_m < b_m) {
-        return Err(Error::input(format!("distances must satisfy 0 m < from < to, not {a_m} m to {b_m} m")));
+    Ok(log_grid(from.si(), to.si(), points, "distances", " m")?.into_iter().map(Length::from_si).collect())
+}
+
+/// `points` values from `a` to `b` (in `unit`, with its leading space), evenly spaced in log:
+/// xᵢ = 10^(lg a + (lg b − lg a)·i/(points − 1)), the ends exactly `a` and `b` (so a power of ten
+/// on the grid, such as a factor of 1 from 0.1 to 10, is exact); one point is `a` alone.
+fn log_grid(a: f64, b: f64, points: usize, what: &str, unit: &str) -> Result<Vec<f64>> {
+    if !(a > 0.0 && b.is_finite() && a < b) {
+        return Err(Error::input(format!(
+            "{what} must satisfy 0{unit} < from < to, not {a}{unit} to {b}{unit}"
+        )));
     }
     if !(1..=MAX_POINTS).contains(&points) {
         return Err(Error::input(format!("the number of points must be 1 to {MAX_POINTS}, not {points}")));
     }
     if points == 1 {
-        return Ok(vec![from]);
+        return Ok(vec![a]);
     }
-    let step = (b_m / a_m).ln() / (points - 1) as f64;
+    let (la, lb, last) = (a.log10(), b.log10(), (points - 1) as f64);
     Ok((0..points)
-        .map(|i| Length::from_si(if i + 1 == points { b_m } else { a_m * (step * i as f64).exp() }))
+        .map(|i| match i {
+            0 => a,
+            _ if i + 1 == points => b,
+            _ => 10f64.powf(la + (lb - la) * i as f64 / last),
+        })
         .collect())
 }
 

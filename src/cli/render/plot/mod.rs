@@ -7,10 +7,12 @@
 //! (for its own label areas), so every margin here is set explicitly, with room to spare.
 
 pub mod bleach;
+pub mod dimming;
 pub mod distance;
 pub mod hazards;
 pub mod heatmap;
 pub mod spectrum;
+pub mod sweep;
 pub mod threshold;
 
 use plotters::coord::Shift;
