@@ -150,7 +150,12 @@ impl Pigment {
     /// [`crate::ErrorKind::InvalidInput`] for an unknown name, a bad unit, or a value outside the
     /// physical range (τ₀, v, K_m, Q_e, N must be above 0).
     pub fn override_param(&mut self, name: &str, value: &str) -> Result<()> {
-        let user = |v| Param { value: v, status: Status::Confirmed, source: "given by the user".to_string() };
+        let user = |v| Param {
+            value: v,
+            status: Status::Confirmed,
+            source: "given by the user".to_string(),
+            spread: None,
+        };
         let positive = |x: f64, what: &str| -> Result<f64> {
             if x > 0.0 && x.is_finite() {
                 Ok(x)
@@ -166,12 +171,22 @@ impl Pigment {
             "tau0" => {
                 let t = parse_time(value)?;
                 positive(t.si(), "tau0")?;
-                self.tau0 = Param { value: t, status: Status::Confirmed, source: "given by the user".into() };
+                self.tau0 = Param {
+                    value: t,
+                    status: Status::Confirmed,
+                    source: "given by the user".into(),
+                    spread: None,
+                };
             }
             "v" => {
                 let v = parse_rate(value)?;
                 positive(v.si(), "v")?;
-                self.v = Param { value: v, status: Status::Confirmed, source: "given by the user".into() };
+                self.v = Param {
+                    value: v,
+                    status: Status::Confirmed,
+                    source: "given by the user".into(),
+                    spread: None,
+                };
             }
             "k_m" => self.k_m = user(positive(parse_number(value)?, "k_m")?),
             other => {
@@ -423,7 +438,7 @@ pub struct RodResponseParams {
 }
 
 /// A parameter read from `at` ("file: key 'name'"), through the eye module's shared reader.
-fn param<T>(p: &RawParam, at: &str, parse: impl Fn(&str) -> Result<T>) -> Result<Param<T>> {
+fn param<T: PartialOrd>(p: &RawParam, at: &str, parse: impl Fn(&str) -> Result<T>) -> Result<Param<T>> {
     crate::retina::eye::read_param(p, at, parse)
 }
 

@@ -101,10 +101,40 @@ pub struct Param<T> {
     pub status: Status,
     /// Where it comes from.
     pub source: String,
+    /// Its default range, for the uncertainty of the figures it enters (every "from memory"
+    /// value of the built-in files has one).
+    pub spread: Option<Spread<T>>,
+}
+
+/// The distribution a parameter is drawn from when its uncertainty is propagated.
+#[derive(Debug, Clone, Copy, PartialEq)]
+pub enum Distribution<T> {
+    /// Uniform between two values (the value lies between them): `range = ["lo", "hi"]`.
+    Uniform {
+        /// Lower end.
+        low: T,
+        /// Upper end.
+        high: T,
+    },
+    /// Normal about the value with this relative standard uncertainty: `u_rel = 0.1`.
+    Normal {
+        /// Relative standard uncertainty (0.1 for 10 %).
+        relative: f64,
+    },
+}
+
+/// A parameter's default range and why.
+#[derive(Debug, Clone, PartialEq)]
+pub struct Spread<T> {
+    /// The distribution.
+    pub distribution: Distribution<T>,
+    /// Its basis in words (`range_basis` in the file).
+    pub basis: String,
 }
 
 /// Spectral transmittance of the ocular media.
 #[derive(Debug, Clone, PartialEq)]
+#[allow(clippy::large_enum_variant, reason = "one per eye model; boxing would gain nothing")]
 pub enum Media {
     /// van de Kraats & van Norren (2007) age model (human), at the subject's age.
     HumanAge {
@@ -283,16 +313,14 @@ fn key_at(origin: &str, key: &str) -> String {
 
 /// A parameter whose value is a length within `lo`–`hi` (m).
 fn length_param(p: &RawParam, key: &str, origin: &str, (lo, hi): (f64, f64)) -> Result<Param<Length>> {
-    let out = convert(p, key, origin, parse_length)?;
-    within(out.value.si(), (lo, hi), key, origin, |v| format!("{} mm", v * 1e3))?;
-    Ok(out)
+    convert(p, key, origin, parse_length, |v| {
+        within(v.si(), (lo, hi), key, origin, |v| format!("{} mm", v * 1e3))
+    })
 }
 
 /// A parameter whose value is a plain number within `lo`–`hi`.
 fn number_param(p: &RawParam, key: &str, origin: &str, (lo, hi): (f64, f64)) -> Result<Param<f64>> {
-    let out = convert(p, key, origin, parse_number)?;
-    within(out.value, (lo, hi), key, origin, |v| format!("{v}"))?;
-    Ok(out)
+    convert(p, key, origin, parse_number, |v| within(*v, (lo, hi), key, origin, |v| format!("{v}")))
 }
 
 /// Checks that `v` lies in (lo, hi] (above `lo`, at most `hi`), naming the physical range.
@@ -385,9 +413,9 @@ fn parse_receptor(r: &RawReceptor, i: usize, origin: &str) -> Result<Receptor> {
 
 /// A receptor's collecting aperture, above 0 and at most 1000 µm².
 fn aperture(r: &RawReceptor, key: &str, origin: &str) -> Result<Param<crate::base::quantity::Area>> {
-    let out = convert(&r.aperture_area, key, origin, parse_area)?;
-    within(out.value.si(), (0.0, 1e-9), key, origin, |v| format!("{} µm²", v * 1e12))?;
-    Ok(out)
+    convert(&r.aperture_area, key, origin, parse_area, |v| {
+        within(v.si(), (0.0, 1e-9), key, origin, |v| format!("{} µm²", v * 1e12))
+    })
 }
 
 /// The `[pupil]` table.
@@ -413,23 +441,91 @@ fn parse_iris(i: &RawIris, origin: &str) -> Result<Iris> {
     })
 }
 
-fn convert<T>(p: &RawParam, key: &str, origin: &str, parse: impl Fn(&str) -> Result<T>) -> Result<Param<T>> {
-    read_param(p, &format!("{origin}: key '{key}'"), parse)
+/// A parameter whose value passes `check` (its physical range) before its default range is read.
+fn convert<T: PartialOrd>(
+    p: &RawParam,
+    key: &str,
+    origin: &str,
+    parse: impl Fn(&str) -> Result<T>,
+    check: impl Fn(&T) -> Result<()>,
+) -> Result<Param<T>> {
+    read_checked(p, &format!("{origin}: key '{key}'"), parse, check)
 }
 
-/// Reads a `{ value, status, source }` parameter; `at` names the file and key in errors.
+/// Reads a `{ value, status, source }` parameter, with its optional default range (`range =
+/// ["lo", "hi"]` uniform or `u_rel = 0.1` normal, and `range_basis`); `at` names the file and
+/// key in errors.
 ///
 /// # Errors
-/// [`crate::ErrorKind::InvalidData`] for a value that does not parse or an unknown status.
-pub(crate) fn read_param<T>(p: &RawParam, at: &str, parse: impl Fn(&str) -> Result<T>) -> Result<Param<T>> {
+/// [`crate::ErrorKind::InvalidData`] for a value that does not parse, an unknown status, or a
+/// range without its basis, not around the value, or with a relative uncertainty outside (0, 0.25].
+pub(crate) fn read_param<T: PartialOrd>(
+    p: &RawParam,
+    at: &str,
+    parse: impl Fn(&str) -> Result<T>,
+) -> Result<Param<T>> {
+    read_checked(p, at, parse, |_| Ok(()))
+}
+
+/// [`read_param`] with the value passed through `check` before its status and range are read.
+fn read_checked<T: PartialOrd>(
+    p: &RawParam,
+    at: &str,
+    parse: impl Fn(&str) -> Result<T>,
+    check: impl Fn(&T) -> Result<()>,
+) -> Result<Param<T>> {
     let value = parse(&p.value).map_err(|e| Error::data(format!("{at}: {e}")))?;
+    check(&value)?;
     let status = Status::parse(&p.status).ok_or_else(|| {
         Error::data(format!(
             "{at}: unknown status '{}'; expected confirmed, derived, from memory or common practice, no source",
             p.status
         ))
     })?;
-    Ok(Param { value, status, source: p.source.clone() })
+    let spread = read_spread(p, at, &value, &parse)?;
+    Ok(Param { value, status, source: p.source.clone(), spread })
+}
+
+/// The optional default range of a parameter (see [`read_param`]).
+fn read_spread<T: PartialOrd>(
+    p: &RawParam,
+    at: &str,
+    value: &T,
+    parse: &impl Fn(&str) -> Result<T>,
+) -> Result<Option<Spread<T>>> {
+    let distribution = match (&p.range, p.u_rel) {
+        (None, None) => return Ok(None),
+        (Some(_), Some(_)) => {
+            return Err(Error::data(format!(
+                "{at}: give either range = [\"lo\", \"hi\"] or u_rel, not both"
+            )));
+        }
+        (Some([lo, hi]), None) => {
+            let low = parse(lo).map_err(|e| Error::data(format!("{at}: range: {e}")))?;
+            let high = parse(hi).map_err(|e| Error::data(format!("{at}: range: {e}")))?;
+            if !(low <= *value && *value <= high && low < high) {
+                return Err(Error::data(format!(
+                    "{at}: range [\"{lo}\", \"{hi}\"] must hold the value \"{}\" with lo below hi",
+                    p.value
+                )));
+            }
+            Distribution::Uniform { low, high }
+        }
+        (None, Some(u)) => {
+            if !(u > 0.0 && u <= 0.25) {
+                return Err(Error::data(format!(
+                    "{at}: u_rel = {u} must be above 0 and at most 0.25 (a relative standard uncertainty)"
+                )));
+            }
+            Distribution::Normal { relative: u }
+        }
+    };
+    let basis = p.range_basis.clone().filter(|b| !b.trim().is_empty()).ok_or_else(|| {
+        Error::data(format!(
+            "{at}: a range needs range_basis, its basis in words (\"common practice, no source\")"
+        ))
+    })?;
+    Ok(Some(Spread { distribution, basis }))
 }
 
 #[derive(Deserialize)]
@@ -453,6 +549,9 @@ pub(crate) struct RawParam {
     value: String,
     status: String,
     source: String,
+    range: Option<[String; 2]>,
+    u_rel: Option<f64>,
+    range_basis: Option<String>,
 }
 
 #[derive(Deserialize)]
@@ -553,6 +652,35 @@ mod tests {
         let text =
             include_str!("../data/eyes/mouse.toml").replace("status = \"confirmed\"", "status = \"sure\"");
         assert!(Eye::from_toml(&text, "m.toml").unwrap_err().message().contains("unknown status 'sure'"));
+    }
+
+    #[test]
+    fn default_ranges_are_read_and_checked() {
+        let h = builtin_eye(Species::Human);
+        let qe = &h.receptor("rod").unwrap().quantum_efficiency;
+        // human.toml: range = ["0.64", "0.67"] about 0.67, uniform.
+        assert_eq!(qe.spread.as_ref().unwrap().distribution, Distribution::Uniform { low: 0.64, high: 0.67 });
+        let base = include_str!("../data/eyes/mouse.toml");
+        for (from, to, why) in [
+            ("range = [\"0.7\", \"0.9\"]", "range = [\"0.85\", \"0.9\"]", "must hold the value"),
+            ("range = [\"0.7\", \"0.9\"], ", "u_rel = 0.1, range = [\"0.7\", \"0.9\"], ", "not both"),
+            ("range = [\"0.7\", \"0.9\"], ", "u_rel = 0.5, ", "at most 0.25"),
+            ("range_basis = \"±0.1 about an assumed", "source2 = \"", "unknown field"),
+        ] {
+            assert!(base.contains(from), "{from}");
+            let err = Eye::from_toml(&base.replacen(from, to, 1), "m.toml").unwrap_err();
+            assert!(err.message().contains(why), "{to}: {err}");
+        }
+        let text = base.replacen(
+            ", range_basis = \"±0.1 about an assumed visible transmittance, common practice, no source\"",
+            "",
+            1,
+        );
+        let err = Eye::from_toml(&text, "m.toml").unwrap_err();
+        assert!(
+            err.message().contains("key 'media.plateau'") && err.message().contains("range_basis"),
+            "{err}"
+        );
     }
 
     #[test]
