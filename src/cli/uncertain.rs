@@ -6,7 +6,11 @@ use clap::{Args, ValueEnum};
 use retidose::base::quantity::{Length, SiValue};
 use retidose::base::units;
 use retidose::limits::report::LimitsRequest;
-use retidose::uncertainty::{Input, InputUncertainties, MAX_DRAWS, UncertaintyReport, assess_uncertainty};
+use retidose::uncertainty::figures::Summary;
+use retidose::uncertainty::{
+    BLEACH_DRAWS, FigureUncertainty, FiguresReport, FiguresRequest, Input, InputUncertainties, MAX_DRAWS,
+    UncertaintyReport, assess_figures, assess_uncertainty,
+};
 
 use super::Output;
 use super::render::terminal::{Page, Table, width};
@@ -22,14 +26,21 @@ enters no corneal limit and is reported with a share of 0. --set and --for defau
 scenario's [limits].
 The interval is the probabilistically symmetric 95 % coverage interval (2.5 % and 97.5 %
 quantiles of the draws); shares are one-at-a-time variances, normalised to 100 %.
-CSV columns: hazard, nominal, mean, standard_uncertainty, low_95, high_95, p_exceed, decision,
-share_reading, share_distance, share_size, share_tilt, share_pupil, draws, seed.
+CSV columns (--figures limits): hazard, nominal, mean, standard_uncertainty, low_95, high_95,
+p_exceed, decision, share_reading, share_distance, share_size, share_tilt, share_pupil, draws,
+seed. With retina or bleach figures, one row per figure and input: section, figure, unit,
+nominal, mean, standard_uncertainty, low_95, high_95, input, share, draws, seed.
+--figures retina and bleach also draw every from-memory eye and pigment parameter from the
+default range in its data file (--declared-only leaves them out); human scenarios also get the
+recommended rod R*/rod/s with its spread between the routes.
 
 Examples:
   retidose assess --example stimulus-review > s.toml
   retidose uncertainty s.toml --source stimulus --set iec62471-2006 --reading 5% \\
       --distance \"5 mm\" --size \"0.5 mm\" --tilt 3%
-  retidose uncertainty s.toml --source stimulus --reading 10% --draws 1000000 --seed 7 --format csv";
+  retidose uncertainty s.toml --source stimulus --reading 10% --draws 1000000 --seed 7 --format csv
+  retidose assess --example dark-adaptation > d.toml
+  retidose uncertainty d.toml --figures retina --reading 5% --pupil \"0.3 mm\"";
 
 #[derive(Debug, Args)]
 pub struct UncertaintyArgs {
@@ -66,9 +77,42 @@ pub struct UncertaintyArgs {
     /// Seed of the generator (the same seed gives the same output)
     #[arg(long, value_name = "N", default_value_t = 1)]
     seed: u64,
+    /// Which figures: limits, retina, bleach or all (default: what the scenario has)
+    #[arg(long, value_enum, value_name = "WHICH")]
+    figures: Option<Which>,
+    /// Leave the from-memory parameters at their values (draw only the declared inputs)
+    #[arg(long)]
+    declared_only: bool,
+    /// Number of Monte Carlo draws of the bleach figures
+    #[arg(long, value_name = "N", default_value_t = BLEACH_DRAWS)]
+    bleach_draws: usize,
     /// Output format
     #[arg(long, value_enum, default_value_t = UncertaintyFormat::Table)]
     format: UncertaintyFormat,
+}
+
+/// The figures `retidose uncertainty` can give.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, ValueEnum)]
+pub enum Which {
+    /// The limit ratios
+    Limits,
+    /// Trolands, rod R*/rod/s and melanopic EDI of the source
+    Retina,
+    /// Peak bleached fraction and time to 90 % regenerated of the schedule
+    Bleach,
+    /// Every figure
+    All,
+}
+
+/// The whole output: the limit ratios and the figures (JSON schema retidose.uncertainty/2).
+/// The limit ratios' fields stay at the top level, as in retidose.uncertainty/1.
+#[derive(Debug, serde::Serialize)]
+struct Both {
+    #[serde(flatten)]
+    limits: Option<UncertaintyReport>,
+    figures: Option<FiguresReport>,
+    /// Figures the scenario has that could not be sampled, with the reason.
+    skipped: Vec<String>,
 }
 
 /// The formats of `retidose uncertainty`.
@@ -76,7 +120,7 @@ pub struct UncertaintyArgs {
 pub enum UncertaintyFormat {
     /// A table for the terminal
     Table,
-    /// JSON (schema retidose.uncertainty/1)
+    /// JSON (schema retidose.uncertainty/2)
     Json,
     /// One CSV row per hazard
     Csv,
@@ -84,29 +128,96 @@ pub enum UncertaintyFormat {
 
 /// Runs `retidose uncertainty`.
 pub fn run(a: UncertaintyArgs) -> Result<Output> {
-    let super::sweep::Chosen { scenario: s, index, set, duration } =
-        super::sweep::choose(&a.scenario, a.source.as_deref(), a.set.as_deref(), a.duration.as_deref())?;
-    let limits = s.limits.as_ref();
+    let text = std::fs::read_to_string(&a.scenario)
+        .with_context(|| format!("cannot read the scenario {}", a.scenario))?;
+    let s = retidose::assess::parse_scenario_file(
+        &text,
+        &a.scenario,
+        std::path::Path::new(&a.scenario).parent(),
+    )?;
+    let index = super::sweep::source_index(&s, a.source.as_deref())?;
     if !(1 < a.draws && a.draws <= MAX_DRAWS) {
         bail!("--draws must be 2 to {MAX_DRAWS}, such as 100000, not {}", a.draws);
     }
+    if !(1 < a.bleach_draws && a.bleach_draws <= MAX_DRAWS) {
+        bail!("--bleach-draws must be 2 to {MAX_DRAWS}, such as 10000, not {}", a.bleach_draws);
+    }
     let inputs = inputs(&a)?;
+    let explicit = a.figures.is_some();
+    let which = a.figures.unwrap_or(Which::All);
+    let wants = |w: Which| which == w || which == Which::All;
+    let mut both = Both { limits: None, figures: None, skipped: Vec::new() };
+    // Unless asked for by name, figures the source cannot give are skipped with the reason; a
+    // bad flag is always an error.
+    let mut fail = |what: &str, e: anyhow::Error| -> Result<()> {
+        let text = format!("{e:#}");
+        if (explicit && which != Which::All)
+            || !(text.starts_with("the source") || text.starts_with("the chosen source"))
+        {
+            return Err(e);
+        }
+        both.skipped.push(format!("{what}: {text}"));
+        Ok(())
+    };
+    if wants(Which::Limits) && (explicit || s.limits.is_some()) {
+        match limits(&a, &inputs) {
+            Ok(r) => both.limits = Some(r),
+            Err(e) => fail("limit ratios", e)?,
+        }
+    }
+    let retina = wants(Which::Retina);
+    let bleach = wants(Which::Bleach) && (explicit || s.schedule.is_some());
+    if retina || bleach {
+        let req = FiguresRequest {
+            scenario: &s,
+            index,
+            inputs: &inputs,
+            parameters: !a.declared_only,
+            retina_draws: retina.then_some(a.draws),
+            bleach_draws: bleach.then_some(a.bleach_draws),
+            seed: a.seed,
+        };
+        match assess_figures(&req) {
+            Ok(f) => both.figures = Some(f),
+            Err(e) => fail("retina and bleach figures", flagged(e.message()))?,
+        }
+    }
+    if both.limits.is_none() && both.figures.is_none() {
+        bail!("nothing to sample: {}", both.skipped.join("; "));
+    }
+    let id = &s.source_ids[index];
+    let text = match (a.format, &both) {
+        (UncertaintyFormat::Table, b) => {
+            let mut t = b.limits.as_ref().map(|r| table(r, id)).unwrap_or_default();
+            if let Some(f) = &b.figures {
+                t.push_str(&figures_table(f, id, &inputs));
+            }
+            for n in &b.skipped {
+                t.push_str(&format!("not sampled: {n}\n"));
+            }
+            t
+        }
+        (UncertaintyFormat::Csv, Both { limits: Some(r), figures: None, .. }) => csv(r)?,
+        (UncertaintyFormat::Csv, b) => long_csv(b, a.seed)?,
+        (UncertaintyFormat::Json, b) => super::render::json::with_schema("retidose.uncertainty/2", b)?,
+    };
+    Ok(Output { text, status: 0 })
+}
+
+/// The limit ratios' Monte Carlo, with the set and duration settled as for `retidose sweep`.
+fn limits(a: &UncertaintyArgs, inputs: &InputUncertainties) -> Result<UncertaintyReport> {
+    let super::sweep::Chosen { scenario: s, index, set, duration } =
+        super::sweep::choose(&a.scenario, a.source.as_deref(), a.set.as_deref(), a.duration.as_deref())?;
     let r = LimitsRequest {
         source: &s.view.sources[index],
         filters: &s.view.filters,
         set,
         duration,
-        aphakic: limits.is_some_and(|l| l.aphakic),
+        aphakic: s.limits.as_ref().is_some_and(|l| l.aphakic),
         classify: None,
         only: &[],
     };
-    let report = assess_uncertainty(&r, &inputs, a.draws, a.seed).map_err(|e| flagged(e.message()))?;
-    let text = match a.format {
-        UncertaintyFormat::Table => table(&report, &s.source_ids[index]),
-        UncertaintyFormat::Csv => csv(&report)?,
-        UncertaintyFormat::Json => super::render::json::with_schema("retidose.uncertainty/1", &report)?,
-    };
-    Ok(Output { text, status: 0 })
+    assess_uncertainty(&r, inputs, a.draws, a.seed).map_err(|e| flagged(e.message()))
 }
 
 /// The library's error on an input, with the flag that gave it.
@@ -263,6 +374,178 @@ fn csv(r: &UncertaintyReport) -> Result<String> {
         row.extend(h.shares.iter().map(|(_, s)| real(*s)));
         row.extend([r.draws.to_string(), r.seed.to_string()]);
         w.write_record(&row)?;
+    }
+    Ok(String::from_utf8(w.into_inner()?)?)
+}
+
+/// A figure's value with its unit.
+fn with_unit(v: f64, unit: &str) -> String {
+    if unit.is_empty() { num(v) } else { format!("{} {unit}", num(v)) }
+}
+
+/// A figure's value, or "not reached".
+fn maybe(v: Option<f64>, unit: &str) -> String {
+    v.map_or("not reached".into(), |v| with_unit(v, unit))
+}
+
+/// The retina and bleach figures as text for the terminal.
+fn figures_table(f: &FiguresReport, id: &str, u: &InputUncertainties) -> String {
+    let mut p = Page::new(width(), false);
+    p.para(&format!("Uncertainty of the retina, bleach and room figures: source {id}"), "");
+    p.para(
+        &format!(
+            "Declared (standard uncertainties, normal): reading {}, distance {}, size {}, spectral tilt {} per 100 nm, \
+             pupil {}; from-memory parameters {}",
+            percent(u.reading_relative),
+            mm(u.distance),
+            mm(u.size),
+            percent(u.tilt_relative),
+            mm(u.pupil),
+            if f.parameters { "drawn from their default ranges (--declared-only leaves them out)" } else { "at their values" }
+        ),
+        "",
+    );
+    p.para(
+        &format!(
+            "Monte Carlo (JCGM 101): {} draws of the retina figures, {} of the bleach figures",
+            f.retina_draws, f.bleach_draws
+        ),
+        "",
+    );
+    for (title, list) in [("retina", &f.retina), ("bleach", &f.bleach), ("room (reading only)", &f.room)] {
+        if list.is_empty() {
+            continue;
+        }
+        p.blank();
+        let mut t = Table::new(&[title, "value", "mean ± u", "95 % interval", "largest shares"]);
+        for x in list.iter() {
+            t.row(figure_row(x));
+        }
+        p.table(&t);
+    }
+    if let Some(r) = &f.rod_rate {
+        rod_rate_lines(&mut p, r);
+    }
+    p.blank();
+    p.para("Inputs drawn:", "");
+    for i in &f.inputs {
+        p.para(&format!("{}: {}", i.input.text(), i.basis), "  ");
+    }
+    for n in &f.notes {
+        p.para(n, "  ");
+    }
+    p.finish()
+}
+
+/// One figure's table row.
+fn figure_row(x: &FigureUncertainty) -> Vec<String> {
+    let s: &Summary = &x.summary;
+    let mut shares: Vec<_> = s.shares.iter().filter(|(_, v)| *v >= 0.005).collect();
+    shares.sort_by(|a, b| b.1.total_cmp(&a.1));
+    let top: Vec<String> =
+        shares.iter().take(3).map(|(i, v)| format!("{} {}", i.text(), percent(*v))).collect();
+    vec![
+        x.figure.name(),
+        with_unit(s.nominal, x.unit),
+        match (s.mean, s.standard_uncertainty) {
+            (Some(m), Some(u)) => format!("{} ± {}", num(m), with_unit(u, x.unit)),
+            _ => format!("{} of the draws not reached", s.unreached_draws),
+        },
+        format!("{} – {}", maybe(s.interval.0, x.unit), maybe(s.interval.1, x.unit)),
+        if top.is_empty() { "—".into() } else { top.join(", ") },
+    ]
+}
+
+/// The recommended human rod rate and its routes.
+fn rod_rate_lines(p: &mut Page, r: &retidose::uncertainty::routes::RodRateRecommendation) {
+    p.blank();
+    p.para(&format!("Human rod R*/rod/s of {} ({} scot td), by route:", r.source, num(r.scotopic_td)), "");
+    for x in &r.routes {
+        let how = x
+            .factor
+            .map_or("spectral route".to_string(), |k| format!("{} × {} per scot td", x.route, num(k)));
+        p.para(&format!("{how}: {} R*/rod/s", num(x.rate.si())), "  ");
+    }
+    p.para(
+        &format!(
+            "recommended {} R*/rod/s, 95 % interval {} – {} (√(lowest × highest route); the routes' span read as a \
+             rectangular distribution in log); for a bleach or exposure estimate use the highest route, {} R*/rod/s \
+             (safe side)",
+            num(r.recommended.si()),
+            num(r.interval.0.si()),
+            num(r.interval.1.si()),
+            num(r.safe_side.si())
+        ),
+        "  ",
+    );
+}
+
+/// Every figure (and hazard) as long CSV: one row per figure and input.
+fn long_csv(b: &Both, seed: u64) -> Result<String> {
+    let mut w = csv::Writer::from_writer(Vec::new());
+    w.write_record([
+        "section",
+        "figure",
+        "unit",
+        "nominal",
+        "mean",
+        "standard_uncertainty",
+        "low_95",
+        "high_95",
+        "input",
+        "share",
+        "draws",
+        "seed",
+    ])?;
+    let real = |v: f64| ryu::Buffer::new().format(v).to_string();
+    let opt = |v: Option<f64>| v.map_or(String::new(), real);
+    if let Some(r) = &b.limits {
+        for h in &r.hazards {
+            for (i, sh) in &h.shares {
+                w.write_record([
+                    "limits".into(),
+                    h.id.clone(),
+                    "ratio".into(),
+                    real(h.nominal),
+                    real(h.mean),
+                    real(h.standard_uncertainty),
+                    real(h.interval.0),
+                    real(h.interval.1),
+                    i.name().into(),
+                    real(*sh),
+                    r.draws.to_string(),
+                    seed.to_string(),
+                ])?;
+            }
+        }
+    }
+    if let Some(f) = &b.figures {
+        let sections = [
+            ("retina", &f.retina, f.retina_draws),
+            ("bleach", &f.bleach, f.bleach_draws),
+            ("room", &f.room, f.retina_draws),
+        ];
+        for (section, list, n) in sections {
+            for x in list {
+                let s = &x.summary;
+                for (i, sh) in &s.shares {
+                    w.write_record([
+                        section.into(),
+                        x.figure.name(),
+                        x.unit.into(),
+                        real(s.nominal),
+                        opt(s.mean),
+                        opt(s.standard_uncertainty),
+                        opt(s.interval.0),
+                        opt(s.interval.1),
+                        i.text().into(),
+                        real(*sh),
+                        n.to_string(),
+                        seed.to_string(),
+                    ])?;
+                }
+            }
+        }
     }
     Ok(String::from_utf8(w.into_inner()?)?)
 }

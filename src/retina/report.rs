@@ -12,6 +12,7 @@ use crate::retina::optics::{Trolands, collecting_area_mm2, image_size, retinal_i
 use crate::retina::pupil::{Adaptation, Pupil, PupilRule, choose};
 use crate::spectrum::photometry::{PhotometricResult, photopic};
 use crate::spectrum::{PhotonTotal, Radiometric, Spectrum};
+use crate::uncertainty::routes::{RodRateRecommendation, recommended_rod_rate};
 use crate::weighting::alpha_opic::{AlphaOpicValue, alpha_opic};
 
 /// Everything needed to assess one viewing situation.
@@ -103,6 +104,8 @@ pub struct Retinal {
     pub image_size: Option<Length>,
     /// Photoisomerisation rate per receptor class.
     pub catch: Vec<ReceptorCatch>,
+    /// Human rod R*/rod/s: the recommended value and its spread between the routes.
+    pub rod_rate: Option<RodRateRecommendation>,
 }
 
 /// The whole assessment.
@@ -195,7 +198,7 @@ fn retinal(s: &RetinaScenario, l: &Spectrum, c: &Corneal, pupil: &Pupil, area_mm
     let spectral = retinal_irradiance(l, eye, area_mm2, s.age)?;
     let td = trolands_of(l, pupil);
     let catch = receptor_catch(l, eye, area_mm2, s.age, as_td_f64(td.scotopic));
-    Ok(Retinal {
+    let mut out = Retinal {
         irradiance: spectral
             .radiometric_total()
             .ok_or_else(|| Error::input("retinal spectrum has no scale"))?,
@@ -206,7 +209,12 @@ fn retinal(s: &RetinaScenario, l: &Spectrum, c: &Corneal, pupil: &Pupil, area_mm
         trolands: td,
         image_size: c.subtense.map(|a| image_size(eye, a.si())),
         catch,
-    })
+        rod_rate: None,
+    };
+    if eye.species == Species::Human {
+        out.rod_rate = recommended_rod_rate(l.label(), &out);
+    }
+    Ok(out)
 }
 
 /// What one source delivers: corneal totals, its own α-opic quantities and, when the seen

@@ -28,14 +28,26 @@
 //! seed (xoshiro256++ seeded by SplitMix64, Box–Muller normals), so the same seed and number
 //! of draws give the same report on any number of threads.
 
+mod bleaching;
+pub mod figures;
 pub mod model;
+mod params;
+mod retina;
 mod rng;
+mod room;
+pub mod routes;
 mod sample;
 
 use crate::base::error::{Error, Result};
 use crate::base::quantity::{Length, SiValue, Time};
 use crate::limits::report::LimitsRequest;
+use crate::scenario::file::Scenario;
+use figures::{InputName, Summary, propagate};
 use model::Model;
+use routes::RodRateRecommendation;
+
+/// Draws of the bleach figures when not told (each runs the schedule once per varied input).
+pub const BLEACH_DRAWS: usize = 10_000;
 
 /// Draws per chunk (one generator stream each).
 pub const CHUNK: usize = 8192;
@@ -252,4 +264,219 @@ pub fn assess_uncertainty(
         hazards,
         not_sampled: m.skipped,
     })
+}
+
+/// A headline figure beyond the limit ratios.
+#[derive(Debug, Clone, PartialEq, Eq, serde::Serialize)]
+#[serde(rename_all = "kebab-case")]
+pub enum Figure {
+    /// Photopic retinal illuminance, td.
+    PhotopicTrolands,
+    /// Scotopic retinal illuminance, scot td.
+    ScotopicTrolands,
+    /// Rod R*/rod/s by the spectral route.
+    RodRate,
+    /// Rod R*/rod/s by a published R*/rod/s per scotopic troland (the factor's key).
+    RodRateByFactor(String),
+    /// Melanopic EDI at the cornea (CIE S 026 for people; the species' melanopsin equivalent
+    /// daylight illuminance for rodents), lx.
+    MelanopicEdi,
+    /// Peak bleached fraction over the schedule.
+    PeakBleached,
+    /// Time to 90 % regenerated after the schedule's last lights-off, s.
+    RecoveryTo90,
+    /// Room lux at cage level of the brightest position, lx.
+    BrightestLux,
+    /// Room lux at cage level of the dimmest position, lx.
+    DimmestLux,
+    /// Positions of a rack (its id) within its guidance range.
+    InRange(String),
+}
+
+impl Figure {
+    /// Its name in reports.
+    pub fn name(&self) -> String {
+        match self {
+            Figure::PhotopicTrolands => "photopic trolands".into(),
+            Figure::ScotopicTrolands => "scotopic trolands".into(),
+            Figure::RodRate => "rod R*/rod/s (spectral)".into(),
+            Figure::RodRateByFactor(k) => format!("rod R*/rod/s ({k} factor)"),
+            Figure::MelanopicEdi => "melanopic EDI".into(),
+            Figure::PeakBleached => "peak bleached fraction".into(),
+            Figure::RecoveryTo90 => "time to 90 % regenerated".into(),
+            Figure::BrightestLux => "brightest position".into(),
+            Figure::DimmestLux => "dimmest position".into(),
+            Figure::InRange(r) => format!("{r}: positions in range"),
+        }
+    }
+
+    /// Its unit symbol.
+    pub fn unit(&self) -> &'static str {
+        match self {
+            Figure::PhotopicTrolands => "td",
+            Figure::ScotopicTrolands => "scot td",
+            Figure::RodRate | Figure::RodRateByFactor(_) => "R*/rod/s",
+            Figure::MelanopicEdi => "lx",
+            Figure::PeakBleached => "",
+            Figure::RecoveryTo90 => "s",
+            Figure::BrightestLux | Figure::DimmestLux => "lx",
+            Figure::InRange(_) => "",
+        }
+    }
+}
+
+/// One figure's distribution.
+#[derive(Debug, Clone, PartialEq, serde::Serialize)]
+pub struct FigureUncertainty {
+    /// The figure.
+    pub figure: Figure,
+    /// Its unit.
+    pub unit: &'static str,
+    /// The distribution.
+    #[serde(flatten)]
+    pub summary: Summary,
+}
+
+/// An input of the figures and its distribution in words.
+#[derive(Debug, Clone, PartialEq, serde::Serialize)]
+pub struct DrawnInput {
+    /// The input.
+    pub input: InputName,
+    /// Its value (SI; a factor of 1 for the reading and a from-memory pupil).
+    pub nominal: f64,
+    /// Its distribution and the basis.
+    pub basis: String,
+}
+
+/// What to propagate to the retina and bleach figures of one source of a scenario.
+#[derive(Debug, Clone, Copy)]
+pub struct FiguresRequest<'a> {
+    /// The scenario.
+    pub scenario: &'a Scenario,
+    /// The chosen source's index.
+    pub index: usize,
+    /// The declared inputs (of the chosen source and the pupil).
+    pub inputs: &'a InputUncertainties,
+    /// Draw the from-memory parameters from their default ranges too.
+    pub parameters: bool,
+    /// Retina figures: `Some(draws)`, or `None` to leave them out.
+    pub retina_draws: Option<usize>,
+    /// Bleach figures: `Some(draws)`, or `None` to leave them out.
+    pub bleach_draws: Option<usize>,
+    /// Master seed.
+    pub seed: u64,
+}
+
+/// The retina and bleach figures of one source.
+#[derive(Debug, Clone, PartialEq, serde::Serialize)]
+pub struct FiguresReport {
+    /// Source name.
+    pub source: String,
+    /// Whether the from-memory parameters were drawn.
+    pub parameters: bool,
+    /// Draws of the retina figures (0 when left out).
+    pub retina_draws: usize,
+    /// Draws of the bleach figures (0 when left out).
+    pub bleach_draws: usize,
+    /// Every input drawn, with its distribution.
+    pub inputs: Vec<DrawnInput>,
+    /// The retina figures.
+    pub retina: Vec<FigureUncertainty>,
+    /// The bleach figures.
+    pub bleach: Vec<FigureUncertainty>,
+    /// The room figures (with the retina figures, when the scenario has a room), from the
+    /// reading alone.
+    pub room: Vec<FigureUncertainty>,
+    /// Human rod rate: the routes, the recommended value and its spread.
+    pub rod_rate: Option<RodRateRecommendation>,
+    /// How the figures were computed, and their approximations.
+    pub notes: Vec<String>,
+}
+
+fn check_draws(n: usize) -> Result<usize> {
+    if (2..=MAX_DRAWS).contains(&n) {
+        Ok(n)
+    } else {
+        Err(Error::input(format!("the number of draws must be 2 to {MAX_DRAWS}, not {n}")))
+    }
+}
+
+fn records(figures: &[Figure], summaries: Vec<Summary>) -> Vec<FigureUncertainty> {
+    figures
+        .iter()
+        .zip(summaries)
+        .map(|(f, summary)| FigureUncertainty { figure: f.clone(), unit: f.unit(), summary })
+        .collect()
+}
+
+/// The Monte Carlo propagation of the declared inputs (and, when asked, the from-memory
+/// parameters) to the retina figures of the chosen source and the bleach figures of the
+/// scenario's schedule, and (with the retina figures) the room figures of a scenario with a room
+/// under the reading's uncertainty. The retina figures use the seed's streams 0, 1, …; the
+/// bleach figures those of the seed + 1, the room figures those of the seed + 2.
+///
+/// # Errors
+/// [`crate::ErrorKind::InvalidInput`] when the source has no retina figures, a declared
+/// uncertainty has nothing to vary, bleach figures are asked for without a schedule, or a
+/// number of draws is not 2 to [`MAX_DRAWS`]; any error of the engines.
+pub fn assess_figures(req: &FiguresRequest<'_>) -> Result<FiguresReport> {
+    let s = req.scenario;
+    let u = req.inputs;
+    check("reading", u.reading_relative, Some(1.0))?;
+    let model = retina::RetinaModel::new(&s.view, req.index, u, req.parameters)?;
+    let retina_draws = req.retina_draws.map(check_draws).transpose()?;
+    let retina = match retina_draws {
+        Some(n) => records(&model.figures, propagate(&model.vars, &model, n, req.seed)),
+        None => Vec::new(),
+    };
+    let (bleach, vars) = match req.bleach_draws.map(check_draws).transpose()? {
+        Some(n) => {
+            let b = bleaching::BleachModel::new(s, req.index, &model, req.parameters)?;
+            (records(&b.figures, propagate(&b.vars, &b, n, req.seed.wrapping_add(1))), b.vars.clone())
+        }
+        None => (Vec::new(), model.vars.clone()),
+    };
+    let room = match (retina_draws, &s.room) {
+        (Some(n), Some(_)) => {
+            let r = room::RoomModel::new(s)?;
+            records(&r.figures, propagate(&room::room_vars(&model.vars), &r, n, req.seed.wrapping_add(2)))
+        }
+        _ => Vec::new(),
+    };
+    let report = crate::retina::report::assess_retina(&s.view)?;
+    let rod_rate = report.sources[req.index].retinal.as_ref().and_then(|r| r.rod_rate.clone());
+    Ok(FiguresReport {
+        source: s.view.sources[req.index].spectrum.label().to_string(),
+        parameters: req.parameters,
+        retina_draws: retina_draws.unwrap_or(0),
+        bleach_draws: req.bleach_draws.unwrap_or(0),
+        inputs: vars
+            .into_iter()
+            .map(|v| DrawnInput { input: v.name, nominal: v.nominal, basis: v.basis })
+            .collect(),
+        retina,
+        bleach,
+        room,
+        rod_rate,
+        notes: figure_notes(model.pivot_nm),
+    })
+}
+
+/// How the figures were computed.
+fn figure_notes(pivot_nm: f64) -> Vec<String> {
+    vec![
+        format!(
+            "retina figures: the engine at the nominal values, with the source tilted (pivot {} nm) and at three \
+             values of each parameter; per draw exact scaling for the reading, geometry, tilt, pupil and the \
+             parameters that enter linearly; λmax and optical density by a parabola through three runs, their \
+             cross-terms left out",
+            crate::base::units::sig4(pivot_nm)
+        ),
+        "bleach figures: each draw runs the schedule through the engine's exact step solutions; steps that do not \
+         light the chosen source take only the pupil and eye-parameter factors"
+            .to_string(),
+        "declared inputs belong to the chosen source and the pupil; a from-memory pupil is drawn as a factor on the \
+         diameter"
+            .to_string(),
+    ]
 }

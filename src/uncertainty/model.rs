@@ -139,7 +139,7 @@ impl TiltShape {
     }
 
     /// The shape for spectrum `s`.
-    fn of(s: &Spectrum) -> Result<TiltShape> {
+    pub(super) fn of(s: &Spectrum) -> Result<TiltShape> {
         let photopic_of = |f: &dyn Fn(f64) -> f64| -> Result<f64> {
             let curve = s.curve().map(|nm, v| v * f(nm));
             Ok(photopic(&Spectrum::new(curve, s.measure(), s.basis(), s.label())?).raw)
@@ -157,16 +157,39 @@ impl TiltShape {
     }
 
     /// The largest |g(λ) − ḡ| over the samples of `s`.
-    fn reach(&self, s: &Spectrum) -> f64 {
+    pub(super) fn reach(&self, s: &Spectrum) -> f64 {
         s.curve().wavelength_nm().iter().map(|&nm| self.at(nm).abs()).fold(0.0, f64::max)
     }
 }
 
 /// S(λ)·(1 + (g(λ) − ḡ)/K), positive with K = 2·max|g − ḡ|; returns it with K.
-fn tilted(s: &Spectrum, shape: &TiltShape) -> Result<(Spectrum, f64)> {
+pub(super) fn tilted(s: &Spectrum, shape: &TiltShape) -> Result<(Spectrum, f64)> {
     let k = 2.0 * shape.reach(s).max(1e-3);
     let curve = s.curve().map(|nm, v| v * (1.0 + shape.at(nm) / k));
     Ok((Spectrum::new(curve, s.measure(), s.basis(), s.label())?, k))
+}
+
+/// The corneal irradiance and seen radiance for draw `d` relative to the nominal distance
+/// `d0_m` and subtense `alpha0`, and the draw's subtense: a radiance with its size (`extended`)
+/// keeps its radiance and its irradiance follows the solid angle; a small source's irradiance
+/// follows the inverse square and its radiance is the irradiance over the solid angle.
+pub(super) fn light_factors(
+    extended: bool,
+    d0_m: f64,
+    alpha0: Option<f64>,
+    d: &Draw,
+) -> (f64, f64, Option<f64>) {
+    let alpha = d.size_m.map(|s| 2.0 * (s / (2.0 * d.distance_m)).atan());
+    let solid = match (alpha, alpha0) {
+        (Some(a), Some(a0)) => s2(a) / s2(a0),
+        _ => 1.0,
+    };
+    if extended {
+        (d.scale * solid, d.scale, alpha)
+    } else {
+        let e = d.scale * (d0_m / d.distance_m).powi(2);
+        (e, e / solid, alpha)
+    }
 }
 
 impl Model {
@@ -203,17 +226,9 @@ impl Model {
 
     /// The light at the eye for draw `d`, relative to the nominal.
     fn factors(&self, d: &Draw) -> Factors {
-        let alpha = d.size_m.map(|s| 2.0 * (s / (2.0 * d.distance_m)).atan());
-        let solid = match (alpha, self.alpha0) {
-            (Some(a), Some(a0)) => s2(a) / s2(a0),
-            _ => 1.0,
-        };
-        if self.extended {
-            Factors { irradiance: d.scale * solid, radiance: d.scale, alpha }
-        } else {
-            let e = d.scale * (self.nominal.distance_m / d.distance_m).powi(2);
-            Factors { irradiance: e, radiance: e / solid, alpha }
-        }
+        let (irradiance, radiance, alpha) =
+            light_factors(self.extended, self.nominal.distance_m, self.alpha0, d);
+        Factors { irradiance, radiance, alpha }
     }
 
     /// Every hazard's ratio for draw `d`, into `out`; returns a bit per hazard (up to 64) set

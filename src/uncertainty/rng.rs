@@ -47,7 +47,7 @@ impl Normals {
     }
 
     /// A uniform deviate in (0, 1]: the top 53 bits, plus one ulp so the logarithm is finite.
-    fn uniform(&mut self) -> f64 {
+    pub(super) fn unit(&mut self) -> f64 {
         ((self.next_u64() >> 11) + 1) as f64 * (1.0 / (1u64 << 53) as f64)
     }
 
@@ -56,8 +56,8 @@ impl Normals {
         if let Some(z) = self.spare.take() {
             return z;
         }
-        let r = (-2.0 * self.uniform().ln()).sqrt();
-        let phi = TAU * self.uniform();
+        let r = (-2.0 * self.unit().ln()).sqrt();
+        let phi = TAU * self.unit();
         self.spare = Some(r * phi.sin());
         r * phi.cos()
     }

@@ -696,7 +696,7 @@ fn the_study_commands_write_json_with_their_schema() {
         (vec!["sweep", lamp, "--solve", "--format", "json"], "retidose.solve/1", "nearest"),
         (
             vec!["uncertainty", lamp, "--reading", "5%", "--draws", "1000", "--format", "json"],
-            "retidose.uncertainty/1",
+            "retidose.uncertainty/2",
             "hazards",
         ),
         (vec!["threshold", "--bleach", "0.9", "--format", "json"], "retidose.threshold/1", "predicted"),

@@ -243,7 +243,7 @@ fn the_cli_repeats_itself_exactly() {
         a.contains("blue-light") && a.contains("undecided at 95 %") && a.contains("20000 draws, seed 9"),
         "{a}"
     );
-    args.extend(["--format", "csv"]);
+    args.extend(["--figures", "limits", "--format", "csv"]);
     let c = stdout(&args);
     assert_eq!(c, stdout(&args));
     assert!(
@@ -272,4 +272,327 @@ fn the_cli_names_the_flag_that_is_wrong() {
         let err = String::from_utf8(out.get_output().stderr.clone()).unwrap();
         assert!(err.contains(flag), "{extra:?}: {err}");
     }
+}
+
+// ---- retina and bleach figures, from-memory ranges, the recommended rod rate ----
+
+use retidose::pigment::kinetics::builtin_pigments;
+use retidose::retina::eye::{Param, Species, Status, builtin_eye};
+use retidose::retina::report::assess_retina;
+use retidose::uncertainty::routes::recommended_rod_rate;
+use retidose::uncertainty::{Figure, FigureUncertainty, FiguresRequest, assess_figures};
+
+fn figure<'a>(list: &'a [FigureUncertainty], f: &Figure) -> &'a FigureUncertainty {
+    list.iter().find(|x| x.figure == *f).unwrap_or_else(|| panic!("no {f:?} in {list:?}"))
+}
+
+fn figures_of(
+    s: &Scenario,
+    inputs: &InputUncertainties,
+    parameters: bool,
+    draws: usize,
+    seed: u64,
+) -> Vec<FigureUncertainty> {
+    let req = FiguresRequest {
+        scenario: s,
+        index: 0,
+        inputs,
+        parameters,
+        retina_draws: Some(draws),
+        bleach_draws: None,
+        seed,
+    };
+    assess_figures(&req).unwrap().retina
+}
+
+/// A figure linear in its one uncertain input: the rod rate by Makous's factor is
+/// R = 4.31 × (scot td) × k with the reading k ~ N(1, u²). The GUM law of propagation
+/// (JCGM 100:2008 eq. 10, one input, sensitivity ∂R/∂k = R₀) gives u(R) = R₀·u, and the mean is
+/// R₀ (linear model). Monte Carlo standard errors: σ/√M for the mean, σ/√(2(M − 1)) for u.
+#[test]
+fn a_linear_retina_figure_agrees_with_the_law_of_propagation() {
+    let s = parse_scenario_file(demo("dark-adaptation").unwrap(), "demo", None).unwrap();
+    let u = 0.05;
+    let list = figures_of(&s, &InputUncertainties { reading_relative: u, ..none() }, false, DRAWS, 5);
+    let report = assess_retina(&s.view).unwrap();
+    let scot_td =
+        retidose::base::quantity::as_td_f64(report.sources[0].retinal.as_ref().unwrap().trolands.scotopic);
+    // Makous, The Visual Neurosciences ch. 53, Table 53.1: 4.31 R*/rod/s per scotopic troland.
+    let r0 = 4.31 * scot_td;
+    let x = figure(&list, &Figure::RodRateByFactor("makous".into()));
+    assert!((x.summary.nominal / r0 - 1.0).abs() < 1e-12, "{} vs {r0}", x.summary.nominal);
+    let m = DRAWS as f64;
+    let sigma = r0 * u;
+    let mean = x.summary.mean.unwrap();
+    let sd = x.summary.standard_uncertainty.unwrap();
+    assert!((mean - r0).abs() < 4.0 * sigma / m.sqrt(), "mean {mean} vs {r0}");
+    assert!((sd - sigma).abs() < 4.0 * sigma / (2.0 * (m - 1.0)).sqrt(), "u {sd} vs {sigma}");
+    assert_eq!(x.summary.shares[0].1, 1.0, "{:?}", x.summary.shares);
+}
+
+/// A nonlinear figure: trolands T = L·π d²/4 through the mouse's dilated pupil, from memory
+/// with the default range d ~ U(a, b), a = 2.0 mm, b = 3.0 mm (src/data/eyes/mouse.toml), so
+/// T = T₀·(d/d₀)² with d₀ = 2.0 mm. For y = d², d uniform: the distribution function is
+/// F(y) = (√y − a)/(b − a), so the p-quantile is (a + p(b − a))² and the density
+/// f(y) = 1/(2√y (b − a)); E[y] = (a² + ab + b²)/3 and E[y²] = (b⁵ − a⁵)/(5(b − a)). Monte Carlo
+/// standard errors: σ/√M for the mean; √((μ₄ − σ⁴)/M)/(2σ) for the standard deviation, with μ₄
+/// the fourth central moment (integrated below); √(p(1 − p)/M)/f(y_p) for a quantile.
+#[test]
+fn trolands_follow_the_distribution_of_the_squared_pupil() {
+    let text = r#"
+[scenario]
+name = "pupil-test"
+title = "mouse under a full field"
+[subject]
+species = "mouse"
+pupil = "dilated"
+[[source]]
+id = "field"
+spectrum = "cie:D65"
+illuminance = "100 lx"
+full_field = true
+"#;
+    let s = parse_scenario_file(text, "test", None).unwrap();
+    let list = figures_of(&s, &none(), true, DRAWS, 8);
+    let x = figure(&list, &Figure::PhotopicTrolands);
+    let (a, b, d0) = (2.0f64, 3.0f64, 2.0f64);
+    let t0 = x.summary.nominal / (d0 * d0);
+    let mean = (a * a + a * b + b * b) / 3.0;
+    let second = (b.powi(5) - a.powi(5)) / (5.0 * (b - a));
+    let sigma = (second - mean * mean).sqrt();
+    // μ₄ = E[(y − E y)⁴] by the midpoint rule over d (10⁵ panels).
+    let n = 100_000;
+    let mu4 = (0..n)
+        .map(|i| {
+            let d = a + (b - a) * (i as f64 + 0.5) / n as f64;
+            (d * d - mean).powi(4)
+        })
+        .sum::<f64>()
+        / n as f64;
+    let m = DRAWS as f64;
+    let got_mean = x.summary.mean.unwrap() / t0;
+    let got_sd = x.summary.standard_uncertainty.unwrap() / t0;
+    assert!((got_mean - mean).abs() < 4.0 * sigma / m.sqrt(), "mean {got_mean} vs {mean}");
+    let se_sd = ((mu4 - sigma.powi(4)) / m).sqrt() / (2.0 * sigma);
+    assert!((got_sd - sigma).abs() < 4.0 * se_sd, "u {got_sd} vs {sigma}");
+    for (p, end) in [(0.025, x.summary.interval.0.unwrap()), (0.975, x.summary.interval.1.unwrap())] {
+        let y: f64 = (a + p * (b - a)).powi(2);
+        let f = 1.0 / (2.0 * y.sqrt() * (b - a));
+        let se = (p * (1.0 - p) / m).sqrt() / f;
+        assert!((end / t0 - y).abs() < 4.0 * se, "{p}: {} vs {y}", end / t0);
+    }
+}
+
+/// The routes to the human rod rate: each factor route is scot td × its published factor
+/// (src/data/eyes/human.toml: Lamb & Pugh 2006 IOVS 47:5138, 8.6; Makous, Table 53.1, 4.31);
+/// the spectral route is the catch's. The recommendation is √(min·max) with the 95 % interval
+/// √(min·max)·exp(±0.95·½ln(max/min)) (a rectangular distribution of ln R between the routes,
+/// JCGM 100:2008 §4.3.7), and the safe side is the highest route.
+#[test]
+fn the_recommended_rod_rate_lies_within_its_routes() {
+    let s = parse_scenario_file(demo("dark-adaptation").unwrap(), "demo", None).unwrap();
+    let report = assess_retina(&s.view).unwrap();
+    let ret = report.sources[0].retinal.as_ref().unwrap();
+    let scot_td = retidose::base::quantity::as_td_f64(ret.trolands.scotopic);
+    let r = recommended_rod_rate("field", ret).unwrap();
+    assert_eq!(ret.rod_rate.as_ref().map(|x| x.recommended), Some(r.recommended));
+    let spectral = ret.catch.iter().find(|c| c.receptor == "rod").unwrap().rate.si();
+    let mut expected =
+        vec![("spectral", spectral), ("lamb_pugh_2006", 8.6 * scot_td), ("makous", 4.31 * scot_td)];
+    expected.sort_by(|x, y| x.0.cmp(y.0));
+    let mut got: Vec<(&str, f64)> = r.routes.iter().map(|x| (x.route.as_str(), x.rate.si())).collect();
+    got.sort_by(|x, y| x.0.cmp(y.0));
+    assert_eq!(got.len(), 3);
+    for (g, e) in got.iter().zip(&expected) {
+        assert_eq!(g.0, e.0);
+        assert!((g.1 / e.1 - 1.0).abs() < 1e-12, "{}: {} vs {}", g.0, g.1, e.1);
+    }
+    let (lo, hi) = expected.iter().fold((f64::MAX, 0.0f64), |(l, h), x| (l.min(x.1), h.max(x.1)));
+    let centre = (lo * hi).sqrt();
+    let half = 0.5 * (hi / lo).ln();
+    assert!((r.recommended.si() / centre - 1.0).abs() < 1e-12);
+    assert!((r.interval.0.si() / (centre * (-0.95 * half).exp()) - 1.0).abs() < 1e-12);
+    assert!((r.interval.1.si() / (centre * (0.95 * half).exp()) - 1.0).abs() < 1e-12);
+    assert!(r.interval.0 < r.recommended && r.recommended < r.interval.1);
+    assert_eq!(r.safe_side.si(), hi);
+    // The routes disagree by more than 2×, which is why the spread is reported.
+    assert!(hi / lo > 2.0, "{lo} {hi}");
+}
+
+/// Every parameter of the built-in eye and pigment files whose status is "from memory" states a
+/// default range, so the uncertainty can draw it.
+#[test]
+fn every_from_memory_parameter_has_a_default_range() {
+    fn check<T>(p: &Param<T>, what: &str, count: &mut usize) {
+        if p.status == Status::FromMemory {
+            *count += 1;
+            let s = p.spread.as_ref().unwrap_or_else(|| panic!("{what}: from memory without a range"));
+            assert!(!s.basis.trim().is_empty(), "{what}");
+        }
+    }
+    let mut n = 0;
+    for sp in [Species::Human, Species::Mouse, Species::Rat] {
+        let e = builtin_eye(sp);
+        let w = sp.name();
+        check(&e.nodal_distance, w, &mut n);
+        for p in [&e.pupil.dark_adapted, &e.pupil.light_adapted, &e.pupil.maximum] {
+            check(p, w, &mut n);
+        }
+        if let Some(p) = &e.pupil.dilated {
+            check(p, w, &mut n);
+        }
+        if let retidose::retina::eye::Media::CutOff { half_transmission, edge_width, plateau } = &e.media {
+            check(half_transmission, w, &mut n);
+            check(edge_width, w, &mut n);
+            check(plateau, w, &mut n);
+        }
+        if let Some(i) = &e.iris {
+            check(&i.diameter, w, &mut n);
+            check(&i.albino_transmittance, w, &mut n);
+        }
+        for r in &e.receptors {
+            check(&r.lambda_max, w, &mut n);
+            check(&r.peak_optical_density, w, &mut n);
+            check(&r.aperture_area, w, &mut n);
+            check(&r.quantum_efficiency, w, &mut n);
+            if let Some(p) = &r.pigment_per_cell {
+                check(p, w, &mut n);
+            }
+        }
+        if let Some(m) = &e.melanopsin {
+            check(m, w, &mut n);
+        }
+        for (k, p) in &e.rod_troland_factors {
+            check(p, k, &mut n);
+        }
+    }
+    let t = builtin_pigments();
+    for p in &t.pigments {
+        for q in [&p.q_e, &p.i0, &p.pigment_per_cell, &p.saturating_level].into_iter().flatten() {
+            check(q, &p.id, &mut n);
+        }
+        check(&p.tau0, &p.id, &mut n);
+        check(&p.v, &p.id, &mut n);
+        check(&p.k_m, &p.id, &mut n);
+    }
+    let rr = &t.rod_response;
+    check(&rr.human_amplification, "rod response", &mut n);
+    check(&rr.rodent_amplification, "rod response", &mut n);
+    check(&rr.effective_delay, "rod response", &mut n);
+    let da = &t.dark_adaptation;
+    check(&da.s2_slope, "dark adaptation", &mut n);
+    check(&da.cone_plateau, "dark adaptation", &mut n);
+    check(&da.dowling_rushton_alpha, "dark adaptation", &mut n);
+    // 5 human + 13 mouse + 19 rat eye values and 11 pigment-table values are from memory.
+    assert_eq!(n, 48);
+}
+
+/// Leaving the parameters out narrows the interval of a figure they enter (the rod quantum
+/// efficiency enters the spectral rod rate), and the bleach figures are reported.
+#[test]
+fn parameters_widen_the_figures_and_bleach_figures_are_given() {
+    let s = parse_scenario_file(demo("dark-adaptation").unwrap(), "demo", None).unwrap();
+    let u = InputUncertainties { reading_relative: 0.05, ..none() };
+    let req = |parameters| FiguresRequest {
+        scenario: &s,
+        index: 0,
+        inputs: &u,
+        parameters,
+        retina_draws: Some(20_000),
+        bleach_draws: Some(2_000),
+        seed: 4,
+    };
+    let with = assess_figures(&req(true)).unwrap();
+    let without = assess_figures(&req(false)).unwrap();
+    let width = |r: &retidose::uncertainty::FiguresReport| {
+        let x = figure(&r.retina, &Figure::RodRate);
+        x.summary.interval.1.unwrap() - x.summary.interval.0.unwrap()
+    };
+    assert!(width(&with) > width(&without));
+    let peak = figure(&with.bleach, &Figure::PeakBleached);
+    let (lo, hi) = (peak.summary.interval.0.unwrap(), peak.summary.interval.1.unwrap());
+    assert!(lo < peak.summary.nominal && peak.summary.nominal < hi && hi <= 1.0, "{peak:?}");
+    // τ0 is the human rod's only from-memory kinetic value and enters only the Rushton model;
+    // the demo runs the rate-limited one (v and K_m confirmed), so no kinetic input is drawn.
+    assert!(!with.inputs.iter().any(|i| i.input.text().starts_with("human-rod")), "{:?}", with.inputs);
+    assert!(with.inputs.iter().any(|i| i.input.text() == "eye: rod quantum efficiency"));
+    assert!(figure(&with.bleach, &Figure::RecoveryTo90).summary.mean.is_some());
+}
+
+fn dark_adaptation_file() -> String {
+    let dir = std::env::temp_dir().join(format!("retidose-uncertainty-figures-{}", std::process::id()));
+    std::fs::create_dir_all(&dir).unwrap();
+    let p = dir.join("d.toml");
+    std::fs::write(&p, demo("dark-adaptation").unwrap()).unwrap();
+    p.to_str().unwrap().to_string()
+}
+
+#[test]
+fn the_figures_json_repeats_on_one_and_two_threads() {
+    let f = dark_adaptation_file();
+    let args = [
+        "uncertainty",
+        f.as_str(),
+        "--figures",
+        "all",
+        "--reading",
+        "5%",
+        "--pupil",
+        "0.3 mm",
+        "--draws",
+        "20000",
+        "--bleach-draws",
+        "10000",
+        "--seed",
+        "3",
+        "--format",
+        "json",
+    ];
+    let on = |threads: &str| {
+        let out = retidose().env("RAYON_NUM_THREADS", threads).args(args).assert().success();
+        String::from_utf8(out.get_output().stdout.clone()).unwrap()
+    };
+    let one = on("1");
+    assert_eq!(one, on("1"));
+    assert_eq!(one, on("2"));
+    let v: serde_json::Value = serde_json::from_str(&one).unwrap();
+    assert_eq!(v["schema"], "retidose.uncertainty/2");
+    assert!(v["figures"]["retina"].as_array().is_some_and(|a| !a.is_empty()));
+    assert!(v["figures"]["rod_rate"]["recommended"].is_number(), "{}", v["figures"]["rod_rate"]);
+    assert!(v["skipped"][0].as_str().is_some_and(|t| t.contains("no distance")), "{}", v["skipped"]);
+}
+
+/// The room figures under the reading alone: room lux is linear in the reading's factor k, so
+/// by the GUM law of propagation (JCGM 100:2008 eq. 10) the brightest position has mean L₀ and
+/// u = L₀·u(k); the in-range count at the nominal is the dimming lever's count at factor 1
+/// (retidose::housing::lever::dimming, the engine's own count).
+#[test]
+fn room_figures_follow_the_reading() {
+    let s = parse_scenario_file(demo("vivarium").unwrap(), "demo", None).unwrap();
+    let u = 0.1;
+    let req = FiguresRequest {
+        scenario: &s,
+        index: 0,
+        inputs: &InputUncertainties { reading_relative: u, ..none() },
+        parameters: false,
+        retina_draws: Some(DRAWS),
+        bleach_draws: None,
+        seed: 6,
+    };
+    let r = assess_figures(&req).unwrap();
+    let a = retidose::assess::assess(&s).unwrap();
+    let plan = &a.room.as_ref().unwrap().rows.0;
+    let racks = retidose::housing::lever::dimming(plan, &[1.0]);
+    assert!(!racks.is_empty());
+    for rack in &racks {
+        let x = figure(&r.room, &Figure::InRange(rack.rack.clone()));
+        assert_eq!(x.summary.nominal, rack.points[0].counts.in_range as f64, "{}", rack.rack);
+    }
+    let b = figure(&r.room, &Figure::BrightestLux);
+    let (l0, m) = (b.summary.nominal, DRAWS as f64);
+    let sigma = l0 * u;
+    assert!((b.summary.mean.unwrap() - l0).abs() < 4.0 * sigma / m.sqrt());
+    assert!((b.summary.standard_uncertainty.unwrap() - sigma).abs() < 4.0 * sigma / (2.0 * (m - 1.0)).sqrt());
+    let d = figure(&r.room, &Figure::DimmestLux);
+    assert!(d.summary.nominal > 0.0 && d.summary.nominal < l0);
 }

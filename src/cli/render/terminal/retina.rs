@@ -108,6 +108,16 @@ fn at_the_retina(o: &mut Page, s: &SourceAtEye) {
     o.para("photoisomerisations per receptor per second (spectral route)", "  ");
     for c in &ret.catch {
         catch(o, c);
+        if let Some(r) = ret.rod_rate.as_ref().filter(|_| c.receptor == "rod") {
+            let text = format!(
+                "recommended rod rate {} R*/rod/s, 95 % interval {} – {} between the routes; {} on the safe side",
+                num(r.recommended.si()),
+                num(r.interval.0.si()),
+                num(r.interval.1.si()),
+                num(r.safe_side.si())
+            );
+            o.field("    ", "", LABEL - 2, &text);
+        }
     }
 }
 
