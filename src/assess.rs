@@ -12,16 +12,18 @@ use uom::si::frequency::hertz;
 use uom::si::illuminance::lux;
 
 use crate::base::error::{Error, Result};
-use crate::base::quantity::{SiValue, Time};
+use crate::base::quantity::Time;
 use crate::cornea::at_cornea;
-use crate::housing::guidance::{AppliesTo, Evidence, Flag, GuidanceQuantity, GuidanceSet, Rule};
+use crate::housing::guidance::{
+    AppliesTo, Brightest, Evidence, Flag, GuidanceQuantity, GuidanceSet, Rule, brightest,
+};
 use crate::housing::room::Rack;
 use crate::housing::survey::{RoomResult, assess_room};
 use crate::limits::Verdict;
 use crate::limits::report::{LIMITS_CAUTION, LimitsAssessment, LimitsRequest, assess_limits};
-use crate::pigment::bleach::{BleachReport, assess as bleach_assess};
+use crate::pigment::bleach::BleachReport;
+use crate::pigment::course::{Course, CourseStep};
 use crate::pigment::kinetics::{LevelUnit, Pigment};
-use crate::pigment::schedule::Schedule;
 use crate::retina::catch::{SpeciesOpic, species_alpha_opic};
 use crate::retina::eye::Species;
 use crate::retina::pupil::Pupil;
@@ -191,6 +193,8 @@ pub struct Assessment {
     pub limits: Vec<LimitsAssessment>,
     /// Guidance comparisons.
     pub guidance: Vec<GuidanceRow>,
+    /// The brightest light of each step within the user's targets and the guidance's upper bounds.
+    pub brightest: Vec<Brightest>,
     /// Evidence to show beside the guidance.
     pub evidence: Vec<Evidence>,
     /// The holding room's survey.
@@ -264,6 +268,12 @@ fn assess_inner(s: &Scenario) -> Result<Assessment> {
     let evidence: Vec<Evidence> = s.guidance.iter().flat_map(|g| g.evidence.clone()).collect();
     let room = s.room.as_ref().map(|r| run_room(s, r, &evidence)).transpose()?;
     let guidance = guidance_rows(s, &steps, room.as_ref(), &mut not_assessed);
+    let targets: Vec<_> = s
+        .schedule
+        .iter()
+        .flat_map(|sc| sc.steps.iter().map(|st| (st.targets, pupil_adapts(s, st))))
+        .collect();
+    let brightest = brightest(&steps, &targets, &s.guidance, &guidance, &mut not_assessed);
     for g in &s.guidance {
         provenance.push(guidance_provenance(g));
     }
@@ -302,6 +312,7 @@ fn assess_inner(s: &Scenario) -> Result<Assessment> {
         bleach,
         limits,
         guidance,
+        brightest,
         evidence,
         room,
         not_assessed,
@@ -366,6 +377,15 @@ fn step_light(s: &Scenario, paths: &Paths, sc: &ScheduleSpec, st: &Step) -> Resu
     })
 }
 
+/// Whether the pupil of a step follows a formula of the light (it opens as the light dims).
+fn pupil_adapts(s: &Scenario, st: &Step) -> bool {
+    use crate::retina::pupil::PupilRule;
+    matches!(
+        s.view_for(st.phase).pupil,
+        PupilRule::WatsonYellott | PupilRule::DeGrootGebhard | PupilRule::MoonSpencer
+    )
+}
+
 /// A pupil formula adapts to the light: a step whose phase uses one gets its own light path,
 /// with only its lit sources (in the order of `st.on`), so unrelated sources do not set its pupil.
 fn own_pupil_path(s: &Scenario, st: &Step) -> Result<Option<RetinaReport>> {
@@ -409,12 +429,22 @@ fn dark_step(s: &Scenario, _sc: &ScheduleSpec, st: &Step) -> Result<StepLight> {
 }
 
 fn run_bleach(sc: &ScheduleSpec, steps: &[StepLight]) -> Result<BleachReport> {
-    let mut schedule = Schedule::default();
-    for st in steps {
-        schedule.push(&st.name, st.duration.si(), sc.pigment.rate_of_level(st.level))?;
+    course(sc, steps).report(None, Some(240))
+}
+
+/// The pigment course of a schedule from its step lights: the one computation behind the
+/// assessment's pigment section and the solves and sweeps of `retidose bleach --scenario`.
+pub fn course(sc: &ScheduleSpec, steps: &[StepLight]) -> Course {
+    Course {
+        pigment: sc.pigment.clone(),
+        model: sc.model,
+        steps: steps
+            .iter()
+            .map(|st| CourseStep { name: st.name.clone(), duration: st.duration, level: st.level })
+            .collect(),
+        repeat: sc.repeat,
+        start: 0.0,
     }
-    schedule.repeat(sc.repeat)?;
-    bleach_assess(&sc.pigment, sc.model, &schedule, 0.0, Some(240))
 }
 
 fn pigment_provenance(pigment: &Pigment) -> Provenance {

@@ -4,7 +4,7 @@
 use std::path::Path;
 
 use anyhow::{Context, Result, bail};
-use clap::Args;
+use clap::{Args, ValueEnum};
 use retidose::base::quantity::SiValue;
 use retidose::base::units;
 use retidose::pigment::bleach::{
@@ -15,8 +15,14 @@ use retidose::pigment::kinetics::{Model, Pigment, find_pigment};
 use retidose::pigment::schedule::Schedule;
 use retidose::scenario::bleach::{BleachScenario, parse_bleach_scenario, parse_level};
 
+use retidose::assess::{Assessment, assess, course, parse_scenario_file};
+use retidose::base::quantity::{Frequency, Illuminance, Luminance};
+use retidose::pigment::course::{Course, DurationSolve, LevelSolve, LevelSweep, SweepPoint, TOLERANCE};
+
 use super::args::Format;
-use super::render::{csv, json, terminal};
+use super::render::escape::csv_cell;
+use super::render::terminal::{Page, Table};
+use super::render::{CAUTION, csv, duration, json, num, svg, terminal};
 
 /// Help shown after `retidose bleach --help`.
 pub const EXAMPLES: &str = "\
@@ -31,7 +37,15 @@ Examples:
   retidose bleach --receptor mouse-rod --rate \"2e5 R*/rod/s\" --for \"12 h\" --then-dark \"12 h\" --repeat 7
   retidose bleach --receptor human-rod --solve level --target 0.5 --for \"60 s\"
   retidose bleach --receptor human-rod --flash 100
-  retidose bleach --schedule cage-cycle.toml --format json";
+  retidose bleach --schedule cage-cycle.toml --format json
+
+A step of a schedule by its name (any case), from an assess scenario or a schedule file: the factor
+on its light (and its level) or its duration for a target bleach at its end, or bleach against the
+factor on its light (log spaced). Each solve states the bracket searched and its tolerance.
+  retidose assess --example dark-adaptation > dark.toml
+  retidose bleach --scenario dark.toml --step bleach --solve level --target 0.9
+  retidose bleach --scenario dark.toml --step bleach --solve duration --target 0.5 --format json
+  retidose bleach --scenario dark.toml --step bleach --sweep-level --from 0.01 --to 100 --points 50 --plot b.svg";
 
 #[derive(Debug, Args)]
 pub struct BleachArgs {
@@ -43,8 +57,29 @@ pub struct BleachArgs {
         help = "A schedule file ([[step]] tables) instead of the quick form"
     )]
     schedule: Option<String>,
+    /// An assess scenario file: its [schedule] with the light of each step as assessed (with --step)
+    #[arg(long, value_name = "FILE", conflicts_with_all = ["schedule", "receptor", "retinal", "rate", "flash"])]
+    scenario: Option<String>,
+    /// The step (by its name, any case) whose light or duration --solve finds or --sweep-level scales
+    #[arg(long, value_name = "NAME")]
+    step: Option<String>,
+    /// Bleach against a factor on the --step's light, log spaced from --from to --to
+    #[arg(long, requires = "step", conflicts_with = "solve")]
+    sweep_level: bool,
+    /// Smallest factor on the step's light for --sweep-level
+    #[arg(long, value_name = "FACTOR", default_value_t = 0.01)]
+    from: f64,
+    /// Largest factor on the step's light for --sweep-level
+    #[arg(long, value_name = "FACTOR", default_value_t = 100.0)]
+    to: f64,
+    /// Number of factors for --sweep-level (2 to 10 000)
+    #[arg(long, value_name = "N", default_value_t = 50)]
+    points: usize,
+    /// Write the --sweep-level figure (bleach against level) to this new SVG file; never overwrites
+    #[arg(long, value_name = "FILE", requires = "sweep_level")]
+    plot: Option<String>,
     /// human-rod, human-cone, mouse-rod or rat-rod
-    #[arg(long, value_name = "RECEPTOR", required_unless_present = "schedule")]
+    #[arg(long, value_name = "RECEPTOR", required_unless_present_any = ["schedule", "scenario"])]
     receptor: Option<String>,
     /// rate-limited (default) or rushton
     #[arg(long, value_name = "MODEL")]
@@ -85,18 +120,46 @@ pub struct BleachArgs {
     /// Number of time-course samples
     #[arg(long, value_name = "N", default_value_t = 200)]
     samples: usize,
-    /// Output format
-    #[arg(long, value_enum, default_value_t = Format::Table)]
-    format: Format,
+    /// Output format (csv: for --step solves and sweeps)
+    #[arg(long, value_enum, default_value_t = BleachFormat::Table)]
+    format: BleachFormat,
+}
+
+/// The formats of `retidose bleach`.
+#[derive(Debug, Clone, Copy, PartialEq, Eq, ValueEnum)]
+pub enum BleachFormat {
+    /// A table for the terminal
+    Table,
+    /// JSON with stable field names
+    Json,
+    /// CSV (with --step: the solve's figures, or one row per sweep point)
+    Csv,
+}
+
+impl BleachFormat {
+    /// The shared format of the runs that have no CSV form.
+    fn plain(self) -> Result<Format> {
+        match self {
+            BleachFormat::Table => Ok(Format::Table),
+            BleachFormat::Json => Ok(Format::Json),
+            BleachFormat::Csv => bail!(
+                "--format csv is for --step solves and sweeps; for a run's time course use --time-course FILE.csv"
+            ),
+        }
+    }
 }
 
 /// Runs `retidose bleach`.
 pub fn run(a: BleachArgs) -> Result<String> {
+    if a.step.is_some() || a.scenario.is_some() {
+        return named_step(&a);
+    }
+    let format = a.format.plain()?;
     let mut scenario = scenario(&a)?;
     let level = level(&a, &scenario.pigment)?;
     if let Some(phi) = a.flash {
         let r = flash_response(&scenario.pigment, phi)?;
-        return Ok(match a.format {
+        return Ok(match format {
             Format::Table => terminal::bleach::flash(&scenario.pigment, &r),
             Format::Json => json::bleach::flash(&scenario.pigment, &r),
         });
@@ -117,7 +180,7 @@ pub fn run(a: BleachArgs) -> Result<String> {
     if let Some(path) = &a.time_course {
         write_time_course(path, &report)?;
     }
-    Ok(match a.format {
+    Ok(match format {
         Format::Table => terminal::bleach::table(&report),
         Format::Json => json::bleach::document(&report),
     })
@@ -134,7 +197,13 @@ fn scenario(a: &BleachArgs) -> Result<BleachScenario> {
         None => {
             let pigment = find_pigment(a.receptor.as_deref().unwrap_or_default())?;
             let model = a.model.as_deref().map(Model::parse).transpose()?.unwrap_or(Model::RateLimited);
-            BleachScenario { pigment, model, schedule: Schedule::default(), start: a.start }
+            BleachScenario {
+                pigment,
+                model,
+                schedule: Schedule::default(),
+                start: a.start,
+                cycle: (Vec::new(), 1),
+            }
         }
     };
     if let Some(m) = &a.model {
@@ -161,7 +230,7 @@ fn level(a: &BleachArgs, pigment: &Pigment) -> Result<Option<f64>> {
 fn solve(a: &BleachArgs, scenario: &BleachScenario, what: &str, level: Option<f64>) -> Result<String> {
     let answer = solve_answer(a, scenario, what, level)?;
     let pigment = &scenario.pigment;
-    Ok(match a.format {
+    Ok(match a.format.plain()? {
         Format::Table => {
             format!("retidose bleach: {} ({} model)\n  {answer}\n", pigment.id, scenario.model.name())
         }
@@ -231,9 +300,326 @@ fn quick_schedule(a: &BleachArgs, scenario: &mut BleachScenario, level: Option<f
 fn write_time_course(path: &str, report: &BleachReport) -> Result<()> {
     let text =
         if path.ends_with(".json") { json::bleach::time_course(report) } else { csv::time_course(report) };
+    write_new(path, "--time-course", &text)
+}
+
+/// What a named step's solve or sweep runs on: the course, and for a scenario its assessment
+/// (each step's light as assessed) and the scenario's source ids.
+struct Named {
+    title: String,
+    course: Course,
+    assessed: Option<(Assessment, Vec<String>)>,
+}
+
+/// `--scenario FILE` (assessed as `retidose assess` does) or `--schedule FILE`, with `--model`
+/// and every `--param` applied.
+fn named(a: &BleachArgs) -> Result<Named> {
+    let Some(file) = &a.scenario else {
+        let file = a
+            .schedule
+            .as_deref()
+            .context("--step needs a schedule: give --scenario FILE or --schedule FILE")?;
+        return Ok(Named { title: file.to_string(), course: scenario(a)?.course()?, assessed: None });
+    };
+    let text = std::fs::read_to_string(file).with_context(|| format!("cannot read the scenario {file}"))?;
+    let s = parse_scenario_file(&text, file, Path::new(file).parent())?;
+    let assessment = assess(&s)?;
+    let sc = s
+        .schedule
+        .as_ref()
+        .with_context(|| format!("--scenario {file}: it has no [schedule] to solve on"))?;
+    let mut course = course(sc, &assessment.steps);
+    if let Some(m) = &a.model {
+        course.model = Model::parse(m).context("--model")?;
+    }
+    for p in &a.param {
+        let (k, v) = p.split_once('=').with_context(|| format!("--param '{p}' must be NAME=VALUE"))?;
+        course.pigment.override_param(k.trim(), v.trim().trim_matches('"'))?;
+    }
+    Ok(Named { title: s.name.clone(), course, assessed: Some((assessment, s.source_ids)) })
+}
+
+/// `--step NAME` with `--solve level|duration --target F` or `--sweep-level`.
+fn named_step(a: &BleachArgs) -> Result<String> {
+    let name = a.step.as_deref().context("--scenario needs --step NAME: the step to solve or sweep")?;
+    let n = named(a)?;
+    let step = n.course.find_step(name).context("--step")?;
+    if a.sweep_level {
+        let sweep = n
+            .course
+            .sweep_level(step, a.from, a.to, a.points)
+            .context("--sweep-level (--from, --to, --points)")?;
+        if let Some(path) = &a.plot {
+            write_new(path, "--plot", &plot_svg(&n, &sweep)?)?;
+        }
+        return Ok(render_sweep(a.format, &n, &sweep));
+    }
+    let target = a.target.context("--step needs --solve level|duration with --target F, or --sweep-level")?;
+    let solved = match a.solve.as_deref() {
+        Some("level") => Solved::Level(n.course.solve_level(step, target).context("--solve level --target")?),
+        Some("duration") => {
+            Solved::Duration(n.course.solve_duration(step, target).context("--solve duration --target")?)
+        }
+        Some(other) => bail!("--solve {other}: with --step, expected level or duration"),
+        None => bail!("--step needs --solve level|duration (with --target) or --sweep-level"),
+    };
+    render_solve(a.format, &n, step, &solved)
+}
+
+/// A named step's solve.
+#[derive(serde::Serialize)]
+#[serde(rename_all = "kebab-case", tag = "solve")]
+enum Solved {
+    /// The factor on the step's light.
+    Level(LevelSolve),
+    /// The step's duration.
+    Duration(DurationSolve),
+}
+
+/// The step's light at a factor, as assessed (scenario files only): every figure is linear in it.
+#[derive(serde::Serialize)]
+struct StepLightAt {
+    factor: f64,
+    rod_rate: Option<Frequency>,
+    room_illuminance: Illuminance,
+    illuminance_at_eye: Illuminance,
+    melanopic_edi: Option<Illuminance>,
+    sources: Vec<SourceAt>,
+}
+
+/// One lit source's luminance (as seen) at the factor.
+#[derive(serde::Serialize)]
+struct SourceAt {
+    id: String,
+    luminance: Option<Luminance>,
+}
+
+fn light_at(n: &Named, step: usize, factor: f64) -> Option<StepLightAt> {
+    let (a, ids) = n.assessed.as_ref()?;
+    let st = &a.steps[step];
+    let lum = |id: &str| {
+        let i = ids.iter().position(|x| x == id)?;
+        let l = a.retina.as_ref()?.sources.get(i)?.luminance.as_ref()?.value?;
+        Some(Luminance::from_si(factor * l.si_value()))
+    };
+    Some(StepLightAt {
+        factor,
+        rod_rate: st.rod_rate.map(|r| r * factor),
+        room_illuminance: st.room_illuminance * factor,
+        illuminance_at_eye: st.illuminance * factor,
+        melanopic_edi: st.melanopic_edi.map(|e| e * factor),
+        sources: st.on.iter().map(|id| SourceAt { id: id.clone(), luminance: lum(id) }).collect(),
+    })
+}
+
+/// The lines of a solve (table and CSV share them): (quantity, value, unit).
+fn solve_rows(n: &Named, step: usize, s: &Solved) -> Vec<(String, f64, String)> {
+    let unit = n.course.pigment.level_unit.symbol();
+    let mut rows: Vec<(String, f64, String)> = Vec::new();
+    let mut push = |q: &str, v: f64, u: &str| rows.push((q.to_string(), v, u.to_string()));
+    let factor = match s {
+        Solved::Level(l) => {
+            push("target bleached at the end of the step", l.target, "1");
+            push("factor on the step's light", l.factor, "1");
+            push("bracket searched, lowest factor", l.bracket.0, "1");
+            push("bracket searched, highest factor", l.bracket.1, "1");
+            push("tolerance on the bleached fraction", l.tolerance, "1");
+            push("level", l.level, unit);
+            push("bleached at the end of the step", l.reached, "1");
+            l.factor
+        }
+        Solved::Duration(d) => {
+            push("target bleached at the end of the step", d.target, "1");
+            push("duration", d.duration.si(), "s");
+            push("bracket searched, shortest", d.bracket.0.si(), "s");
+            push("bracket searched, longest", d.bracket.1.si(), "s");
+            push("tolerance on the bleached fraction", d.tolerance, "1");
+            push("steady state of the step's light", d.steady_state, "1");
+            push("bleached at the end of the step", d.reached, "1");
+            return rows;
+        }
+    };
+    if let Some(l) = light_at(n, step, factor) {
+        if let Some(r) = l.rod_rate {
+            push("rod rate", r.si(), "R*/rod/s");
+        }
+        push("room illuminance before the filters", l.room_illuminance.si(), "lx");
+        push("illuminance at the eye", l.illuminance_at_eye.si(), "lx");
+        if let Some(e) = l.melanopic_edi {
+            push("melanopic EDI at the eye", e.si(), "lx");
+        }
+        for src in &l.sources {
+            if let Some(v) = src.luminance {
+                push(&format!("luminance of source '{}'", src.id), v.si(), "cd/m²");
+            }
+        }
+    }
+    rows
+}
+
+/// The heading line of a named step's output.
+fn heading(n: &Named, step: usize) -> String {
+    let c = &n.course;
+    format!(
+        "retidose bleach: step '{}' of {} ({}, {} model)",
+        c.steps[step].name,
+        n.title,
+        c.pigment.id,
+        c.model.name()
+    )
+}
+
+/// A solve as a table, CSV or JSON (schema retidose.bleach-solve/1).
+fn render_solve(format: BleachFormat, n: &Named, step: usize, s: &Solved) -> Result<String> {
+    let rows = solve_rows(n, step, s);
+    Ok(match format {
+        BleachFormat::Csv => {
+            let mut out = String::from("step,quantity,value,unit\n");
+            for (q, v, u) in &rows {
+                out.push_str(&format!(
+                    "{},{},{v},{}\n",
+                    csv_field(&n.course.steps[step].name),
+                    csv_field(q),
+                    u
+                ));
+            }
+            out
+        }
+        BleachFormat::Json => {
+            let factor = match s {
+                Solved::Level(l) => Some(l.factor),
+                Solved::Duration(_) => None,
+            };
+            let doc = serde_json::json!({
+                "scenario": n.title,
+                "receptor": n.course.pigment.id,
+                "model": n.course.model.name(),
+                "level_unit": n.course.pigment.level_unit.symbol(),
+                "answer": s,
+                "step_light": factor.and_then(|f| light_at(n, step, f)),
+                "caution": CAUTION,
+            });
+            json::with_schema("retidose.bleach-solve/1", &doc)?
+        }
+        BleachFormat::Table => solve_table(n, step, s, &rows),
+    })
+}
+
+/// A solve for the terminal: what was solved, the bracket and tolerance, then each figure.
+fn solve_table(n: &Named, step: usize, s: &Solved, rows: &[(String, f64, String)]) -> String {
+    let (what, searched) = match s {
+        Solved::Level(l) => (
+            format!("the light that bleaches {} by the step's end", l.target),
+            format!("factors {} to {} on the step's light", num(l.bracket.0), num(l.bracket.1)),
+        ),
+        Solved::Duration(d) => (
+            format!("the duration that bleaches {} by the step's end", d.target),
+            format!("{} to {}", duration(d.bracket.0.si()), duration(d.bracket.1.si())),
+        ),
+    };
+    let mut o = Page::new(terminal::width(), false);
+    o.para(&heading(n, step), "");
+    o.para(
+        &format!("solve: {what}; searched {searched}, tolerance {TOLERANCE:e} on the bleached fraction"),
+        "  ",
+    );
+    for (q, v, u) in
+        rows.iter().skip(1).filter(|r| !r.0.starts_with("bracket") && !r.0.starts_with("tolerance"))
+    {
+        let v =
+            if u == "s" { format!("{} ({} s)", duration(*v), num(*v)) } else { format!("{} {u}", num(*v)) };
+        o.para(&format!("{q}: {}", v.trim_end_matches(" 1")), "  ");
+    }
+    o.blank();
+    o.para(CAUTION, "");
+    o.finish()
+}
+
+/// A fraction in per cent, 4 significant digits.
+fn pct(fraction: f64) -> String {
+    format!("{} %", num(100.0 * fraction))
+}
+
+/// A CSV field, quoted when it must be.
+fn csv_field(s: &str) -> String {
+    let s = csv_cell(s);
+    if s.contains([',', '"', '\n', '\r']) {
+        format!("\"{}\"", s.replace('"', "\"\""))
+    } else {
+        s.into_owned()
+    }
+}
+
+/// A sweep as a table, CSV (one row per factor) or JSON (schema retidose.bleach-sweep/1).
+fn render_sweep(format: BleachFormat, n: &Named, s: &LevelSweep) -> String {
+    let unit = s.level_unit.symbol();
+    let recovery = |p: &SweepPoint| match (p.lights_off_after, p.recovery_90) {
+        (false, _) => "—".to_string(),
+        (true, None) => "not before the light rose".to_string(),
+        (true, Some(t)) if t.si() == 0.0 => "already at lights-off".to_string(),
+        (true, Some(t)) => duration(t.si()),
+    };
+    match format {
+        BleachFormat::Csv => {
+            let mut out =
+                String::from("factor,level,level_unit,step_end_bleached,peak_bleached,recovery_90_s\n");
+            for p in &s.points {
+                let r = p.recovery_90.map_or(String::new(), |t| t.si().to_string());
+                out.push_str(&format!("{},{},{unit},{},{},{r}\n", p.factor, p.level, p.step_end, p.peak));
+            }
+            out
+        }
+        BleachFormat::Json => json::with_schema(
+            "retidose.bleach-sweep/1",
+            &serde_json::json!({
+                "scenario": n.title, "receptor": n.course.pigment.id, "model": n.course.model.name(),
+                "level_unit": unit, "step": s.step, "points": s.points, "caution": CAUTION,
+            }),
+        )
+        .unwrap_or_default(),
+        BleachFormat::Table => {
+            let step = n.course.find_step(&s.step).unwrap_or_default();
+            let mut o = Page::new(terminal::width(), false);
+            o.para(&heading(n, step), "");
+            o.para("Bleach against a factor on the step's light (log spaced; each row a full run of the schedule)", "");
+            let mut t = Table::new(&[
+                "factor",
+                "level",
+                "bleached at the step's end",
+                "peak",
+                "90 % regenerated after",
+            ]);
+            for p in &s.points {
+                t.row(vec![
+                    num(p.factor),
+                    format!("{} {unit}", num(p.level)),
+                    pct(p.step_end),
+                    pct(p.peak),
+                    recovery(p),
+                ]);
+            }
+            o.table(&t);
+            o.para(CAUTION, "");
+            o.finish()
+        }
+    }
+}
+
+/// The sweep's figure as an SVG document.
+fn plot_svg(n: &Named, s: &LevelSweep) -> Result<String> {
+    let f = svg::bleach_level(s, &n.title).context("--plot: nothing to draw")?;
+    Ok(format!(
+        "<?xml version=\"1.0\" encoding=\"UTF-8\"?>\n{}\n<!-- {} -->\n",
+        f.svg,
+        f.caption.replace("--", "—")
+    ))
+}
+
+/// Writes `text` to a new file at `path`; an existing file is never overwritten.
+fn write_new(path: &str, flag: &str, text: &str) -> Result<()> {
     let mut f = std::fs::OpenOptions::new().write(true).create_new(true).open(path).with_context(|| {
-        format!("--time-course {path}: cannot create a new file (an existing file is never overwritten)")
+        format!("{flag} {path}: cannot create a new file (an existing file is never overwritten)")
     })?;
-    std::io::Write::write_all(&mut f, text.as_bytes()).with_context(|| format!("--time-course {path}"))?;
+    std::io::Write::write_all(&mut f, text.as_bytes()).with_context(|| format!("{flag} {path}"))?;
     Ok(())
 }

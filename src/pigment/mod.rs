@@ -2,6 +2,7 @@
 //! of steps, and the bleach report with recovery and threshold estimates.
 
 pub mod bleach;
+pub mod course;
 pub mod flash;
 pub mod kinetics;
 pub mod schedule;

@@ -28,6 +28,7 @@ use serde::Deserialize;
 use crate::base::error::{Error, Result};
 use crate::base::quantity::SiValue;
 use crate::base::units::{TrolandKind, parse_isomerisation_rate, parse_time, parse_typed_trolands};
+use crate::pigment::course::{Course, CourseStep};
 use crate::pigment::kinetics::{LevelUnit, Model, Pigment, find_pigment};
 use crate::pigment::schedule::Schedule;
 use crate::retina::report::assess_retina;
@@ -44,6 +45,30 @@ pub struct BleachScenario {
     pub schedule: Schedule,
     /// Starting bleached fraction.
     pub start: f64,
+    /// The steps of one cycle with their levels, and the number of cycles (for the solves and
+    /// sweeps on a named step; empty in the quick form).
+    pub cycle: (Vec<CourseStep>, u64),
+}
+
+impl BleachScenario {
+    /// The schedule as a [`Course`] with the current receptor and model (after any overrides).
+    ///
+    /// # Errors
+    /// [`crate::ErrorKind::InvalidInput`] when there is no schedule file (the quick form).
+    pub fn course(&self) -> Result<Course> {
+        if self.cycle.0.is_empty() {
+            return Err(Error::input(
+                "a named step needs a schedule: give --schedule FILE or --scenario FILE",
+            ));
+        }
+        Ok(Course {
+            pigment: self.pigment.clone(),
+            model: self.model,
+            steps: self.cycle.0.clone(),
+            repeat: self.cycle.1,
+            start: self.start,
+        })
+    }
 }
 
 #[derive(Deserialize)]
@@ -156,19 +181,22 @@ fn resolve(raw: &RawScenario, base: Option<&Path>) -> Result<BleachScenario> {
     };
     let mut schedule = Schedule::default();
     let mut source_levels: Vec<(SourceSpec, f64)> = Vec::new();
+    let mut cycle = Vec::with_capacity(raw.step.len());
     for (i, s) in raw.step.iter().enumerate() {
         let at = |e: Error| e.key(&format!("step[{i}]"));
         let name = s.name.clone().unwrap_or_else(|| format!("step {}", i + 1));
-        let d = parse_time(&s.duration).map_err(|e| at(e.key("duration")))?.si();
+        let duration = parse_time(&s.duration).map_err(|e| at(e.key("duration")))?;
         let level = step_level(raw, s, &pigment, &mut source_levels, base).map_err(at)?;
-        schedule.push(&name, d, pigment.rate_of_level(level)).map_err(at)?;
+        schedule.push(&name, duration.si(), pigment.rate_of_level(level)).map_err(at)?;
+        cycle.push(CourseStep { name, duration, level });
     }
-    schedule.repeat(raw.repeat.unwrap_or(1)).map_err(|e| e.key("repeat"))?;
+    let repeat = raw.repeat.unwrap_or(1);
+    schedule.repeat(repeat).map_err(|e| e.key("repeat"))?;
     let start = raw.start_bleached.unwrap_or(0.0);
     if !(0.0..=1.0).contains(&start) {
         return Err(Error::input(format!("{start} must be between 0 and 1")).key("start_bleached"));
     }
-    Ok(BleachScenario { pigment, model, schedule, start })
+    Ok(BleachScenario { pigment, model, schedule, start, cycle: (cycle, repeat) })
 }
 
 /// The level of one step: its `level`, or its `source` through the retina chain (each distinct

@@ -66,6 +66,8 @@ struct RawStep {
     duration: String,
     #[serde(default)]
     on: Vec<String>,
+    edi_target: Option<String>,
+    rod_target: Option<String>,
 }
 
 #[derive(Deserialize)]
@@ -111,6 +113,8 @@ pub struct Step {
     pub duration: Time,
     /// Indexes (into the scenario's sources) of the sources lit.
     pub on: Vec<usize>,
+    /// The user's targets for this step's light (`edi_target`, `rod_target`).
+    pub targets: crate::housing::guidance::StepTargets,
 }
 
 /// The schedule, resolved.
@@ -377,7 +381,9 @@ fn step(st: &RawStep, ids: &[String], seen: &[bool]) -> Result<Step> {
         ))
         .key("on"));
     }
-    Ok(Step { name: st.name.clone(), phase, duration, on })
+    let targets =
+        crate::housing::guidance::StepTargets::parse(st.edi_target.as_deref(), st.rod_target.as_deref())?;
+    Ok(Step { name: st.name.clone(), phase, duration, on, targets })
 }
 
 fn limits(l: RawLimits, ids: &[String]) -> Result<LimitsSpec> {

@@ -5,6 +5,7 @@ mod adaptation;
 mod assess;
 mod bad_input;
 mod bleach_reference;
+mod bleach_solve;
 mod browser;
 mod cli;
 mod compare;

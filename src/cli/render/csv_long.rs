@@ -268,6 +268,19 @@ fn guidance(l: &mut Long<'_>, a: &Assessment) -> io::Result<()> {
         let item = format!("{} / {} / {}", g.flag.set, g.flag.name, super::basis_text(g));
         l.row("guidance", &item, "value compared", Val::N(g.flag.value_lx), "lx", status)?;
     }
+    for b in &a.brightest {
+        let bound = match &b.source {
+            retidose::housing::guidance::BoundSource::Target => match b.bound {
+                retidose::housing::guidance::StepQuantity::RodRate(_) => "rod_target".to_string(),
+                _ => "edi_target".to_string(),
+            },
+            retidose::housing::guidance::BoundSource::Guidance { set, rule, .. } => format!("{set} / {rule}"),
+        };
+        let item = format!("step '{}' / {bound}", b.step);
+        let status = if b.meets { "meets" } else { "above" };
+        l.row("brightest", &item, "factor on the step's light", Val::N(b.factor), "1", status)?;
+        l.row("brightest", &item, "brightest room illuminance", Val::N(b.brightest_room.si()), "lx", status)?;
+    }
     Ok(())
 }
 

@@ -66,6 +66,7 @@ fn section(o: &mut String, a: &Assessment, s: &Scenario) {
     if !a.guidance.is_empty() {
         guidance(o, a);
     }
+    brightest(o, a);
     for e in a.evidence.iter().filter(|_| a.room.is_none()) {
         let _ = write!(
             o,
@@ -278,6 +279,18 @@ fn room(o: &mut String, a: &Assessment, room: &RoomResult) {
             o.push_str(&svg::html(&f));
         }
         o.push_str(&svg::dimming::rack(r).map_or_else(String::new, |f| svg::html(&f)));
+    }
+}
+
+/// The brightest light of each step within each bound, as a list.
+fn brightest(o: &mut String, a: &Assessment) {
+    let lines = super::terminal::assess::brightest_lines(a);
+    if !lines.is_empty() {
+        o.push_str("<h2>Brightest light within each bound</h2><ul>");
+        for l in &lines {
+            let _ = write!(o, "<li>{}</li>", esc(l));
+        }
+        o.push_str("</ul>");
     }
 }
 

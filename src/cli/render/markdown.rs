@@ -42,6 +42,7 @@ pub fn assessment(all: &[Assessment]) -> String {
         if !a.guidance.is_empty() {
             guidance(&mut o, a);
         }
+        brightest(&mut o, a);
         if let Some(r) = &a.room {
             room(&mut o, a, r);
         }
@@ -211,6 +212,18 @@ fn guidance(o: &mut String, a: &Assessment) {
         );
     }
     let _ = writeln!(o);
+}
+
+/// The brightest light of each step within each bound, as a list.
+fn brightest(o: &mut String, a: &Assessment) {
+    let lines = super::terminal::assess::brightest_lines(a);
+    if !lines.is_empty() {
+        let _ = writeln!(o, "## Brightest light within each bound\n");
+        for l in &lines {
+            let _ = writeln!(o, "- {}", user(l));
+        }
+        let _ = writeln!(o);
+    }
 }
 
 /// The holding room: the sentences per rack and each rack's map as a table.

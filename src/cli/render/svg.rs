@@ -38,6 +38,11 @@ pub fn threshold(
     plot::threshold::figure(curve, measured, fit)
 }
 
+/// Bleach against the level of one step's light (`retidose bleach --sweep-level --plot`).
+pub fn bleach_level(sweep: &retidose::pigment::course::LevelSweep, title: &str) -> Option<Figure> {
+    plot::bleach_level::figure(sweep, title)
+}
+
 /// Every hazard ratio on a log axis with the ratio-1 line.
 pub fn hazard_ratios(a: &Assessment) -> Option<Figure> {
     plot::hazards::figure(a)

@@ -7,6 +7,7 @@
 //! (for its own label areas), so every margin here is set explicitly, with room to spare.
 
 pub mod bleach;
+pub mod bleach_level;
 pub mod dimming;
 pub mod distance;
 pub mod hazards;

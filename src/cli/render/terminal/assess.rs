@@ -59,6 +59,7 @@ fn scenario(o: &mut Page, a: &Assessment) {
         limits(o, l);
     }
     guidance(o, a);
+    brightest(o, a);
     if a.room.is_none() && !a.evidence.is_empty() {
         o.heading("Evidence (not limits)", false);
         for e in &a.evidence {
@@ -302,6 +303,61 @@ fn guidance(o: &mut Page, a: &Assessment) {
         t.painted_row(row);
     }
     o.table(&t);
+}
+
+/// The brightest light of each step within the user's targets and the guidance's upper bounds.
+fn brightest(o: &mut Page, a: &Assessment) {
+    let lines = brightest_lines(a);
+    if lines.is_empty() {
+        return;
+    }
+    o.heading("Brightest light within each bound (the step's light scaled; light is linear)", false);
+    for l in &lines {
+        o.item("  ", l);
+    }
+}
+
+/// The brightest-light sentences, one per bound and step (shared by the terminal, Markdown and
+/// HTML reports).
+pub fn brightest_lines(a: &Assessment) -> Vec<String> {
+    use retidose::housing::guidance::{BoundSource, StepQuantity};
+    a.brightest
+        .iter()
+        .map(|b| {
+            let (unit, what, key) = match b.bound {
+                StepQuantity::MelanopicEdi(_) => ("lx", " melanopic EDI", "edi_target"),
+                StepQuantity::RodRate(_) => ("R*/rod/s", "", "rod_target"),
+                StepQuantity::Illuminance(_) => ("lx", "", ""),
+            };
+            let bound = match &b.source {
+                BoundSource::Target => format!("{key} {} {unit}{what}", num(b.bound.si())),
+                BoundSource::Guidance { set, name, .. } => {
+                    format!("{set} / {name}: at most {} {unit}{what}", num(b.bound.si()))
+                }
+            };
+            let head = format!("Step '{}', {bound}", b.step);
+            if b.factor.is_infinite() {
+                return format!("{head}: met (no light in this step).");
+            }
+            let value = format!("{}{} {unit}", if b.value_is_lower_bound { "≥ " } else { "" }, num(b.value.si()));
+            let state = if b.meets {
+                format!("met with a margin of {}× ({value})", num(b.factor))
+            } else {
+                format!("{value} is above it")
+            };
+            let lower = match (b.value_is_lower_bound, b.pupil_adapts) {
+                (true, _) => " (at most: the step's value is a lower bound)",
+                (_, true) if b.factor < 1.0 => " (at most: the pupil opens as the light dims)",
+                _ => "",
+            };
+            format!(
+                "{head}: {state}; the brightest allowed is {}× the step's light as written{lower}, {} lx of room light \
+                 before the filters.",
+                num(b.factor),
+                num(b.brightest_room.si())
+            )
+        })
+        .collect()
 }
 
 /// Sources of limits and guidance, what was not assessed, and the outcome.
