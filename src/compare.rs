@@ -23,8 +23,9 @@
 //! without a margin come last, in input order. A scenario compared with itself therefore gives
 //! two identical columns side by side.
 //!
-//! Variants are listed in a small file of their own ([`parse_variants`]): `[[variant]]` tables
-//! with a `name` and a scenario `file`, relative to the variants file.
+//! Variants are written inside a scenario file as `[[variant]]` patches of it
+//! ([`crate::scenario::variant`]), or listed in a small file of their own ([`parse_variants`]):
+//! `[[variant]]` tables with a `name` and a scenario `file`, relative to the variants file.
 
 use std::path::{Path, PathBuf};
 
@@ -48,6 +49,8 @@ pub struct Comparison {
     pub groups: Vec<Aligned<GroupCell>>,
     /// Per rack of the room, keyed by rack id.
     pub racks: Vec<Aligned<RackCell>>,
+    /// The cautions of the assessments (each once, in the order of the columns).
+    pub cautions: Vec<String>,
 }
 
 /// The figures of one scenario.
@@ -242,7 +245,14 @@ pub fn compare(items: &[(&str, &Assessment)]) -> Comparison {
         (None, None) => std::cmp::Ordering::Equal,
     });
     let ranked: Vec<&Assessment> = order.iter().map(|&i| items[i].1).collect();
+    let mut cautions: Vec<String> = Vec::new();
+    for c in ranked.iter().flat_map(|a| &a.cautions) {
+        if !cautions.contains(c) {
+            cautions.push(c.clone());
+        }
+    }
     Comparison {
+        cautions,
         hazards: align(&ranked, hazard_rows),
         groups: align(&ranked, group_rows),
         racks: align(&ranked, rack_rows),

@@ -134,6 +134,12 @@ fn load_scenarios(a: &AssessArgs) -> Result<(Vec<Scenario>, Vec<PathBuf>)> {
             inputs.push(Path::new(file).to_path_buf());
             let s = parse_scenario_file(&text, file, Path::new(file).parent())?;
             inputs.extend(s.inputs.iter().cloned());
+            let n = retidose::scenario::variant::count(&text);
+            if n > 0 {
+                eprintln!(
+                    "retidose: assessing the base scenario only; {file} has {n} variant(s): compare them with `retidose compare {file}`"
+                );
+            }
             vec![s]
         }
         (None, None) => bail!("give a scenario file, --demo or --example"),

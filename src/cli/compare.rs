@@ -6,27 +6,46 @@ use std::path::{Path, PathBuf};
 
 use anyhow::{Context, Result, bail};
 use clap::{Args, ValueEnum};
-use retidose::assess::{Assessment, assess, parse_scenario_file};
-use retidose::compare::{Aligned, Column, Comparison, Recovery90, compare, parse_variants};
+use retidose::assess::{Assessment, assess};
+use retidose::compare::{Comparison, compare, parse_variants};
 use retidose::scenario::file::Scenario;
+use retidose::scenario::variant::parse_with_variants;
 use tabled::builder::Builder;
 use tabled::settings::Style;
-use uom::si::illuminance::lux;
-use uom::si::length::millimeter;
-use uom::si::time::second;
 
 use super::Output;
 use super::output::{AtomicFile, check_target};
+use super::render::compare_doc::{self, figures};
 use super::render::escape::{csv_cell, terminal_line};
-use super::render::{CAUTION, duration, num, t_max_words, terminal};
+use super::render::{CAUTION, terminal};
 
 /// Help shown after `retidose compare --help`.
 pub const EXAMPLES: &str = "\
 Examples:
+  retidose compare --example > lamp-variants.toml
+  retidose compare lamp-variants.toml --format markdown
   retidose compare lamp-a.toml lamp-b.toml
+  retidose compare room.toml --format html -o room-variants.html
   retidose compare --variants variants.toml --format csv
 
-A variants file lists the scenarios to compare, each under a name, paths relative to it:
+A scenario file can hold its own variants, each a name and the changes to the base scenario;
+`compare FILE` compares the base and every variant:
+  [[variant]]
+  name = \"dimmed to 60 %\"
+  [[variant.source]]
+  id = \"panels\"          # sources, luminaires, racks by id; filters, steps, events by name
+  scale = 0.6             # multiplies its level (illuminance, intensity, lux…)
+  [[variant]]
+  name = \"lamp at 1 m, with a diffuser\"
+  [[variant.source]]
+  id = \"lamp\"
+  distance = \"1 m\"       # replaces the key
+  [[variant.filter]]
+  name = \"opal diffuser\"
+  add = true              # a new entry (remove = true drops one)
+  transmittance = \"0.5\"
+
+A variants file lists whole scenario files instead, each under a name, paths relative to it:
   [[variant]]
   name = \"as built\"
   file = \"rig.toml\"
@@ -40,11 +59,17 @@ first; ties keep the order given.
 Exit status: 0 when every compared scenario is within its limits and raises no guidance flag,
 1 when any exceeds a limit or raises a flag, 2 on an input error.";
 
+/// The scenario `--example` prints: a lamp and four variants of it.
+const EXAMPLE: &str = include_str!("../demo/lamp_variants.toml");
+
 #[derive(Debug, Args)]
 pub struct CompareArgs {
-    /// Scenario files to compare (at least two, or one with --variants)
-    #[arg(value_name = "SCENARIO", required_unless_present = "variants")]
+    /// Scenario files to compare (at least two, or one with [[variant]] tables, or --variants)
+    #[arg(value_name = "SCENARIO", required_unless_present_any = ["variants", "example"])]
     scenarios: Vec<String>,
+    /// Print an example scenario with variants to start from
+    #[arg(long, conflicts_with_all = ["scenarios", "variants"])]
+    example: bool,
     /// A variants file: [[variant]] tables with name and file
     #[arg(long, value_name = "FILE")]
     variants: Option<String>,
@@ -68,13 +93,22 @@ pub enum CompareFormat {
     Csv,
     /// JSON (schema retidose.comparison/1)
     Json,
+    /// Markdown: the ranking, then every figure side by side
+    Markdown,
+    /// One self-contained HTML file, with a figure of the margins
+    Html,
 }
 
 /// Runs `retidose compare`.
 pub fn run(a: CompareArgs) -> Result<Output> {
+    if a.example {
+        return Ok(Output { text: EXAMPLE.to_string(), status: 0 });
+    }
     let (named, inputs) = load(&a)?;
     if named.len() < 2 {
-        bail!("compare needs at least two scenarios; give two files, or a variants file with two variants");
+        bail!(
+            "compare needs at least two scenarios; give two files, a scenario file with [[variant]] tables, or a variants file with two variants"
+        );
     }
     if let Some(path) = &a.output {
         check_target(Path::new(path), &inputs, a.force)?;
@@ -109,7 +143,10 @@ pub fn run(a: CompareArgs) -> Result<Output> {
 /// Scenarios, each with the label of its column.
 type Labelled = Vec<(String, Scenario)>;
 
-/// The scenarios with their labels, and every input file read.
+/// The scenarios with their labels, and every input file read. A scenario file with
+/// `[[variant]]` tables gives its base and each variant; alone, the base is labelled by the
+/// scenario's name ("base" when a variant has that name) and each variant by its name, and with
+/// other files every label starts with the file's.
 fn load(a: &CompareArgs) -> Result<(Labelled, Vec<PathBuf>)> {
     let mut inputs = Vec::new();
     let mut files: Vec<(String, PathBuf)> =
@@ -122,15 +159,26 @@ fn load(a: &CompareArgs) -> Result<(Labelled, Vec<PathBuf>)> {
             files.push((var.name, var.file));
         }
     }
+    let alone = files.len() == 1;
     let mut out = Vec::with_capacity(files.len());
     for (label, path) in files {
         let shown = path.display().to_string();
         let text =
             std::fs::read_to_string(&path).with_context(|| format!("cannot read the scenario {shown}"))?;
-        let s = parse_scenario_file(&text, &shown, path.parent())?;
+        let (base, variants) = parse_with_variants(&text, &shown, path.parent())?;
         inputs.push(path);
-        inputs.extend(s.inputs.iter().cloned());
-        out.push((label, s));
+        inputs.extend(base.inputs.iter().cloned());
+        let base_label = match (alone, variants.is_empty()) {
+            (true, false) if variants.iter().any(|v| v.name == base.name) => "base".to_string(),
+            (true, false) => base.name.clone(),
+            _ => label.clone(),
+        };
+        out.push((base_label, base));
+        for v in variants {
+            inputs.extend(v.scenario.inputs.iter().cloned());
+            let l = if alone { v.name } else { format!("{label}: {}", v.name) };
+            out.push((l, v.scenario));
+        }
     }
     Ok((out, inputs))
 }
@@ -139,6 +187,8 @@ fn render(c: &Comparison, format: CompareFormat) -> Result<String> {
     Ok(match format {
         CompareFormat::Table => table(c, terminal::width()),
         CompareFormat::Csv => csv(c)?,
+        CompareFormat::Markdown => compare_doc::markdown(c),
+        CompareFormat::Html => compare_doc::html(c),
         CompareFormat::Json => {
             let doc = serde_json::json!({ "schema": "retidose.comparison/1", "comparison": c });
             let mut s = serde_json::to_string_pretty(&doc)?;
@@ -146,117 +196,6 @@ fn render(c: &Comparison, format: CompareFormat) -> Result<String> {
             s
         }
     })
-}
-
-/// One figure: its label, its unit ("" when none) and one value per column ("absent" where the
-/// scenario has no such row).
-struct Figure {
-    label: String,
-    unit: &'static str,
-    values: Vec<String>,
-}
-
-impl Figure {
-    fn per_column(label: &str, unit: &'static str, c: &Comparison, f: impl Fn(&Column) -> String) -> Self {
-        Figure { label: label.to_string(), unit, values: c.columns.iter().map(f).collect() }
-    }
-
-    fn aligned<T>(label: String, unit: &'static str, row: &Aligned<T>, f: impl Fn(&T) -> String) -> Self {
-        let values = row.cells.iter().map(|x| x.as_ref().map_or_else(|| "absent".to_string(), &f)).collect();
-        Figure { label, unit, values }
-    }
-}
-
-/// Every figure of the comparison, in the order the reports show them.
-fn figures(c: &Comparison) -> Vec<Figure> {
-    let dash = || "—".to_string();
-    let mut out = vec![
-        Figure::per_column("rank", "", c, |_| String::new()),
-        Figure::per_column("scenario", "", c, |col| col.scenario.clone()),
-        Figure::per_column("outcome", "", c, outcome),
-        Figure::per_column("margin (factor to the limit)", "", c, |col| col.margin.map_or_else(dash, num)),
-        Figure::per_column("binding hazard", "", c, |col| {
-            col.worst.as_ref().map_or_else(dash, |w| w.hazard.clone())
-        }),
-        Figure::per_column("worst ratio to limit", "", c, |col| {
-            col.worst
-                .as_ref()
-                .map_or_else(dash, |w| format!("{}{}", if w.lower_bound { "≥ " } else { "" }, num(w.ratio)))
-        }),
-        Figure::per_column("t_max (binding hazard)", "", c, |col| {
-            col.worst.as_ref().map_or_else(dash, |w| t_max_words(&w.t_max, w.lower_bound))
-        }),
-        Figure::per_column("risk group", "", c, |col| {
-            col.risk_group.map_or_else(dash, |(g, lb)| {
-                format!("{}{}", g.name(), if lb { " (lower bound)" } else { "" })
-            })
-        }),
-    ];
-    for (i, v) in out[0].values.iter_mut().enumerate() {
-        *v = (i + 1).to_string();
-    }
-    for g in &c.groups {
-        out.push(Figure::aligned(format!("risk group: {}", g.label), "", g, |x| match (x.group, &x.error) {
-            (Some(r), _) => format!("{}{}", r.name(), if x.lower_bound { " (lower bound)" } else { "" }),
-            (None, Some(_)) => "not assessed".into(),
-            (None, None) => dash(),
-        }));
-        out.push(Figure::aligned(format!("E_thr: {}", g.label), "lx", g, |x| {
-            x.e_thr.map_or_else(dash, |e| num(e.get::<lux>()))
-        }));
-        out.push(Figure::aligned(format!("threshold distance: {}", g.label), "mm", g, |x| {
-            x.threshold_distance.map_or_else(dash, |d| num(d.get::<millimeter>()))
-        }));
-    }
-    for h in &c.hazards {
-        out.push(Figure::aligned(format!("ratio: {}", h.label), "", h, |x| x.ratio.map_or_else(dash, num)));
-    }
-    out.extend(room_and_bleach(c));
-    out
-}
-
-/// The figures of the rooms' racks and of bleaching.
-fn room_and_bleach(c: &Comparison) -> Vec<Figure> {
-    let dash = || "—".to_string();
-    let mut out = Vec::new();
-    for r in &c.racks {
-        let n = |f: fn(&retidose::compare::RackCell) -> usize| {
-            move |x: &retidose::compare::RackCell| f(x).to_string()
-        };
-        out.push(Figure::aligned(format!("{}: positions", r.label), "", r, n(|x| x.positions)));
-        out.push(Figure::aligned(format!("{}: below range", r.label), "", r, n(|x| x.below)));
-        out.push(Figure::aligned(format!("{}: in range", r.label), "", r, |x| {
-            x.in_range.map_or_else(dash, |v| v.to_string())
-        }));
-        out.push(Figure::aligned(format!("{}: above range", r.label), "", r, n(|x| x.above)));
-        out.push(Figure::aligned(format!("{}: lever factor", r.label), "", r, |x| {
-            x.lever_factor.map_or_else(dash, num)
-        }));
-    }
-    if c.columns.iter().any(|col| col.bleach.is_some()) {
-        let absent = || "absent".to_string();
-        out.push(Figure::per_column("peak bleached", "%", c, |col| {
-            col.bleach.as_ref().map_or_else(absent, |b| num(100.0 * b.peak))
-        }));
-        out.push(Figure::per_column("recovery to 90 % after the last lights-off", "", c, |col| {
-            col.bleach.as_ref().map_or_else(absent, |b| match b.recovery_90 {
-                Recovery90::NoLightsOff => "no lights-off".into(),
-                Recovery90::NotReached => "not reached".into(),
-                Recovery90::After(t) => duration(t.get::<second>()),
-            })
-        }));
-    }
-    out
-}
-
-fn outcome(col: &Column) -> String {
-    match (col.limit_exceeded, col.flag_raised) {
-        (false, false) => "within limits, no flag",
-        (true, false) => "LIMIT EXCEEDED",
-        (false, true) => "FLAG RAISED",
-        (true, true) => "LIMIT EXCEEDED, FLAG RAISED",
-    }
-    .to_string()
 }
 
 /// The CSV report: scenario, figure, value, unit (cells quoted where needed, a leading formula
@@ -282,6 +221,10 @@ fn table(c: &Comparison, width: usize) -> String {
     let label_w = figs.iter().map(|f| f.label.chars().count() + f.unit.len() + 3).max().unwrap_or(10).min(36);
     let mut out =
         String::from("retidose compare — ranked by margin (factor to the limit), largest first\n\n");
+    for caution in &c.cautions {
+        out.push_str(&textwrap::fill(&format!("Caution. {}", terminal_line(caution)), width.min(100)));
+        out.push_str("\n\n");
+    }
     for (chunk, cols) in c.columns.chunks(PER_TABLE).enumerate() {
         let first = chunk * PER_TABLE;
         let n = cols.len();

@@ -39,6 +39,9 @@ struct RawScenario {
     guidance: Option<RawGuidance>,
     survey: Option<toml::Value>,
     room: Option<RawRoom>,
+    /// `[[variant]]` tables: read by `scenario::variant`, ignored by the base scenario.
+    #[serde(rename = "variant")]
+    _variants: Option<serde::de::IgnoredAny>,
 }
 
 #[derive(Deserialize)]

@@ -11,6 +11,7 @@ pub mod bleach;
 pub mod file;
 pub mod retina;
 pub mod room;
+pub mod variant;
 
 use serde::Serialize;
 

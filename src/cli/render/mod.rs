@@ -13,6 +13,7 @@
 //! every report, and the wording of the `assess` report (verdicts, schedule steps, pupil rule,
 //! guidance basis, recovery).
 
+pub mod compare_doc;
 pub mod csv;
 pub mod csv_long;
 pub mod escape;

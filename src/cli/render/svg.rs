@@ -62,6 +62,11 @@ pub fn heatmap(rack: &RackResult, cells: &[Option<Cell>]) -> Option<Figure> {
     plot::heatmap::figure(rack, cells)
 }
 
+/// The margin of each compared scenario on a log axis with the margin-1 line.
+pub fn margins(c: &retidose::compare::Comparison) -> Option<Figure> {
+    plot::margins::figure(c)
+}
+
 /// A figure as HTML: the inline SVG in a `<figure>` with its caption.
 pub fn html(f: &Figure) -> String {
     format!(

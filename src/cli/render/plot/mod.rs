@@ -12,6 +12,7 @@ pub mod dimming;
 pub mod distance;
 pub mod hazards;
 pub mod heatmap;
+pub mod margins;
 pub mod spectrum;
 pub mod sweep;
 pub mod threshold;
