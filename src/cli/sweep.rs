@@ -22,6 +22,7 @@ use retidose::limits::{LimitSet, Verdict, find_set};
 use retidose::scenario::file::Scenario;
 
 use super::Output;
+use super::render::terminal::{Page, Table, width};
 use super::render::{duration, num};
 
 /// Help shown after `retidose sweep --help`.
@@ -464,23 +465,39 @@ fn group_cell(g: Option<GroupAt>) -> String {
     }
 }
 
-/// Columns padded to their widest cell, separated by two spaces.
+/// The rows (the first is the header) as the shared box table, fitted to the terminal's width
+/// (narrowed, or split with the first column repeated).
 fn columns(rows: &[Vec<String>]) -> String {
-    let n = rows.iter().map(Vec::len).max().unwrap_or(0);
-    let width: Vec<usize> = (0..n)
-        .map(|i| rows.iter().filter_map(|r| r.get(i)).map(|c| c.chars().count()).max().unwrap_or(0))
-        .collect();
+    let Some((header, body)) = rows.split_first() else { return String::new() };
+    let mut table = Table::new(header);
+    for r in body {
+        table.row(r.clone());
+    }
+    let mut page = Page::new(width(), false);
+    page.table(&table);
+    page.finish()
+}
+
+/// `text` with every line outside a table wrapped to the terminal's width.
+fn fitted(text: &str) -> String {
+    let mut page = Page::new(width(), false);
     let mut out = String::new();
-    for r in rows {
-        let cells: Vec<String> = r
-            .iter()
-            .enumerate()
-            .map(|(i, c)| format!("{c}{}", " ".repeat(width[i] - c.chars().count())))
-            .collect();
-        out.push_str(cells.join("  ").trim_end());
-        out.push('\n');
+    for line in text.lines() {
+        if line.is_empty() || line.starts_with(['┌', '│', '├', '└']) {
+            out.push_str(line);
+            out.push('\n');
+        } else {
+            page.para(line.trim_start(), &line[..line.len() - line.trim_start().len()]);
+            out.push_str(&std::mem::replace(&mut page, Page::new(width(), false)).finish());
+        }
     }
     out
+}
+
+/// The columns' hazard ids in words, one line.
+fn legend(hazards: &[HazardPoint]) -> String {
+    let words: Vec<String> = hazards.iter().map(|h| format!("{} = {}", h.id, h.name)).collect();
+    format!("\nColumns: {}.\n", words.join("; "))
 }
 
 /// The sweep as a table: distance, t_max per hazard, the risk group.
@@ -508,12 +525,13 @@ fn sweep_table(points: &[DistancePoint], id: &str, set: &LimitSet, t: Time) -> S
         rows.push(row);
     }
     out.push_str(&columns(&rows));
+    out.push_str(&legend(&first.hazards));
     out.push_str(
         "\nt_max: the longest permissible exposure at that distance; \"> T\" not reached within the set's range \
          (T), \"never\" not reached at any duration, \"< T\" exceeded already at T, \"≤ T\" an upper bound (band \
          partly covered), \"—\" not applicable or not assessed. The source is moved along its axis.\n",
     );
-    out
+    fitted(&out)
 }
 
 /// The verdict as one CSV word.
@@ -597,6 +615,7 @@ fn ratio_table(over: Over, points: &[Row<'_>], id: &str, set: &LimitSet, t: Time
         rows.push(row);
     }
     out.push_str(&columns(&rows));
+    out.push_str(&legend(first.hazards));
     out.push_str(
         "\nratio: exposure ÷ limit (above 1 the limit is exceeded); \"≥ x\" a lower bound (band partly covered), \
          \"—\" not applicable or not assessed. The source stays where it is placed.\n",
@@ -604,7 +623,7 @@ fn ratio_table(over: Over, points: &[Row<'_>], id: &str, set: &LimitSet, t: Time
     if over == Over::Transmittance {
         out.push_str("A neutral filter of transmittance T gives the numbers of the source at level ×T.\n");
     }
-    out
+    fitted(&out)
 }
 
 /// The t_max-against-distance figure of a distance sweep.
@@ -678,7 +697,7 @@ fn room_table(racks: &[RackDimming]) -> String {
         rows.push(row);
     }
     out.push_str(&columns(&rows));
-    out
+    fitted(&out)
 }
 
 /// The room's dimming sweep as tidy long CSV rows.
@@ -722,14 +741,14 @@ fn nearest_text(n: &Nearest, near: Length, far: Length) -> String {
 }
 
 /// The longest exposure at the placed distance in words.
-fn longest_text(l: &Longest) -> String {
+fn longest_text(l: &Longest, name: &dyn Fn(&str) -> String) -> String {
     match l {
         Longest::Limited { t_max, hazard, partial } => {
             let bound = if *partial { "at most " } else { "" };
-            format!("{bound}{} (bound by {hazard})", duration(t_max.si()))
+            format!("{bound}{} (bound by {})", duration(t_max.si()), name(hazard))
         }
         Longest::ExceededBefore { shortest, hazard } => {
-            format!("none: {hazard} is exceeded already at {}", duration(shortest.si()))
+            format!("none: {} is exceeded already at {}", name(hazard), duration(shortest.si()))
         }
         Longest::NotReached { up_to } if up_to.si().is_infinite() => "no limit is ever reached".into(),
         Longest::NotReached { up_to } => format!("no limit is reached within {}", duration(up_to.si())),
@@ -756,7 +775,7 @@ fn solve_table(
         n.tolerance
     );
     let mut rows = vec![vec!["hazard".to_string(), "nearest distance within the limit".to_string()]];
-    rows.extend(n.hazards.iter().map(|h| vec![h.id.clone(), nearest_text(&h.nearest, n.near, n.far)]));
+    rows.extend(n.hazards.iter().map(|h| vec![h.name.clone(), nearest_text(&h.nearest, n.near, n.far)]));
     out.push_str(&columns(&rows));
     if !n.groups.is_empty() {
         let mut rows =
@@ -777,7 +796,9 @@ fn solve_table(
         out.push_str(&format!(
             "\nAt the placed distance {}: longest exposure within every limit {}\n",
             distance_text(d),
-            longest_text(&l.longest)
+            longest_text(&l.longest, &|id: &str| {
+                n.hazards.iter().find(|h| h.id == id).map_or_else(|| id.to_string(), |h| h.name.clone())
+            })
         ));
         if !l.not_assessed.is_empty() {
             out.push_str(&format!(
@@ -786,5 +807,5 @@ fn solve_table(
             ));
         }
     }
-    out
+    fitted(&out)
 }
