@@ -463,7 +463,7 @@ fn rod_rate_lines(p: &mut Page, r: &retidose::uncertainty::routes::RodRateRecomm
     for x in &r.routes {
         let how = x
             .factor
-            .map_or("spectral route".to_string(), |k| format!("{} × {} per scot td", x.route, num(k)));
+            .map_or("spectral route".to_string(), |k| format!("{} per scot td ({})", num(k), x.source));
         p.para(&format!("{how}: {} R*/rod/s", num(x.rate.si())), "  ");
     }
     p.para(

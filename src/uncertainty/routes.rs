@@ -32,6 +32,8 @@ pub struct RodRoute {
     pub route: String,
     /// R*/rod/s per scotopic troland, for a factor route.
     pub factor: Option<f64>,
+    /// Where the factor is published (empty for the spectral route).
+    pub source: String,
     /// The rate by this route.
     pub rate: Frequency,
 }
@@ -63,10 +65,12 @@ const RECTANGULAR_95: f64 = 0.95;
 /// rod rate comes by at least two routes; `None` with no rod, no factor routes or a zero rate.
 pub fn recommended_rod_rate(label: &str, retinal: &Retinal) -> Option<RodRateRecommendation> {
     let rod = retinal.catch.iter().find(|c| c.receptor == "rod")?;
-    let mut routes = vec![RodRoute { route: "spectral".into(), factor: None, rate: rod.rate }];
+    let mut routes =
+        vec![RodRoute { route: "spectral".into(), factor: None, source: String::new(), rate: rod.rate }];
     routes.extend(rod.troland_routes.iter().map(|t| RodRoute {
         route: t.name.clone(),
         factor: Some(t.factor),
+        source: t.source.clone(),
         rate: t.rate,
     }));
     let rates: Vec<f64> = routes.iter().map(|r| r.rate.si()).collect();
