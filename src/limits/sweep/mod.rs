@@ -30,6 +30,8 @@ pub use placed::{
 
 use std::f64::consts::PI;
 
+use rayon::prelude::*;
+
 use super::evaluate::{Exposure, HazardResult, TMax, Verdict, assess};
 use super::report::{LimitsRequest, assess_limits, movable_source};
 use super::risk::{MovableSource, RiskGroup};
@@ -319,7 +321,8 @@ fn log_grid(a: f64, b: f64, points: usize, what: &str, unit: &str) -> Result<Vec
 /// 0 m, a duration not above 0 s or a hazard id not in the set.
 pub fn sweep_distance(r: &LimitsRequest<'_>, distances: &[Length]) -> Result<Vec<DistancePoint>> {
     let plan = Plan::new(r)?;
-    distances.iter().map(|&d| plan.point(d)).collect()
+    // Points are independent: spread them over every core (rayon keeps their order).
+    distances.par_iter().map(|&d| plan.point(d)).collect()
 }
 
 /// The nearest safe distance of one hazard or group, or why there is none in the bracket.

@@ -23,6 +23,8 @@
 //!   limit. Like every filter of a scenario, the classification counts it as part of the lamp
 //!   system.
 
+use rayon::prelude::*;
+
 use super::{GroupAt, HazardPoint, hazard_point, log_grid};
 use crate::base::error::{Error, Result};
 use crate::base::quantity::{Ratio, SiValue, Time};
@@ -98,7 +100,7 @@ fn point(r: &LimitsRequest<'_>) -> Result<(Vec<HazardPoint>, Option<GroupAt>)> {
 pub fn sweep_duration(r: &LimitsRequest<'_>, durations: &[Time]) -> Result<Vec<DurationPoint>> {
     let r = LimitsRequest { classify: None, ..r.clone() };
     durations
-        .iter()
+        .par_iter()
         .map(|&duration| {
             let (hazards, _) = point(&LimitsRequest { duration, ..r.clone() })?;
             Ok(DurationPoint { duration, hazards })
@@ -113,7 +115,7 @@ pub fn sweep_duration(r: &LimitsRequest<'_>, durations: &[Time]) -> Result<Vec<D
 /// [`crate::ErrorKind::InvalidInput`] for a factor not above 0 (or not finite), and as [`assess_limits`].
 pub fn sweep_level(r: &LimitsRequest<'_>, factors: &[Ratio]) -> Result<Vec<LevelPoint>> {
     factors
-        .iter()
+        .par_iter()
         .map(|&factor| {
             let k = factor.si();
             if !(k > 0.0 && k.is_finite()) {
@@ -136,10 +138,8 @@ pub fn sweep_transmittance(
     r: &LimitsRequest<'_>,
     transmittances: &[Ratio],
 ) -> Result<Vec<TransmittancePoint>> {
-    let mut filters = r.filters.to_vec();
-    filters.push(Filter::flat(1.0, "neutral filter")?);
     transmittances
-        .iter()
+        .par_iter()
         .map(|&transmittance| {
             let t = transmittance.si();
             if !(t > 0.0 && t <= 1.0) {
@@ -147,8 +147,8 @@ pub fn sweep_transmittance(
                     "the transmittance {t} must be above 0 and at most 1 (a filter cannot add light), e.g. 0.1"
                 )));
             }
-            let last = filters.len() - 1;
-            filters[last] = Filter::flat(t, format!("neutral filter, transmittance {t}"))?;
+            let mut filters = r.filters.to_vec();
+            filters.push(Filter::flat(t, format!("neutral filter, transmittance {t}"))?);
             let (hazards, risk_group) = point(&LimitsRequest { filters: &filters, ..r.clone() })?;
             Ok(TransmittancePoint { transmittance, hazards, risk_group })
         })
