@@ -13,8 +13,8 @@ use retidose::limits::{LimitSet, find_set};
 use retidose::scenario::file::Scenario;
 
 use super::{
-    Area, Figure, GRID, GRID_LIGHT, Mark, PlotResult, colour, decade_count, decades, font, legend, log_axis,
-    log_ticks, power_label, render, short_document, text, tick_label, x_ticks,
+    Area, Figure, Mark, PlotResult, colour, decades, legend, log_log, log_ticks, render, short_document,
+    text, tick_label, x_ticks,
 };
 
 /// Distances drawn in the report: d₀/10 to 10·d₀, this many per decade.
@@ -162,24 +162,8 @@ fn draw(root: &Area<'_>, x: (f64, f64), dur: f64, placed: Option<f64>, lines: &[
     let ts = lines.iter().flat_map(|l| l.runs.iter().flatten().map(|p| p.1)).chain([dur]);
     let (tlo, thi) = ts.fold((f64::MAX, 0.0f64), |a, t| (a.0.min(t), a.1.max(t)));
     let y = decades(tlo, thi * 1.01);
-    let mut c = ChartBuilder::on(&plot)
-        .margin(14)
-        .x_label_area_size(46)
-        .y_label_area_size(70)
-        .build_cartesian_2d(log_axis(x), log_axis(y))?;
-    c.configure_mesh()
-        .x_desc("distance from the source (mm)")
-        .y_desc("t_max, longest permissible exposure (s)")
-        .x_labels(decade_count(x) + 1)
-        .y_labels(decade_count(y) + 1)
-        .x_label_formatter(&|_| String::new())
-        .disable_x_mesh()
-        .y_label_formatter(&|v| power_label(*v))
-        .label_style(font(12.0))
-        .axis_desc_style(font(13.0))
-        .bold_line_style(GRID)
-        .light_line_style(GRID_LIGHT)
-        .draw()?;
+    let mut c =
+        log_log(&plot, x, y, "distance from the source (mm)", "t_max, longest permissible exposure (s)")?;
     c.draw_series(DashedLineSeries::new(vec![(x.0, dur), (x.1, dur)], 7, 4, BLACK.stroke_width(1)))?;
     let left = Pos::new(HPos::Left, VPos::Bottom);
     let dur_text = format!("exposure duration {}", crate::cli::render::room::duration(dur));

@@ -9,8 +9,8 @@ use retidose::assess::Assessment;
 use retidose::limits::Verdict;
 
 use super::{
-    Area, Figure, GRID, GRID_LIGHT, PlotResult, bold, decade_count, decades, font, log_axis, power_label,
-    render, short_document, text, value_label,
+    Area, Figure, GRID, PlotResult, bold, decades, log_rows, power_label, render, short_document, text,
+    value_label,
 };
 
 /// Ratios below this are drawn at the axis edge, with their value.
@@ -101,23 +101,7 @@ fn caption(rows: &[Row]) -> String {
 fn draw(root: &Area<'_>, rows: &[Row], x: (f64, f64), label_px: f64) -> PlotResult<()> {
     let n = rows.len() as f64;
     let (plot, key) = root.split_vertically(root.dim_in_pixel().1 - 34);
-    let mut c = ChartBuilder::on(&plot)
-        .margin(14)
-        .margin_right(90)
-        .x_label_area_size(46)
-        .y_label_area_size(label_px as u32)
-        .build_cartesian_2d(log_axis(x), 0.0..n)?;
-    c.configure_mesh()
-        .x_desc("hazard ratio, exposure ÷ limit (log scale)")
-        .x_labels(decade_count(x) + 1)
-        .x_label_formatter(&|v| power_label(*v))
-        .y_labels(0)
-        .disable_y_mesh()
-        .label_style(font(12.0))
-        .axis_desc_style(font(13.0))
-        .bold_line_style(GRID)
-        .light_line_style(if decade_count(x) > 6 { TRANSPARENT } else { GRID_LIGHT.to_rgba() })
-        .draw()?;
+    let mut c = log_rows(&plot, x, n, label_px, 14, "hazard ratio, exposure ÷ limit (log scale)")?;
     let dash = (0..(n * 4.0) as i32).map(|k| {
         let y = f64::from(k) / 4.0;
         PathElement::new(vec![(1.0, y), (1.0, y + 0.15)], EXCEEDS.stroke_width(2))

@@ -8,10 +8,7 @@ use plotters::prelude::*;
 use plotters::style::text_anchor::{HPos, Pos, VPos};
 use retidose::compare::Comparison;
 
-use super::{
-    Area, Figure, GRID, GRID_LIGHT, PlotResult, decade_count, decades, font, log_axis, power_label, render,
-    text, value_label,
-};
+use super::{Area, Figure, PlotResult, decades, log_rows, render, text, value_label};
 
 const WITHIN: RGBColor = RGBColor(0, 158, 115);
 const EXCEEDS: RGBColor = RGBColor(213, 94, 0);
@@ -67,24 +64,7 @@ fn caption(rows: &[Row]) -> String {
 /// The axes, the margin-1 line, the bars and their labels.
 fn draw(root: &Area<'_>, rows: &[Row], x: (f64, f64), label_px: f64) -> PlotResult<()> {
     let n = rows.len() as f64;
-    let mut c = ChartBuilder::on(root)
-        .margin(14)
-        .margin_top(26)
-        .margin_right(90)
-        .x_label_area_size(46)
-        .y_label_area_size(label_px as u32)
-        .build_cartesian_2d(log_axis(x), 0.0..n)?;
-    c.configure_mesh()
-        .x_desc("margin, factor to the limit (log scale)")
-        .x_labels(decade_count(x) + 1)
-        .x_label_formatter(&|v| power_label(*v))
-        .y_labels(0)
-        .disable_y_mesh()
-        .label_style(font(12.0))
-        .axis_desc_style(font(13.0))
-        .bold_line_style(GRID)
-        .light_line_style(if decade_count(x) > 6 { TRANSPARENT } else { GRID_LIGHT.to_rgba() })
-        .draw()?;
+    let mut c = log_rows(root, x, n, label_px, 26, "margin, factor to the limit (log scale)")?;
     for (i, r) in rows.iter().enumerate() {
         let y = n - i as f64 - 0.5;
         let (px, py) = c.backend_coord(&(x.0, y));

@@ -102,6 +102,74 @@ pub fn render(
     Ok(out.replacen("<svg ", &attrs, 1))
 }
 
+/// A chart with a log x and a log y axis, `x_desc` and `y_desc` as axis titles, decade labels on
+/// y (x's ticks are drawn by [`x_ticks`]), on `area` left of a side panel.
+pub type LogLog<'a, 'b> = ChartContext<'a, SVGBackend<'b>, Cartesian2d<LogCoord<f64>, LogCoord<f64>>>;
+
+/// Builds a [`LogLog`] chart on `area` with its mesh drawn.
+pub fn log_log<'a, 'b>(
+    area: &'a Area<'b>,
+    x: (f64, f64),
+    y: (f64, f64),
+    x_desc: &str,
+    y_desc: &str,
+) -> PlotResult<LogLog<'a, 'b>> {
+    let mut c = ChartBuilder::on(area)
+        .margin(14)
+        .x_label_area_size(46)
+        .y_label_area_size(70)
+        .build_cartesian_2d(log_axis(x), log_axis(y))?;
+    c.configure_mesh()
+        .x_desc(x_desc)
+        .y_desc(y_desc)
+        .x_labels(decade_count(x) + 1)
+        .y_labels(decade_count(y) + 1)
+        .x_label_formatter(&|_| String::new())
+        .disable_x_mesh()
+        .y_label_formatter(&|v| power_label(*v))
+        .label_style(font(12.0))
+        .axis_desc_style(font(13.0))
+        .bold_line_style(GRID)
+        .light_line_style(GRID_LIGHT)
+        .draw()?;
+    Ok(c)
+}
+
+/// A chart of `n` labelled rows against a log x axis titled `x_desc` (hazard ratios, margins),
+/// with `label_px` pixels for the row labels and `top` pixels above the plot.
+pub type Rows<'a, 'b> =
+    ChartContext<'a, SVGBackend<'b>, Cartesian2d<LogCoord<f64>, plotters::coord::types::RangedCoordf64>>;
+
+/// Builds a [`Rows`] chart on `area` with its mesh drawn.
+pub fn log_rows<'a, 'b>(
+    area: &'a Area<'b>,
+    x: (f64, f64),
+    n: f64,
+    label_px: f64,
+    top: u32,
+    x_desc: &str,
+) -> PlotResult<Rows<'a, 'b>> {
+    let mut c = ChartBuilder::on(area)
+        .margin(14)
+        .margin_top(top)
+        .margin_right(90)
+        .x_label_area_size(46)
+        .y_label_area_size(label_px as u32)
+        .build_cartesian_2d(log_axis(x), 0.0..n)?;
+    c.configure_mesh()
+        .x_desc(x_desc)
+        .x_labels(decade_count(x) + 1)
+        .x_label_formatter(&|v| power_label(*v))
+        .y_labels(0)
+        .disable_y_mesh()
+        .label_style(font(12.0))
+        .axis_desc_style(font(13.0))
+        .bold_line_style(GRID)
+        .light_line_style(if decade_count(x) > 6 { TRANSPARENT } else { GRID_LIGHT.to_rgba() })
+        .draw()?;
+    Ok(c)
+}
+
 /// The powers of ten that enclose `lo`..`hi` (both above 0), at least one decade apart.
 pub fn decades(lo: f64, hi: f64) -> (f64, f64) {
     let a = lo.log10().floor();

@@ -12,8 +12,8 @@ use retidose::limits::sweep::DistancePoint;
 
 use super::distance::{Drawn, from_points};
 use super::{
-    Area, Figure, GRID, GRID_LIGHT, Mark, PlotResult, colour, decade_count, decades, font, legend, log_axis,
-    log_ticks, power_label, render, short_document, text, x_ticks,
+    Area, Figure, Mark, PlotResult, colour, decades, legend, log_log, log_ticks, power_label, render,
+    short_document, text, x_ticks,
 };
 
 /// Ratios below this are left out (a log axis has no zero).
@@ -115,24 +115,7 @@ pub fn ratio(axis: Axis, series: &[Series], id: &str, set: &LimitSet, t: Time) -
 /// The log–log axes, the ratio-1 line, one line per hazard and the legend.
 fn draw(root: &Area<'_>, axis: Axis, x: (f64, f64), y: (f64, f64), lines: &[Series]) -> PlotResult<()> {
     let (plot, side) = root.split_horizontally(660);
-    let mut c = ChartBuilder::on(&plot)
-        .margin(14)
-        .x_label_area_size(46)
-        .y_label_area_size(70)
-        .build_cartesian_2d(log_axis(x), log_axis(y))?;
-    c.configure_mesh()
-        .x_desc(axis.title())
-        .y_desc("hazard ratio, exposure ÷ limit")
-        .x_labels(decade_count(x) + 1)
-        .y_labels(decade_count(y) + 1)
-        .x_label_formatter(&|_| String::new())
-        .disable_x_mesh()
-        .y_label_formatter(&|v| power_label(*v))
-        .label_style(font(12.0))
-        .axis_desc_style(font(13.0))
-        .bold_line_style(GRID)
-        .light_line_style(GRID_LIGHT)
-        .draw()?;
+    let mut c = log_log(&plot, x, y, axis.title(), "hazard ratio, exposure ÷ limit")?;
     c.draw_series(DashedLineSeries::new(vec![(x.0, 1.0), (x.1, 1.0)], 7, 4, LIMIT.stroke_width(2)))?;
     let left = Pos::new(HPos::Left, VPos::Bottom);
     c.draw_series(std::iter::once(Text::new(
