@@ -7,9 +7,10 @@ use retidose::base::quantity::{Length, SiValue};
 use retidose::base::units;
 use retidose::limits::report::LimitsRequest;
 use retidose::uncertainty::figures::Summary;
+use retidose::uncertainty::meter::{MeterClass, ReadingUncertainty};
 use retidose::uncertainty::{
     BLEACH_DRAWS, FigureUncertainty, FiguresReport, FiguresRequest, Input, InputUncertainties, MAX_DRAWS,
-    UncertaintyReport, assess_figures, assess_uncertainty,
+    UncertaintyReport, assess_figures_with_age, assess_uncertainty,
 };
 
 use super::Output;
@@ -22,8 +23,11 @@ Each input is a normal distribution about the scenario's value with the standard
 given (0 when left out). --reading and --tilt are relative (\"5%\" or 0.05); --tilt is the
 spectral calibration error per 100 nm from the photopic centroid of the source spectrum, a
 linear tilt (flat beyond 300 nm from it) that keeps the source's luminous quantity. --pupil
-enters no corneal limit and is reported with a share of 0. --set and --for default to the
-scenario's [limits].
+enters no corneal limit and is reported with a share of 0. --reading-class L|A|B|C takes the
+meter class's total error limit of DIN 5032-7 (L 3 %, A 5 %, B 10 %, C 20 %) as the half-width
+of a rectangular distribution, u = a/√3; with --reading too, the larger u is used. --age is the
+standard uncertainty of a human subject's age (retina figures, through the ocular media; no
+limit ratio depends on it). --set and --for default to the scenario's [limits].
 The interval is the probabilistically symmetric 95 % coverage interval (2.5 % and 97.5 %
 quantiles of the draws); shares are one-at-a-time variances, normalised to 100 %.
 CSV columns (--figures limits): hazard, nominal, mean, standard_uncertainty, low_95, high_95,
@@ -71,6 +75,13 @@ pub struct UncertaintyArgs {
     /// Standard uncertainty of the pupil diameter, e.g. "0.3 mm" (enters no corneal limit)
     #[arg(long, value_name = "LENGTH", default_value = "0 mm", allow_hyphen_values = true)]
     pupil: String,
+    /// Meter class of the reading (DIN 5032-7: L, A, B or C): its total error limit a as a
+    /// rectangular half-width, u = a/√3; with --reading the larger u is used
+    #[arg(long, value_name = "CLASS")]
+    reading_class: Option<String>,
+    /// Standard uncertainty of a human subject's age, e.g. "5 y" (retina figures only)
+    #[arg(long, value_name = "TIME", allow_hyphen_values = true)]
+    age: Option<String>,
     /// Number of Monte Carlo draws
     #[arg(long, value_name = "N", default_value_t = 100_000)]
     draws: usize,
@@ -110,6 +121,9 @@ pub enum Which {
 struct Both {
     #[serde(flatten)]
     limits: Option<UncertaintyReport>,
+    /// How the reading's uncertainty was settled from a meter class, when one was given.
+    #[serde(skip_serializing_if = "Option::is_none")]
+    reading_class: Option<ReadingUncertainty>,
     figures: Option<FiguresReport>,
     /// Figures the scenario has that could not be sampled, with the reason.
     skipped: Vec<String>,
@@ -142,11 +156,13 @@ pub fn run(a: UncertaintyArgs) -> Result<Output> {
     if !(1 < a.bleach_draws && a.bleach_draws <= MAX_DRAWS) {
         bail!("--bleach-draws must be 2 to {MAX_DRAWS}, such as 10000, not {}", a.bleach_draws);
     }
-    let inputs = inputs(&a)?;
+    let (inputs, reading) = inputs(&a)?;
+    let age = a.age.as_deref().map(age).transpose()?;
     let explicit = a.figures.is_some();
     let which = a.figures.unwrap_or(Which::All);
     let wants = |w: Which| which == w || which == Which::All;
-    let mut both = Both { limits: None, figures: None, skipped: Vec::new() };
+    let reading_class = reading.class.is_some().then_some(reading);
+    let mut both = Both { limits: None, reading_class, figures: None, skipped: Vec::new() };
     // Unless asked for by name, figures the source cannot give are skipped with the reason; a
     // bad flag is always an error.
     let mut fail = |what: &str, e: anyhow::Error| -> Result<()> {
@@ -177,7 +193,7 @@ pub fn run(a: UncertaintyArgs) -> Result<Output> {
             bleach_draws: bleach.then_some(a.bleach_draws),
             seed: a.seed,
         };
-        match assess_figures(&req) {
+        match assess_figures_with_age(&req, age) {
             Ok(f) => both.figures = Some(f),
             Err(e) => fail("retina and bleach figures", flagged(e.message()))?,
         }
@@ -188,9 +204,11 @@ pub fn run(a: UncertaintyArgs) -> Result<Output> {
     let id = &s.source_ids[index];
     let text = match (a.format, &both) {
         (UncertaintyFormat::Table, b) => {
-            let mut t = b.limits.as_ref().map(|r| table(r, id)).unwrap_or_default();
+            let class = b.reading_class.as_ref().and_then(ReadingUncertainty::text);
+            let mut t =
+                b.limits.as_ref().map(|r| table(r, id, class.as_deref(), age.is_some())).unwrap_or_default();
             if let Some(f) = &b.figures {
-                t.push_str(&figures_table(f, id, &inputs));
+                t.push_str(&figures_table(f, id, &inputs, class.as_deref()));
             }
             for n in &b.skipped {
                 t.push_str(&format!("not sampled: {n}\n"));
@@ -222,28 +240,46 @@ fn limits(a: &UncertaintyArgs, inputs: &InputUncertainties) -> Result<Uncertaint
 
 /// The library's error on an input, with the flag that gave it.
 fn flagged(message: &str) -> anyhow::Error {
-    let flag = [("reading", "--reading"), ("distance", "--distance"), ("size", "--size"), ("tilt", "--tilt")]
-        .iter()
-        .find(|(word, _)| {
-            message.starts_with(&format!("the {word}"))
-                || message.starts_with(&format!("the spectral {word}"))
-        })
-        .map(|(_, f)| *f);
+    let flag = [
+        ("reading", "--reading"),
+        ("distance", "--distance"),
+        ("size", "--size"),
+        ("tilt", "--tilt"),
+        ("age", "--age"),
+    ]
+    .iter()
+    .find(|(word, _)| {
+        message.starts_with(&format!("the {word}")) || message.starts_with(&format!("the spectral {word}"))
+    })
+    .map(|(_, f)| *f);
     match flag {
         Some(f) => anyhow::anyhow!("{f}: {message}"),
         None => anyhow::anyhow!("{message}"),
     }
 }
 
-/// The declared uncertainties from the flags.
-fn inputs(a: &UncertaintyArgs) -> Result<InputUncertainties> {
-    Ok(InputUncertainties {
-        reading_relative: relative(&a.reading, "--reading")?,
+/// The declared uncertainties from the flags, and how the reading's was settled.
+fn inputs(a: &UncertaintyArgs) -> Result<(InputUncertainties, ReadingUncertainty)> {
+    let class = a
+        .reading_class
+        .as_deref()
+        .map(MeterClass::parse)
+        .transpose()
+        .map_err(|e| anyhow::anyhow!("--reading-class: {}", e.message()))?;
+    let reading = ReadingUncertainty::settle(relative(&a.reading, "--reading")?, class)?;
+    let u = InputUncertainties {
+        reading_relative: reading.relative,
         distance: length(&a.distance, "--distance")?,
         size: length(&a.size, "--size")?,
         tilt_relative: relative(&a.tilt, "--tilt")?,
         pupil: length(&a.pupil, "--pupil")?,
-    })
+    };
+    Ok((u, reading))
+}
+
+/// The standard uncertainty of the subject's age: a time such as "5 y".
+fn age(text: &str) -> Result<retidose::base::quantity::Time> {
+    units::parse_time(text).with_context(|| format!("--age takes a time such as \"5 y\", not \"{text}\""))
 }
 
 /// A relative uncertainty: "5%" or 0.05, finite and at least 0.
@@ -280,7 +316,7 @@ fn mm(l: Length) -> String {
 }
 
 /// The report as text for the terminal.
-fn table(r: &UncertaintyReport, id: &str) -> String {
+fn table(r: &UncertaintyReport, id: &str, class: Option<&str>, age: bool) -> String {
     let u = &r.inputs;
     let mut p = Page::new(width(), false);
     p.para(
@@ -304,6 +340,9 @@ fn table(r: &UncertaintyReport, id: &str) -> String {
         ),
         "",
     );
+    if let Some(c) = class {
+        p.para(c, "  ");
+    }
     p.para(
         &format!(
             "Monte Carlo (JCGM 101): {} draws, seed {}; 95 % intervals probabilistically symmetric",
@@ -338,6 +377,9 @@ fn table(r: &UncertaintyReport, id: &str) -> String {
         );
     }
     p.para("The pupil enters no corneal irradiance or radiance limit; a retinal irradiance would carry 2·u(p)/p from it.", "");
+    if age {
+        p.para("The subject's age enters no corneal limit (the ocular media lie behind the cornea); it enters the retina figures.", "");
+    }
     p.finish()
 }
 
@@ -389,7 +431,7 @@ fn maybe(v: Option<f64>, unit: &str) -> String {
 }
 
 /// The retina and bleach figures as text for the terminal.
-fn figures_table(f: &FiguresReport, id: &str, u: &InputUncertainties) -> String {
+fn figures_table(f: &FiguresReport, id: &str, u: &InputUncertainties, class: Option<&str>) -> String {
     let mut p = Page::new(width(), false);
     p.para(&format!("Uncertainty of the retina, bleach and room figures: source {id}"), "");
     p.para(
@@ -405,6 +447,9 @@ fn figures_table(f: &FiguresReport, id: &str, u: &InputUncertainties) -> String 
         ),
         "",
     );
+    if let Some(c) = class {
+        p.para(c, "  ");
+    }
     p.para(
         &format!(
             "Monte Carlo (JCGM 101): {} draws of the retina figures, {} of the bleach figures",

@@ -17,6 +17,10 @@ pub(super) enum Law {
     Normal { mean: f64, u: f64, positive: bool },
     /// Uniform on [low, high].
     Uniform { low: f64, high: f64 },
+    /// Normal about `mean` with standard deviation `u`, drawn again while not in (low, high]
+    /// (a truncated normal; `mean` in the range and `u` at most a quarter of it, so at least
+    /// about half the draws are kept).
+    Truncated { mean: f64, u: f64, low: f64, high: f64 },
 }
 
 impl Law {
@@ -25,6 +29,7 @@ impl Law {
         match *self {
             Law::Normal { u, .. } => u == 0.0,
             Law::Uniform { low, high } => low == high,
+            Law::Truncated { u, .. } => u == 0.0,
         }
     }
 
@@ -37,6 +42,12 @@ impl Law {
                 }
             },
             Law::Uniform { low, high } => low + (high - low) * g.unit(),
+            Law::Truncated { mean, u, low, high } => loop {
+                let x = mean + u * g.normal();
+                if (low < x && x <= high) || u == 0.0 {
+                    return x;
+                }
+            },
         }
     }
 }
@@ -229,6 +240,10 @@ pub(super) fn nodes(law: &Law, nominal: f64) -> [f64; 3] {
         Law::Uniform { low, high } if low < nominal && nominal < high => [low, nominal, high],
         Law::Uniform { low, high } => [low, 0.5 * (low + high), high],
         Law::Normal { mean, u, .. } => [mean - 2.0 * u, mean, mean + 2.0 * u],
+        Law::Truncated { mean, u, low, high } => {
+            let (a, b) = ((mean - 2.0 * u).max(low), (mean + 2.0 * u).min(high));
+            if a < mean && mean < b { [a, mean, b] } else { [a, 0.5 * (a + b), b] }
+        }
     }
 }
 

@@ -30,6 +30,7 @@
 
 mod bleaching;
 pub mod figures;
+pub mod meter;
 pub mod model;
 mod params;
 mod retina;
@@ -45,6 +46,8 @@ use crate::scenario::file::Scenario;
 use figures::{InputName, Summary, propagate};
 use model::Model;
 use routes::RodRateRecommendation;
+
+pub use retina::{AGE_INPUT, MAX_AGE_YEARS};
 
 /// Draws of the bleach figures when not told (each runs the schedule once per varied input).
 pub const BLEACH_DRAWS: usize = 10_000;
@@ -420,10 +423,26 @@ fn records(figures: &[Figure], summaries: Vec<Summary>) -> Vec<FigureUncertainty
 /// uncertainty has nothing to vary, bleach figures are asked for without a schedule, or a
 /// number of draws is not 2 to [`MAX_DRAWS`]; any error of the engines.
 pub fn assess_figures(req: &FiguresRequest<'_>) -> Result<FiguresReport> {
+    assess_figures_with_age(req, None)
+}
+
+/// As [`assess_figures`], with the subject's age also uncertain when `age` (its standard
+/// uncertainty) is given: a normal about the scenario's age (or the eye's default), truncated
+/// to (0, [`MAX_AGE_YEARS`]] years, entering the retina figures through the human ocular media
+/// (van de Kraats & van Norren 2007) and any age-dependent pupil formula, by the parabola
+/// through three engine runs used for the eye parameters. The limit ratios do not depend on it.
+///
+/// # Errors
+/// As [`assess_figures`]; [`crate::ErrorKind::InvalidInput`] when `age` is given for a subject
+/// without the human age model, or is not above 0 or above a quarter of the age range.
+pub fn assess_figures_with_age(req: &FiguresRequest<'_>, age: Option<Time>) -> Result<FiguresReport> {
     let s = req.scenario;
     let u = req.inputs;
     check("reading", u.reading_relative, Some(1.0))?;
-    let model = retina::RetinaModel::new(&s.view, req.index, u, req.parameters)?;
+    let mut model = retina::RetinaModel::new(&s.view, req.index, u, req.parameters)?;
+    if let Some(a) = age {
+        model.add_age(&s.view, req.index, a)?;
+    }
     let retina_draws = req.retina_draws.map(check_draws).transpose()?;
     let retina = match retina_draws {
         Some(n) => records(&model.figures, propagate(&model.vars, &model, n, req.seed)),
@@ -458,13 +477,13 @@ pub fn assess_figures(req: &FiguresRequest<'_>) -> Result<FiguresReport> {
         bleach,
         room,
         rod_rate,
-        notes: figure_notes(model.pivot_nm),
+        notes: figure_notes(model.pivot_nm, age.is_some()),
     })
 }
 
 /// How the figures were computed.
-fn figure_notes(pivot_nm: f64) -> Vec<String> {
-    vec![
+fn figure_notes(pivot_nm: f64, age: bool) -> Vec<String> {
+    let mut notes = vec![
         format!(
             "retina figures: the engine at the nominal values, with the source tilted (pivot {} nm) and at three \
              values of each parameter; per draw exact scaling for the reading, geometry, tilt, pupil and the \
@@ -478,5 +497,15 @@ fn figure_notes(pivot_nm: f64) -> Vec<String> {
         "declared inputs belong to the chosen source and the pupil; a from-memory pupil is drawn as a factor on the \
          diameter"
             .to_string(),
-    ]
+    ];
+    if age {
+        notes.push(AGE_NOTE.to_string());
+    }
+    notes
 }
+
+/// What the subject's age enters, for reports.
+pub const AGE_NOTE: &str = "the subject's age enters the figures that pass the ocular media (the spectral rod \
+     R*/rod/s and other receptor catches) and, with an age-dependent pupil formula, the pupil; trolands, \
+     the factor routes and the melanopic EDI at the cornea do not pass the media, and no limit ratio depends on \
+     it (the limits are set at the cornea)";

@@ -596,3 +596,196 @@ fn room_figures_follow_the_reading() {
     let d = figure(&r.room, &Figure::DimmestLux);
     assert!(d.summary.nominal > 0.0 && d.summary.nominal < l0);
 }
+
+// ---- the meter's class (DIN 5032-7) and the subject's age ----
+
+use retidose::uncertainty::meter::{MeterClass, ReadingUncertainty};
+use retidose::uncertainty::{AGE_INPUT, assess_figures_with_age};
+
+/// Class B's total error limit, a = 10 % (DIN 5032-7:1985-12, table of meter classes, as
+/// reproduced in the MX-Elektronik Minilux manual), read as the half-width of a rectangular
+/// distribution: u = a/√3 (JCGM 100:2008 §4.3.7). Every limit ratio is linear in the reading
+/// factor k, ratio = r₀·k, so the GUM law of propagation (JCGM 100:2008 eq. 10,
+/// u²_c(y) = Σ (∂f/∂x_i)² u²(x_i), here one input with ∂f/∂k = r₀) gives u(ratio) = r₀·a/√3.
+/// Monte Carlo standard errors: σ/√M for the mean, σ/√(2(M − 1)) for u; bounds 4 of them.
+#[test]
+fn a_class_b_meter_gives_a_rectangular_u_and_the_law_of_propagation() {
+    let a = 0.10;
+    let u_k = a / 3f64.sqrt();
+    let reading = ReadingUncertainty::settle(0.0, Some(MeterClass::B)).unwrap();
+    assert!((reading.relative - u_k).abs() < 1e-15, "{reading:?}");
+    assert_eq!(reading.class.as_ref().unwrap().total_error, a);
+    let r = run(&InputUncertainties { reading_relative: reading.relative, ..none() }, 13);
+    let m = DRAWS as f64;
+    assert!(r.hazards.len() >= 4);
+    for h in &r.hazards {
+        let sigma = h.nominal * u_k;
+        assert!((h.mean - h.nominal).abs() < 4.0 * sigma / m.sqrt(), "{}: mean {}", h.id, h.mean);
+        let se = sigma / (2.0 * (m - 1.0)).sqrt();
+        assert!(
+            (h.standard_uncertainty - sigma).abs() < 4.0 * se,
+            "{}: u {} vs {sigma}",
+            h.id,
+            h.standard_uncertainty
+        );
+    }
+    // The flag gives the same u: the JSON says which class and the u it gives.
+    let f = scenario_file();
+    let args =
+        ["uncertainty", f.as_str(), "--source", "stimulus", "--reading-class", "B", "--figures", "limits"];
+    let mut json = args.to_vec();
+    json.extend(["--draws", "2000", "--format", "json"]);
+    let v: serde_json::Value = serde_json::from_str(&stdout(&json)).unwrap();
+    assert_eq!(v["reading_class"]["class"]["class"], "B", "{}", v["reading_class"]);
+    assert_eq!(v["reading_class"]["class"]["total_error"], 0.1, "{}", v["reading_class"]);
+    assert!((v["reading_class"]["relative"].as_f64().unwrap() - u_k).abs() < 1e-15);
+    let mut text = args.to_vec();
+    text.extend(["--draws", "2000"]);
+    let t = stdout(&text);
+    assert!(t.contains("class B meter") && t.contains("u = a/√3 = 5.774 %"), "{t}");
+}
+
+/// With --reading and --reading-class both given, the larger u is used (the safe side):
+/// class B gives 0.10/√3 = 0.05774.
+#[test]
+fn with_both_reading_flags_the_larger_u_is_used() {
+    let b = 0.10 / 3f64.sqrt();
+    let small = ReadingUncertainty::settle(0.03, Some(MeterClass::B)).unwrap();
+    assert!((small.relative - b).abs() < 1e-15, "{small:?}");
+    assert!(small.text().unwrap().contains("the class's, the larger, 5.774 %, is used (safe side)"));
+    let large = ReadingUncertainty::settle(0.08, Some(MeterClass::B)).unwrap();
+    assert_eq!(large.relative, 0.08);
+    assert!(large.text().unwrap().contains("the declared, the larger, 8.000 %"));
+    assert_eq!(ReadingUncertainty::settle(0.04, None).unwrap().relative, 0.04);
+    let f = scenario_file();
+    let t = stdout(&[
+        "uncertainty",
+        f.as_str(),
+        "--source",
+        "stimulus",
+        "--reading",
+        "8%",
+        "--reading-class",
+        "b",
+        "--figures",
+        "limits",
+        "--draws",
+        "2000",
+        "--format",
+        "json",
+    ]);
+    let v: serde_json::Value = serde_json::from_str(&t).unwrap();
+    assert_eq!(v["reading_class"]["relative"], 0.08, "{t}");
+    assert_eq!(v["reading_class"]["declared"], 0.08, "{t}");
+    let out = retidose()
+        .args(["uncertainty", f.as_str(), "--source", "stimulus", "--reading-class", "D"])
+        .assert()
+        .code(2);
+    let err = String::from_utf8(out.get_output().stderr.clone()).unwrap();
+    assert!(err.contains("--reading-class") && err.contains("L, A, B or C"), "{err}");
+}
+
+fn aged(s: &Scenario, age: Option<f64>, draws: usize) -> Vec<FigureUncertainty> {
+    let req = FiguresRequest {
+        scenario: s,
+        index: 0,
+        inputs: &InputUncertainties { reading_relative: 0.02, ..none() },
+        parameters: false,
+        retina_draws: Some(draws),
+        bleach_draws: None,
+        seed: 21,
+    };
+    let years = age.map(|y| retidose::base::quantity::Time::from_si(y * 365.25 * 86_400.0));
+    assess_figures_with_age(&req, years).unwrap().retina
+}
+
+/// The subject's age (28 y in the dark-adaptation demo, u = 5 y) leaves every nominal figure as
+/// it was and widens the spectral rod rate's interval. Its size, by the GUM law of
+/// propagation (JCGM 100:2008 eq. 10) with the age alone: u(R) = |∂R/∂A|·u(A), ∂R/∂A by the
+/// engine's central difference over 28 ± 1 y. Bound 3 %, the sum of (measured once, seed 22 to
+/// 26: the Monte Carlo gave 0.990–0.993 of u_GUM): the parabola through the runs at 18, 28 and
+/// 38 y, whose slope at 28 y is the chord's, 1.3 % below the engine's (the media density of van
+/// de Kraats & van Norren 2007 is quadratic in A, the transmittance 10^(−D) is not); the
+/// curvature, which adds 2c²u⁴ to the variance (+0.45 % in u here); and 4 Monte Carlo standard
+/// errors of u, 4/√(2M) = 0.9 % at M = 10⁵.
+/// Trolands and the melanopic EDI do not pass the media (fixed 7 mm pupil): share 0.
+#[test]
+fn the_age_widens_the_media_figures_only() {
+    let s = parse_scenario_file(demo("dark-adaptation").unwrap(), "demo", None).unwrap();
+    let without = aged(&s, None, 20_000);
+    let with = aged(&s, Some(5.0), 20_000);
+    for (a, b) in without.iter().zip(&with) {
+        assert_eq!(a.summary.nominal, b.summary.nominal, "{:?}", a.figure);
+    }
+    let width = |l: &[FigureUncertainty], f: &Figure| {
+        let i = figure(l, f).summary.interval;
+        i.1.unwrap() - i.0.unwrap()
+    };
+    assert!(width(&with, &Figure::RodRate) > 1.2 * width(&without, &Figure::RodRate));
+    for f in [Figure::PhotopicTrolands, Figure::MelanopicEdi] {
+        let share = figure(&with, &f).summary.shares.iter().find(|(i, _)| i.text() == AGE_INPUT).unwrap().1;
+        assert!(share.abs() < 1e-12, "{f:?}: {share}");
+    }
+    // The law of propagation for the age alone.
+    let rate = |years: f64| {
+        let mut only = s.clone();
+        only.view.age = Some(retidose::base::quantity::Time::from_si(years * 365.25 * 86_400.0));
+        let r = assess_retina(&only.view).unwrap();
+        r.sources[0].retinal.as_ref().unwrap().catch.iter().find(|c| c.receptor == "rod").unwrap().rate.si()
+    };
+    let slope = (rate(29.0) - rate(27.0)) / 2.0;
+    let req = FiguresRequest {
+        scenario: &s,
+        index: 0,
+        inputs: &none(),
+        parameters: false,
+        retina_draws: Some(DRAWS),
+        bleach_draws: None,
+        seed: 22,
+    };
+    let r =
+        assess_figures_with_age(&req, Some(retidose::base::quantity::Time::from_si(5.0 * 365.25 * 86_400.0)))
+            .unwrap();
+    let u_mc = figure(&r.retina, &Figure::RodRate).summary.standard_uncertainty.unwrap();
+    let u_gum = slope.abs() * 5.0;
+    assert!((u_mc / u_gum - 1.0).abs() < 0.03, "Monte Carlo {u_mc} vs GUM {u_gum}");
+    assert!(r.notes.iter().any(|n| n.contains("no limit ratio depends on it")), "{:?}", r.notes);
+}
+
+/// A rodent has no age model (the media model of a rat or mouse is a cut-off edge): --age is an
+/// error naming the flag.
+#[test]
+fn age_for_a_rodent_is_an_error_naming_the_flag() {
+    let s = parse_scenario_file(demo("vivarium").unwrap(), "demo", None).unwrap();
+    let req = FiguresRequest {
+        scenario: &s,
+        index: 0,
+        inputs: &none(),
+        parameters: false,
+        retina_draws: Some(100),
+        bleach_draws: None,
+        seed: 1,
+    };
+    let year = retidose::base::quantity::Time::from_si(5.0 * 365.25 * 86_400.0);
+    let e = assess_figures_with_age(&req, Some(year)).unwrap_err();
+    assert!(e.message().contains("human only"), "{}", e.message());
+    let dir = std::env::temp_dir().join(format!("retidose-uncertainty-age-{}", std::process::id()));
+    std::fs::create_dir_all(&dir).unwrap();
+    let p = dir.join("v.toml");
+    std::fs::write(&p, demo("vivarium").unwrap()).unwrap();
+    let out = retidose()
+        .args([
+            "uncertainty",
+            p.to_str().unwrap(),
+            "--source",
+            "panels",
+            "--figures",
+            "retina",
+            "--age",
+            "5 y",
+        ])
+        .assert()
+        .code(2);
+    let err = String::from_utf8(out.get_output().stderr.clone()).unwrap();
+    assert!(err.contains("--age") && err.contains("human only"), "{err}");
+}
