@@ -66,19 +66,7 @@ const KEYED: [(&str, &str); 6] = [
 
 /// The level keys `scale` multiplies, per array.
 const LEVELS: [(&str, &[&str]); 3] = [
-    (
-        "source",
-        &[
-            "illuminance",
-            "luminance",
-            "irradiance",
-            "photon_irradiance",
-            "radiance",
-            "luminous_intensity",
-            "luminous_flux",
-            "radiant_flux",
-        ],
-    ),
+    ("source", &crate::spectrum::scale::SCALE_KEYS),
     ("room.luminaire", &["intensity"]),
     ("room.event", &["lux"]),
 ];

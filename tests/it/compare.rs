@@ -1,6 +1,7 @@
 //! `retidose compare`: a variant identical to the base gives identical columns, ranking by
 //! margin, the table's figures, rooms side by side, and bad input naming the file.
 
+use crate::completeness::num4;
 use std::path::PathBuf;
 
 use assert_cmd::Command;
@@ -490,31 +491,6 @@ fn compare_expands_a_file_with_variants_and_assess_takes_its_base() {
     assert!(err.contains("1 variant(s)") && err.contains(&format!("retidose compare {file}")), "{err}");
     let doc: Value = serde_json::from_slice(&out.stdout).unwrap();
     assert!(doc.to_string().contains("stimulus-review"), "the base only");
-}
-
-/// 4 significant digits, the reports' rule written again (as in tests/it/completeness.rs):
-/// plain from 0.001 up to 10⁴ (thousands grouped with a space up to a million), scientific
-/// notation outside.
-fn num4(v: f64) -> String {
-    if v == 0.0 {
-        return "0".into();
-    }
-    let sci = format!("{v:.3e}");
-    let exp: i32 = sci.split('e').nth(1).and_then(|e| e.parse().ok()).unwrap_or(0);
-    if !(-3..6).contains(&exp) {
-        return sci;
-    }
-    if exp >= 4 {
-        let step = 10f64.powi(exp - 3);
-        let digits = format!("{:.0}", (v / step).round() * step);
-        let n = digits.len();
-        return digits
-            .chars()
-            .enumerate()
-            .flat_map(|(k, c)| (k > 0 && (n - k) % 3 == 0).then_some(' ').into_iter().chain([c]))
-            .collect();
-    }
-    format!("{v:.*}", (3 - exp).max(0) as usize)
 }
 
 /// Every number of a comparison's JSON that the reports show: margins, worst ratios, hazard

@@ -19,7 +19,7 @@ fn run(demo: &str, format: &str) -> String {
 
 /// 4 significant digits: plain from 0.001 up to a million (thousands grouped with a space),
 /// scientific notation outside (the reports' rule, written again here).
-fn num4(v: f64) -> String {
+pub(crate) fn num4(v: f64) -> String {
     if v == 0.0 {
         return "0".into();
     }
