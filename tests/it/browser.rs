@@ -56,14 +56,8 @@ fn each_demo_html_report_renders_in_a_real_browser() {
     };
     let dir = std::env::temp_dir().join(format!("retidose-browser-{}", std::process::id()));
     std::fs::create_dir_all(&dir).unwrap();
-    for demo in ["vivarium", "dark-adaptation", "stimulus-review"] {
-        let out = Command::cargo_bin("retidose")
-            .unwrap()
-            .args(["assess", "--demo", demo, "--format", "html"])
-            .output()
-            .unwrap();
-        let html = String::from_utf8(out.stdout).unwrap();
-        assert!(svgs_parse(&html) >= 2, "{demo}: the report should hold its figures");
+    for (demo, html, figures) in pages(&dir) {
+        assert!(svgs_parse(&html) >= figures, "{demo}: the report should hold its figures");
         let page = dir.join(format!("{demo}.html"));
         let png = dir.join(format!("{demo}.png"));
         std::fs::write(&page, &html).unwrap();
@@ -87,4 +81,22 @@ fn each_demo_html_report_renders_in_a_real_browser() {
         let share = ink(&png);
         assert!(share > 0.01, "{demo}: the page looks blank ({:.3} % of pixels inked)", 100.0 * share);
     }
+}
+
+/// Each demo's HTML report (at least 2 figures each) and the comparison of `compare --example`
+/// (its margins figure), with a name for the files.
+fn pages(dir: &Path) -> Vec<(String, String, usize)> {
+    let run = |args: &[&str]| {
+        let out = Command::cargo_bin("retidose").unwrap().args(args).output().unwrap();
+        String::from_utf8(out.stdout).unwrap()
+    };
+    let mut pages: Vec<(String, String, usize)> = ["vivarium", "dark-adaptation", "stimulus-review"]
+        .iter()
+        .map(|d| (d.to_string(), run(&["assess", "--demo", d, "--format", "html"]), 2))
+        .collect();
+    let lamps = dir.join("lamps.toml");
+    std::fs::write(&lamps, run(&["compare", "--example"])).unwrap();
+    let lamps = lamps.to_str().unwrap();
+    pages.push(("compare-example".into(), run(&["compare", lamps, "--format", "html"]), 1));
+    pages
 }
