@@ -34,7 +34,7 @@ use uom::si::illuminance::lux;
 
 use crate::assess::Assessment;
 use crate::base::error::{Error, Result};
-use crate::base::quantity::{Length, Time};
+use crate::base::quantity::{Frequency, Length, SiValue, Time};
 use crate::limits::{HazardResult, RiskGroup, TMax, Verdict};
 
 /// The comparison of several scenarios: the columns ranked by margin, and the rows aligned
@@ -150,6 +150,14 @@ pub struct RackCell {
     pub in_range: Option<usize>,
     /// The dimming (below 1) or brightening factor that puts the most positions in range.
     pub lever_factor: Option<f64>,
+    /// The dimmest and the brightest room light at cage level in the light phase.
+    pub room_lux: (Illuminance, Illuminance),
+    /// The highest rod R*/rod/s in the light phase (in the cage, through its wall).
+    pub rod_rate_max: Frequency,
+    /// The highest steady bleached fraction in the light phase.
+    pub bleach_max: f64,
+    /// The highest rod R*/rod/s from the dark-phase leak.
+    pub leak_rod_rate_max: Frequency,
 }
 
 /// Pigment bleaching of one scenario.
@@ -344,6 +352,10 @@ fn rack_rows(a: &Assessment) -> Vec<(String, String, RackCell)> {
                 above: s.above,
                 in_range: bounded.then(|| s.positions.saturating_sub(s.below + s.above)),
                 lever_factor: r.lever.as_ref().map(|l| l.factor),
+                room_lux: (Illuminance::new::<lux>(s.room_lux.min), Illuminance::new::<lux>(s.room_lux.max)),
+                rod_rate_max: Frequency::from_si(s.rod_rate.max),
+                bleach_max: s.light_bleach.max,
+                leak_rod_rate_max: Frequency::from_si(s.leak_rod_rate.max),
             };
             (r.id.clone(), format!("rack {}", r.id), cell)
         })

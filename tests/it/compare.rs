@@ -516,6 +516,13 @@ fn json_figures(c: &Value) -> Vec<String> {
     for r in c["racks"].as_array().unwrap() {
         for x in r["cells"].as_array().unwrap() {
             out.extend(x["lever_factor"].as_f64().map(num4));
+            // uom serialises SI values: lux, and R*/rod/s as 1/s; the bleach is a fraction, shown in %.
+            for v in x["room_lux"].as_array().unwrap() {
+                out.push(num4(v.as_f64().unwrap()));
+            }
+            out.push(num4(x["rod_rate_max"].as_f64().unwrap()));
+            out.push(num4(x["leak_rod_rate_max"].as_f64().unwrap()));
+            out.push(num4(100.0 * x["bleach_max"].as_f64().unwrap()));
             for k in ["positions", "below", "above", "in_range"] {
                 out.extend(x[k].as_u64().map(|n| n.to_string()));
             }
@@ -622,4 +629,30 @@ fn dimming_every_luminaire_of_a_room_divides_its_lever_factor_by_the_dimming() {
     let lever = |i: usize| rack.cells[i].as_ref().and_then(|x| x.lever_factor).unwrap();
     let (base, dimmed) = (lever(0), lever(1));
     assert!((dimmed - base / 0.6).abs() <= 1e-9 * dimmed, "{dimmed} vs {base} / 0.6");
+}
+
+#[test]
+fn a_tinted_cage_wall_scales_the_rod_rates_but_not_the_guidance_lux() {
+    // The NRC Guide's quantity is room light at cage level, taken before the cage wall, so a
+    // tinted wall leaves the lux and the counts in range alone. The rod R*/rod/s inside is
+    // linear in the light through the wall: a wall passing 0.4 instead of 0.8 halves it, by day
+    // and from the leak.
+    let text = format!(
+        "{}\n[[variant]]\nname = \"tinted\"\n[[variant.room.rack]]\nid = \"A\"\ncage_transmittance = \"0.4\"\n",
+        demo("vivarium").unwrap()
+    );
+    let all = assessed(&text);
+    let items: Vec<(&str, &Assessment)> = all.iter().map(|(l, a)| (l.as_str(), a)).collect();
+    let c = compare(&items);
+    let rack = c.racks.iter().find(|r| r.key == "A").unwrap();
+    let (base, tinted) = (rack.cells[0].as_ref().unwrap(), rack.cells[1].as_ref().unwrap());
+    assert_eq!(base.room_lux, tinted.room_lux);
+    assert_eq!((base.below, base.above), (tinted.below, tinted.above));
+    for (b, t) in
+        [(base.rod_rate_max, tinted.rod_rate_max), (base.leak_rod_rate_max, tinted.leak_rod_rate_max)]
+    {
+        let (b, t) = (b.get::<uom::si::frequency::hertz>(), t.get::<uom::si::frequency::hertz>());
+        assert!((t - b / 2.0).abs() <= 1e-9 * b, "{t} vs {b} / 2");
+    }
+    assert!(tinted.bleach_max < base.bleach_max);
 }

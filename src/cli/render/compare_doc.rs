@@ -7,6 +7,7 @@
 
 use std::fmt::Write;
 
+use retidose::base::quantity::SiValue;
 use retidose::compare::{Aligned, Column, Comparison, Recovery90};
 use uom::si::illuminance::lux;
 use uom::si::length::millimeter;
@@ -115,6 +116,27 @@ fn room_and_bleach(c: &Comparison) -> Vec<Figure> {
         out.push(Figure::aligned(format!("{}: lever factor", r.label), "", r, |x| {
             x.lever_factor.map_or_else(dash, num)
         }));
+        out.push(Figure::aligned(format!("{}: dimmest cage, room light", r.label), "lx", r, |x| {
+            num(x.room_lux.0.get::<lux>())
+        }));
+        out.push(Figure::aligned(format!("{}: brightest cage, room light", r.label), "lx", r, |x| {
+            num(x.room_lux.1.get::<lux>())
+        }));
+        out.push(Figure::aligned(
+            format!("{}: highest rod rate, light phase", r.label),
+            "R*/rod/s",
+            r,
+            |x| num(x.rod_rate_max.si()),
+        ));
+        out.push(Figure::aligned(format!("{}: highest steady bleach", r.label), "%", r, |x| {
+            num(100.0 * x.bleach_max)
+        }));
+        out.push(Figure::aligned(
+            format!("{}: highest rod rate from the leak", r.label),
+            "R*/rod/s",
+            r,
+            |x| num(x.leak_rod_rate_max.si()),
+        ));
     }
     if c.columns.iter().any(|col| col.bleach.is_some()) {
         let absent = || "absent".to_string();
