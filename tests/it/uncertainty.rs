@@ -789,3 +789,22 @@ fn age_for_a_rodent_is_an_error_naming_the_flag() {
     let err = String::from_utf8(out.get_output().stderr.clone()).unwrap();
     assert!(err.contains("--age") && err.contains("human only"), "{err}");
 }
+
+#[test]
+fn the_retina_json_carries_the_recommended_rod_rate_between_its_routes() {
+    // The rule written again: √(lowest × highest route), the highest route the safe side.
+    let out = retidose()
+        .args(["retina", "cie:D65", "--luminance", "100 cd/m2", "--subtense", "20 deg", "--species", "human"])
+        .args(["--pupil", "3 mm", "--format", "json"])
+        .assert()
+        .success();
+    let v: serde_json::Value = serde_json::from_slice(&out.get_output().stdout).unwrap();
+    let r = &v["sources"][0]["retina"]["rod_rate_recommended"];
+    let rates: Vec<f64> =
+        r["routes"].as_array().unwrap().iter().map(|x| x["rate"].as_f64().unwrap()).collect();
+    assert!(rates.len() >= 3, "{r}");
+    let (lo, hi) = rates.iter().fold((f64::MAX, 0.0f64), |(a, b), &x| (a.min(x), b.max(x)));
+    let rec = r["recommended"].as_f64().unwrap();
+    assert!((rec - (lo * hi).sqrt()).abs() <= 1e-9 * rec, "{rec} vs √({lo}·{hi})");
+    assert_eq!(r["safe_side"].as_f64().unwrap(), hi);
+}

@@ -81,6 +81,8 @@ fn source(s: &SourceAtEye) -> Value {
                     "source": t.source,
                 })).collect::<Vec<_>>(),
             })).collect::<Vec<_>>(),
+            // The library's record, serialised as it is (SI units: R*/rod/s as 1/s).
+            "rod_rate_recommended": ret.rod_rate,
         })),
     })
 }
