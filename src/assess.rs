@@ -377,8 +377,9 @@ fn step_light(s: &Scenario, paths: &Paths, sc: &ScheduleSpec, st: &Step) -> Resu
     })
 }
 
-/// Whether the pupil of a step follows a formula of the light (it opens as the light dims).
-fn pupil_adapts(s: &Scenario, st: &Step) -> bool {
+/// Whether the pupil of a step follows a formula of the light (it opens as the light dims), so
+/// that its retinal light is not proportional to a factor on its sources.
+pub fn pupil_adapts(s: &Scenario, st: &Step) -> bool {
     use crate::retina::pupil::PupilRule;
     matches!(
         s.view_for(st.phase).pupil,

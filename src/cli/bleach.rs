@@ -309,6 +309,8 @@ struct Named {
     title: String,
     course: Course,
     assessed: Option<(Assessment, Vec<String>)>,
+    /// Per step, whether its pupil follows a formula of the light (a scenario's steps only).
+    adapts: Vec<bool>,
 }
 
 /// `--scenario FILE` (assessed as `retidose assess` does) or `--schedule FILE`, with `--model`
@@ -319,7 +321,12 @@ fn named(a: &BleachArgs) -> Result<Named> {
             .schedule
             .as_deref()
             .context("--step needs a schedule: give --scenario FILE or --schedule FILE")?;
-        return Ok(Named { title: file.to_string(), course: scenario(a)?.course()?, assessed: None });
+        return Ok(Named {
+            title: file.to_string(),
+            course: scenario(a)?.course()?,
+            assessed: None,
+            adapts: Vec::new(),
+        });
     };
     let text = std::fs::read_to_string(file).with_context(|| format!("cannot read the scenario {file}"))?;
     let s = parse_scenario_file(&text, file, Path::new(file).parent())?;
@@ -336,7 +343,8 @@ fn named(a: &BleachArgs) -> Result<Named> {
         let (k, v) = p.split_once('=').with_context(|| format!("--param '{p}' must be NAME=VALUE"))?;
         course.pigment.override_param(k.trim(), v.trim().trim_matches('"'))?;
     }
-    Ok(Named { title: s.name.clone(), course, assessed: Some((assessment, s.source_ids)) })
+    let adapts = sc.steps.iter().map(|st| retidose::assess::pupil_adapts(&s, st)).collect();
+    Ok(Named { title: s.name.clone(), course, assessed: Some((assessment, s.source_ids)), adapts })
 }
 
 /// `--step NAME` with `--solve level|duration --target F` or `--sweep-level`.
@@ -344,6 +352,14 @@ fn named_step(a: &BleachArgs) -> Result<String> {
     let name = a.step.as_deref().context("--scenario needs --step NAME: the step to solve or sweep")?;
     let n = named(a)?;
     let step = n.course.find_step(name).context("--step")?;
+    if (a.sweep_level || a.solve.as_deref() == Some("level")) && n.adapts.get(step) == Some(&true) {
+        bail!(
+            "--step {name}: its pupil follows a formula of the light, so the light reaching the retina is not \
+             proportional to a factor on the step's sources, and a level solve or sweep would be wrong; give the \
+             subject a fixed pupil (e.g. pupil = \"7 mm\", as for a dilated eye) to solve the level, or use \
+             --solve duration"
+        );
+    }
     if a.sweep_level {
         let sweep = n
             .course

@@ -285,3 +285,29 @@ fn a_rod_target_under_a_pupil_formula_is_marked_as_an_upper_bound() {
     let fixed = run(EVENING);
     assert!(!fixed.brightest.iter().any(|b| b.pupil_adapts));
 }
+
+#[test]
+fn a_level_solve_is_refused_when_the_pupil_follows_the_light() {
+    // Trolands are luminance × pupil area; with a pupil formula (Watson & Yellott 2012) the pupil
+    // narrows as the light rises, so trolands are not proportional to a factor on the light and
+    // the linear level solve would overshoot. It is refused; the duration solve is still exact.
+    let text = demo("dark-adaptation").unwrap();
+    let fixed = "pupil = \"7 mm\"";
+    assert!(text.contains(fixed));
+    let text = text.replacen(fixed, "pupil = \"watson-yellott\"\nfield = \"20 deg\"", 1);
+    let f = temp_file("adapting-pupil.toml", &text);
+    let f = f.to_str().unwrap();
+    for args in [&["--solve", "level", "--target", "0.9"][..], &["--sweep-level"][..]] {
+        retidose()
+            .args(["bleach", "--scenario", f, "--step", "bleach"])
+            .args(args)
+            .assert()
+            .code(2)
+            .stderr(predicates::str::contains("its pupil follows a formula of the light"))
+            .stderr(predicates::str::contains("pupil = \"7 mm\""));
+    }
+    retidose()
+        .args(["bleach", "--scenario", f, "--step", "bleach", "--solve", "duration", "--target", "0.5"])
+        .assert()
+        .success();
+}
