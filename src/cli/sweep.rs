@@ -76,7 +76,7 @@ pub struct SweepArgs {
     /// End of the sweep
     #[arg(long, value_name = "VALUE", allow_hyphen_values = true)]
     to: Option<String>,
-    /// Number of points, evenly spaced in log (1 to 100 000)
+    /// Number of points, evenly spaced in log (1 to 100 000; at most 10 000 for --over level or transmittance)
     #[arg(long, value_name = "N", default_value_t = 100)]
     points: usize,
     /// Print the nearest distance within each limit and each risk group instead of the sweep

@@ -629,3 +629,18 @@ fn bad_sweep_flags_name_the_flag_and_show_an_example() {
         retidose().args(["sweep", f]).args(&args).assert().code(2).stderr(predicate::str::contains(said));
     }
 }
+
+#[test]
+fn a_level_sweep_takes_at_most_ten_thousand_points() {
+    // Each level point is a whole assessment with the risk group; the cap keeps a run to
+    // seconds. A room's dimming counts are not capped this way (they are counts over sorted lux).
+    let f = scenario_file();
+    let f = f.to_str().unwrap();
+    for over in ["level", "transmittance"] {
+        retidose()
+            .args(["sweep", f, "--over", over, "--points", "10001", "--format", "csv"])
+            .assert()
+            .code(2)
+            .stderr(predicate::str::contains("at most 10000"));
+    }
+}

@@ -64,6 +64,22 @@ pub struct TransmittancePoint {
     pub risk_group: Option<GroupAt>,
 }
 
+/// The most factors [`sweep_level`] and [`sweep_transmittance`] take: each point is a whole
+/// assessment with the risk-group classification, about 2 ms on one core, so 10 000 points take
+/// about 10 s on two cores (the shared [`super::MAX_POINTS`] would take minutes).
+pub const MAX_ASSESSED_POINTS: usize = 10_000;
+
+/// An error unless there are at most [`MAX_ASSESSED_POINTS`] factors.
+fn check_count(n: usize) -> Result<()> {
+    if n > MAX_ASSESSED_POINTS {
+        return Err(Error::input(format!(
+            "{n} points: a level or transmittance sweep takes at most {MAX_ASSESSED_POINTS} (each is a whole \
+             assessment with the risk group); e.g. --points 100"
+        )));
+    }
+    Ok(())
+}
+
 /// `points` durations from `from` to `to`, evenly spaced in log duration (as [`super::log_distances`]).
 ///
 /// # Errors
@@ -112,8 +128,10 @@ pub fn sweep_duration(r: &LimitsRequest<'_>, durations: &[Time]) -> Result<Vec<D
 /// multiplied by each of `factors`: ratio(k) = k·ratio(1) for every hazard (see the module).
 ///
 /// # Errors
-/// [`crate::ErrorKind::InvalidInput`] for a factor not above 0 (or not finite), and as [`assess_limits`].
+/// [`crate::ErrorKind::InvalidInput`] for a factor not above 0 (or not finite), more than
+/// [`MAX_ASSESSED_POINTS`] factors, and as [`assess_limits`].
 pub fn sweep_level(r: &LimitsRequest<'_>, factors: &[Ratio]) -> Result<Vec<LevelPoint>> {
+    check_count(factors.len())?;
     factors
         .par_iter()
         .map(|&factor| {
@@ -133,11 +151,13 @@ pub fn sweep_level(r: &LimitsRequest<'_>, factors: &[Ratio]) -> Result<Vec<Level
 /// each of `transmittances` added after `r.filters`: the level sweep's numbers at k = T.
 ///
 /// # Errors
-/// [`crate::ErrorKind::InvalidInput`] for a transmittance outside 0 < T ≤ 1, and as [`assess_limits`].
+/// [`crate::ErrorKind::InvalidInput`] for a transmittance outside 0 < T ≤ 1, more than
+/// [`MAX_ASSESSED_POINTS`] of them, and as [`assess_limits`].
 pub fn sweep_transmittance(
     r: &LimitsRequest<'_>,
     transmittances: &[Ratio],
 ) -> Result<Vec<TransmittancePoint>> {
+    check_count(transmittances.len())?;
     transmittances
         .par_iter()
         .map(|&transmittance| {
