@@ -9,8 +9,8 @@ use retidose::limits::report::LimitsRequest;
 use retidose::uncertainty::figures::Summary;
 use retidose::uncertainty::meter::{MeterClass, ReadingUncertainty};
 use retidose::uncertainty::{
-    BLEACH_DRAWS, FigureUncertainty, FiguresReport, FiguresRequest, Input, InputUncertainties, MAX_DRAWS,
-    UncertaintyReport, assess_figures_with_age, assess_uncertainty,
+    BLEACH_DRAWS, FigureUncertainty, FiguresReport, FiguresRequest, Input, InputUncertainties,
+    MAX_BLEACH_DRAWS, MAX_DRAWS, UncertaintyReport, assess_figures_with_age, assess_uncertainty,
 };
 
 use super::Output;
@@ -94,7 +94,7 @@ pub struct UncertaintyArgs {
     /// Leave the from-memory parameters at their values (draw only the declared inputs)
     #[arg(long)]
     declared_only: bool,
-    /// Number of Monte Carlo draws of the bleach figures
+    /// Number of Monte Carlo draws of the bleach figures (2 to 100 000; each runs the schedule once per varied input)
     #[arg(long, value_name = "N", default_value_t = BLEACH_DRAWS)]
     bleach_draws: usize,
     /// Output format
@@ -153,8 +153,8 @@ pub fn run(a: UncertaintyArgs) -> Result<Output> {
     if !(1 < a.draws && a.draws <= MAX_DRAWS) {
         bail!("--draws must be 2 to {MAX_DRAWS}, such as 100000, not {}", a.draws);
     }
-    if !(1 < a.bleach_draws && a.bleach_draws <= MAX_DRAWS) {
-        bail!("--bleach-draws must be 2 to {MAX_DRAWS}, such as 10000, not {}", a.bleach_draws);
+    if !(1 < a.bleach_draws && a.bleach_draws <= MAX_BLEACH_DRAWS) {
+        bail!("--bleach-draws must be 2 to {MAX_BLEACH_DRAWS}, such as 10000, not {}", a.bleach_draws);
     }
     let (inputs, reading) = inputs(&a)?;
     let age = a.age.as_deref().map(age).transpose()?;

@@ -5,9 +5,9 @@
 
 use rayon::prelude::*;
 
+use super::Input;
 use super::rng::Normals;
 use super::sample::interval_indices;
-use super::{CHUNK, Input};
 
 /// The distribution of one input.
 #[derive(Debug, Clone, Copy, PartialEq)]
@@ -149,14 +149,21 @@ fn chunk(vars: &[Var], m: &dyn Figures, nominal: &[f64], seed: u64, stream: u64,
     c
 }
 
-/// Draws `draws` input vectors from stream family `seed` and summarises every figure.
-pub(super) fn propagate(vars: &[Var], m: &dyn Figures, draws: usize, seed: u64) -> Vec<Summary> {
+/// Draws `draws` input vectors from stream family `seed`, in chunks of `chunk_len` (one stream
+/// each), and summarises every figure.
+pub(super) fn propagate(
+    vars: &[Var],
+    m: &dyn Figures,
+    draws: usize,
+    seed: u64,
+    chunk_len: usize,
+) -> Vec<Summary> {
     let h = m.count();
     let mut nominal = vec![0.0; h];
     m.eval(&vars.iter().map(|v| v.nominal).collect::<Vec<_>>(), &mut nominal);
-    let chunks: Vec<Chunk> = (0..draws.div_ceil(CHUNK))
+    let chunks: Vec<Chunk> = (0..draws.div_ceil(chunk_len))
         .into_par_iter()
-        .map(|i| chunk(vars, m, &nominal, seed, i as u64, CHUNK.min(draws - i * CHUNK)))
+        .map(|i| chunk(vars, m, &nominal, seed, i as u64, chunk_len.min(draws - i * chunk_len)))
         .collect();
     (0..h).map(|j| summarise(vars, &chunks, j, h, nominal[j], draws)).collect()
 }
