@@ -24,8 +24,8 @@
 mod placed;
 
 pub use placed::{
-    DurationPoint, LevelPoint, TransmittancePoint, log_durations, log_factors, sweep_duration, sweep_level,
-    sweep_transmittance,
+    DurationPoint, LevelPoint, MAX_ASSESSED_POINTS, TransmittancePoint, log_durations, log_factors,
+    sweep_duration, sweep_level, sweep_transmittance,
 };
 
 use std::f64::consts::PI;
