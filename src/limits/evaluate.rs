@@ -44,6 +44,21 @@ pub struct Exposure<'a> {
     pub aphakic: bool,
 }
 
+impl<'a> Exposure<'a> {
+    /// A constant exposure of `duration` to what reaches the cornea.
+    pub fn of(c: &'a crate::cornea::geometry::Corneal, duration: Time, aphakic: bool) -> Exposure<'a> {
+        Exposure {
+            irradiance: &c.irradiance,
+            radiance: c.radiance.as_ref(),
+            subtense_rad: c.subtense.map(|a| a.si()),
+            full_field: c.full_field,
+            duration,
+            schedule: None,
+            aphakic,
+        }
+    }
+}
+
 /// The outcome for one hazard.
 #[derive(Debug, Clone, PartialEq, serde::Serialize)]
 #[serde(rename_all = "kebab-case")]

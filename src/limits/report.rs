@@ -217,15 +217,7 @@ fn classification(
 pub fn assess_limits(r: &LimitsRequest<'_>) -> Result<LimitsAssessment> {
     check_request(r)?;
     let c = at_cornea(r.source, r.filters)?;
-    let e = Exposure {
-        irradiance: &c.irradiance,
-        radiance: c.radiance.as_ref(),
-        subtense_rad: c.subtense.map(|a| a.si()),
-        full_field: c.full_field,
-        duration: r.duration,
-        schedule: None,
-        aphakic: r.aphakic,
-    };
+    let e = Exposure::of(&c, r.duration, r.aphakic);
     let hazards: Vec<HazardResult> =
         evaluate_set(r.set, &e).into_iter().filter(|h| r.only.is_empty() || r.only.contains(&h.id)).collect();
     let source_notes = c.notes.iter().filter(|n| is_data_note(n)).cloned();

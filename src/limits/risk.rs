@@ -199,15 +199,7 @@ fn hazard_group(h: &Hazard, rg: &RiskGroupBases, c: &Corneal) -> HazardGroup {
         g.from_memory.push(format!("risk-group time bases ({})", rg.provenance.source));
     }
     for (i, &t) in rg.time_bases_s.iter().enumerate() {
-        let e = Exposure {
-            irradiance: &c.irradiance,
-            radiance: c.radiance.as_ref(),
-            subtense_rad: c.subtense.map(|a| a.si()),
-            full_field: c.full_field,
-            duration: Time::from_si(t),
-            schedule: None,
-            aphakic: false,
-        };
+        let e = Exposure::of(c, Time::from_si(t), false);
         let r = assess(h, &e, rg.field_of_view[i].as_ref());
         g.fields_of_view_rad[i] = r.field_of_view_rad;
         g.field_of_view_provenance[i].clone_from(&r.field_of_view_provenance);

@@ -107,15 +107,7 @@ fn evaluate_at(
     d: Length,
 ) -> Result<(Vec<HazardResult>, Option<f64>)> {
     let c = m.at(d)?;
-    let e = Exposure {
-        irradiance: &c.irradiance,
-        radiance: c.radiance.as_ref(),
-        subtense_rad: c.subtense.map(|a| a.si()),
-        full_field: c.full_field,
-        duration: r.duration,
-        schedule: None,
-        aphakic: r.aphakic,
-    };
+    let e = Exposure::of(&c, r.duration, r.aphakic);
     let luminance = c.radiance.as_ref().map(|l| photopic(l).raw);
     let results = evaluate_set(r.set, &e).into_iter().filter(|h| r.only.is_empty() || r.only.contains(&h.id));
     Ok((results.collect(), luminance))
