@@ -39,13 +39,11 @@ fn draws_100_000_every_hazard(bencher: divan::Bencher) {
 /// The figures of the dark-adaptation demo: `retina` and `bleach` draws.
 fn figures(bencher: divan::Bencher, retina: Option<usize>, bleach: Option<usize>) {
     let s = parse_scenario_file(demo("dark-adaptation").unwrap(), "demo dark-adaptation", None).unwrap();
-    let zero = Length::from_si(0.0);
     let u = InputUncertainties {
         reading_relative: 0.05,
-        distance: zero,
-        size: zero,
         tilt_relative: 0.03,
         pupil: Length::from_si(0.0003),
+        ..InputUncertainties::none()
     };
     let req = FiguresRequest {
         scenario: &s,

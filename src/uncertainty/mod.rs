@@ -84,6 +84,20 @@ pub struct InputUncertainties {
     pub pupil: Length,
 }
 
+impl InputUncertainties {
+    /// No declared uncertainty: every input at its value (fill the others with `..none()`).
+    pub fn none() -> InputUncertainties {
+        let zero = Length::from_si(0.0);
+        InputUncertainties {
+            reading_relative: 0.0,
+            distance: zero,
+            size: zero,
+            tilt_relative: 0.0,
+            pupil: zero,
+        }
+    }
+}
+
 /// One declared input.
 #[derive(Debug, Clone, Copy, PartialEq, Eq, serde::Serialize)]
 #[serde(rename_all = "kebab-case")]

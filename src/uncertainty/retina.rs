@@ -454,14 +454,7 @@ mod tests {
         let text = "[scenario]\nname = \"t\"\ntitle = \"t\"\n[subject]\nspecies = \"rat\"\npupil = \"2 mm\"\n\
                     [[source]]\nid = \"f\"\nspectrum = \"warm-white-led\"\nilluminance = \"100 lx\"\nfull_field = true\n";
         let s = parse_scenario_file(text, "test", None).unwrap();
-        let zero = Length::from_si(0.0);
-        let u = InputUncertainties {
-            reading_relative: 0.0,
-            distance: zero,
-            size: zero,
-            tilt_relative: 0.03,
-            pupil: zero,
-        };
+        let u = InputUncertainties { tilt_relative: 0.03, ..InputUncertainties::none() };
         let too_much = InputUncertainties { tilt_relative: 0.5, ..u };
         let err = RetinaModel::new(&s.view, 0, &too_much, true).err().unwrap();
         assert!(err.message().contains("spectral tilt uncertainty 0.5"), "{err}");
@@ -503,14 +496,7 @@ mod tests {
                  subtense = \"20 deg\"\n"
             )
         };
-        let zero = Length::from_si(0.0);
-        let u = InputUncertainties {
-            reading_relative: 0.0,
-            distance: zero,
-            size: zero,
-            tilt_relative: 0.0,
-            pupil: zero,
-        };
+        let u = InputUncertainties::none();
         let year = 365.25 * 86_400.0;
         for pupil in ["3 mm", "watson-yellott"] {
             let s = parse_scenario_file(&text("40 y", pupil), "test", None).unwrap();

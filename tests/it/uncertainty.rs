@@ -36,8 +36,7 @@ fn request<'a>(s: &'a Scenario, set: &str) -> LimitsRequest<'a> {
 }
 
 fn none() -> InputUncertainties {
-    let zero = Length::from_si(0.0);
-    InputUncertainties { reading_relative: 0.0, distance: zero, size: zero, tilt_relative: 0.0, pupil: zero }
+    InputUncertainties::none()
 }
 
 fn all() -> InputUncertainties {
