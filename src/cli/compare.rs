@@ -221,10 +221,7 @@ fn table(c: &Comparison, width: usize) -> String {
     let label_w = figs.iter().map(|f| f.label.chars().count() + f.unit.len() + 3).max().unwrap_or(10).min(36);
     let mut out =
         String::from("retidose compare — ranked by margin (factor to the limit), largest first\n\n");
-    for caution in &c.cautions {
-        out.push_str(&textwrap::fill(&format!("Caution. {}", terminal_line(caution)), width.min(100)));
-        out.push_str("\n\n");
-    }
+    out.push_str(&super::render::caution_block(c.cautions.iter().map(String::as_str), width));
     for (chunk, cols) in c.columns.chunks(PER_TABLE).enumerate() {
         let first = chunk * PER_TABLE;
         let n = cols.len();

@@ -30,6 +30,20 @@ use retidose::assess::{Assessment, GuidanceBasis, GuidanceRow};
 use retidose::limits::{HazardResult, TMax, Verdict};
 use retidose::spectrum::Basis;
 
+/// Each caution as a "Caution. …" paragraph wrapped to `width` (at most 100 columns), each
+/// followed by an empty line: the same block on top of every command's terminal report.
+pub fn caution_block<'a>(cautions: impl IntoIterator<Item = &'a str>, width: usize) -> String {
+    let mut out = String::new();
+    for caution in cautions {
+        out.push_str(&textwrap::fill(
+            &format!("Caution. {}", escape::terminal_line(caution)),
+            width.min(100),
+        ));
+        out.push_str("\n\n");
+    }
+    out
+}
+
 /// The caution printed under every report.
 pub const CAUTION: &str = "retidose informs; it does not replace the standards, a qualified optical-radiation \
 assessment, veterinary advice or local regulations. Check results with your optical safety officer, \
