@@ -22,8 +22,11 @@ use retidose::limits::{LimitSet, Verdict, find_set};
 use retidose::scenario::file::Scenario;
 
 use super::Output;
+use super::render::caution_block;
 use super::render::terminal::{Page, Table, width};
 use super::render::{duration, num};
+use retidose::assess::{ANIMAL_CAUTION, GENERAL_CAUTION};
+use retidose::limits::report::LIMITS_CAUTION;
 
 /// Help shown after `retidose sweep --help`.
 pub const EXAMPLES: &str = "\
@@ -229,7 +232,16 @@ pub fn run(a: SweepArgs) -> Result<Output> {
     } else {
         placed(&a, &r, &s, id)?
     };
-    Ok(Output { text, status: 0 })
+    Ok(Output { text: with_cautions(text, a.format, &[LIMITS_CAUTION, GENERAL_CAUTION]), status: 0 })
+}
+
+/// A table with the cautions that apply under it (the other formats carry figures only).
+fn with_cautions(text: String, format: SweepFormat, cautions: &[&str]) -> String {
+    if format == SweepFormat::Table {
+        text + "\n" + &caution_block(cautions.iter().copied(), width())
+    } else {
+        text
+    }
 }
 
 /// `--solve`: the nearest distances, and the longest exposure at the placed distance.
@@ -679,7 +691,7 @@ fn room_run(a: &SweepArgs, scenario: Scenario) -> Result<Output> {
             f.svg + "\n"
         }
     };
-    Ok(Output { text, status: 0 })
+    Ok(Output { text: with_cautions(text, a.format, &[ANIMAL_CAUTION, GENERAL_CAUTION]), status: 0 })
 }
 
 /// The room's dimming sweep as a table: the factor, then per rack the positions in range.

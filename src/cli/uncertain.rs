@@ -213,7 +213,17 @@ pub fn run(a: UncertaintyArgs) -> Result<Output> {
             for n in &b.skipped {
                 t.push_str(&format!("not sampled: {n}\n"));
             }
-            t
+            // The scenario's own cautions, and the human-limits one whenever limit ratios were sampled.
+            let mut cautions = retidose::assess::cautions(&s);
+            let limits = retidose::limits::report::LIMITS_CAUTION;
+            if b.limits.is_some() && !cautions.iter().any(|c| c == limits) {
+                cautions.insert(0, limits.to_string());
+            }
+            let block = super::render::caution_block(
+                cautions.iter().map(String::as_str),
+                super::render::terminal::width(),
+            );
+            t + "\n" + &block
         }
         (UncertaintyFormat::Csv, Both { limits: Some(r), figures: None, .. }) => csv(r)?,
         (UncertaintyFormat::Csv, b) => long_csv(b, a.seed)?,

@@ -644,3 +644,23 @@ fn a_level_sweep_takes_at_most_ten_thousand_points() {
             .stderr(predicate::str::contains("at most 10000"));
     }
 }
+
+#[test]
+fn sweep_tables_carry_the_cautions_that_apply() {
+    // A limits sweep is about human exposure limits; a room's dimming sweep about animal housing.
+    let f = scenario_file();
+    let out = retidose().args(["sweep", f.to_str().unwrap(), "--points", "2"]).assert().success();
+    let words =
+        String::from_utf8_lossy(&out.get_output().stdout).split_whitespace().collect::<Vec<_>>().join(" ");
+    assert!(words.contains("Caution. These limits apply to humans."), "{words}");
+    assert!(words.contains("Caution. retidose informs;"), "{words}");
+    let room = std::env::temp_dir().join(format!("retidose-sweep-caution-{}.toml", std::process::id()));
+    crate::files::write(&room, retidose::assess::demo("vivarium").unwrap());
+    let out = retidose()
+        .args(["sweep", room.to_str().unwrap(), "--over", "level", "--points", "2"])
+        .assert()
+        .success();
+    let words =
+        String::from_utf8_lossy(&out.get_output().stdout).split_whitespace().collect::<Vec<_>>().join(" ");
+    assert!(words.contains("Caution. Animal housing guidance is not a welfare assessment"), "{words}");
+}

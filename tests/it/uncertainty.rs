@@ -807,3 +807,15 @@ fn the_retina_json_carries_the_recommended_rod_rate_between_its_routes() {
     assert!((rec - (lo * hi).sqrt()).abs() <= 1e-9 * rec, "{rec} vs √({lo}·{hi})");
     assert_eq!(r["safe_side"].as_f64().unwrap(), hi);
 }
+
+#[test]
+fn the_uncertainty_table_carries_the_cautions_that_apply() {
+    // Limit ratios were sampled, so the human-limits caution applies; the general deferral always.
+    let f = scenario_file();
+    let mut args = vec!["uncertainty", f.as_str()];
+    args.extend(FLAGS);
+    args.extend(["--draws", "2000"]);
+    let words = stdout(&args).split_whitespace().collect::<Vec<_>>().join(" ");
+    assert!(words.contains("Caution. These limits apply to humans."), "{words}");
+    assert!(words.contains("Caution. retidose informs;"), "{words}");
+}
